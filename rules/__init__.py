@@ -1,0 +1,3 @@
+"""Rule families. Each module here is one family; the engine imports the ones listed."""
+
+FAMILIES = ["wiring", "freqplan", "rfpath", "power", "audio", "mains"]

@@ -1,0 +1,1 @@
+"""Audio output: stabilising network, coupling-capacitor corner."""

@@ -1,0 +1,1 @@
+"""Frequency plan: conversion arithmetic, image, necessary bandwidth, spurs, tank, crystal, audio corner."""

@@ -1,0 +1,1 @@
+"""Mains and hazardous voltage: cautions and the checks behind them."""

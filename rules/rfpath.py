@@ -1,0 +1,1 @@
+"""RF path: input match and gain ahead of a low-intercept IF device."""

@@ -1,0 +1,3 @@
+from speccheck.cli import main
+
+main()

@@ -1,0 +1,117 @@
+"""The engine: load a file, run every enabled rule on its model, collect findings and the
+design sheet. Rules never see YAML, reporters never see rules' internals."""
+
+from __future__ import annotations
+
+import hashlib
+import traceback
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from speccheck import loader, registry
+from speccheck.config import Settings
+from speccheck.findings import RANK, Finding, Location, SheetEntry, Value
+
+
+@dataclass
+class FileResult:
+    path: str
+    findings: list = field(default_factory=list)
+    sheet: list = field(default_factory=list)  # SheetEntry
+    cautions: list = field(default_factory=list)  # safety texts, shown first in every format
+    checked: bool = False  # False when the file could not be read or parsed far enough for rules
+    build_name: str = ""
+
+    def counts(self, include_waived: bool = False) -> dict:
+        out = {"error": 0, "warning": 0, "note": 0}
+        for f in self.findings:
+            if include_waived or not f.waived:
+                out[f.level] += 1
+        return out
+
+
+class Context:
+    """What a rule gets besides the model: a way to report, publish and read its settings."""
+
+    def __init__(self, result: FileResult, rule: registry.Rule, settings: Settings, build):
+        self.result, self.rule, self.settings, self.build = result, rule, settings, build
+
+    def setting(self, name: str):
+        return self.settings.rule_settings.get(self.rule.id, {}).get(name, self.rule.settings[name])
+
+    def report(self, message: str, at: Location, values=(), fix: str | None = None, level: str | None = None,
+               stage: str = "") -> Finding:
+        found = Finding(self.rule.id, self.settings.level_for(self.rule.id, level or self.rule.level), message,
+                        at or Location(self.result.path), list(values), fix or self.rule.fix, stage)
+        self.result.findings.append(found)
+        return found
+
+    def publish(self, section: str, owner: str, name: str, value, unit: str = "") -> Value:
+        shown = Value(name, value, unit)
+        self.result.sheet.append(SheetEntry(section, owner, shown, self.rule.id))
+        return shown
+
+    def caution(self, text: str):
+        if text not in self.result.cautions:
+            self.result.cautions.append(text)
+
+
+def run_rules(build, result: FileResult, settings: Settings):
+    for rule in registry.load_rules().values():
+        if rule.check is None or not settings.enabled(rule.id):
+            continue
+        ctx = Context(result, rule, settings, build)
+        try:
+            rule.check(build, ctx)
+        except Exception as exc:  # a rule bug must not hide the other findings, nor crash the run
+            where = traceback.extract_tb(exc.__traceback__)[-1]
+            result.findings.append(Finding(
+                rule.id, "error", f"internal error in rule {rule.id}: {type(exc).__name__}: {exc} "
+                f"({Path(where.filename).name}:{where.lineno}); please report it", Location(result.path),
+                stage="internal"))
+
+
+def _fingerprint(f: Finding, seen: dict) -> str:
+    """Stable across unrelated edits: rule, file name, document path and message shape, not line."""
+    shape = "".join(ch for ch in f.message if not ch.isdigit())
+    base = f"{f.rule}|{Path(f.location.file).as_posix()}|{f.location.path}|{shape}"
+    n = seen.get(base, 0)
+    seen[base] = n + 1
+    return hashlib.sha256(f"{base}|{n}".encode()).hexdigest()[:32]
+
+
+def finish(result: FileResult, settings: Settings):
+    result.findings = [f for f in result.findings if settings.enabled(f.rule)]
+    for f in result.findings:
+        f.level = settings.level_for(f.rule, f.level)
+    result.findings.sort(key=Finding.sort_key)
+    seen: dict = {}
+    for f in result.findings:
+        f.fingerprint = _fingerprint(f, seen)
+
+
+def check_loaded(loaded: loader.Loaded, settings: Settings) -> FileResult:
+    result = FileResult(loaded.path, list(loaded.findings))
+    if loaded.build is not None:
+        result.build_name = loaded.build.build.name if loaded.build.build else ""
+    if loaded.can_check:
+        run_rules(loaded.build, result, settings)
+        result.checked = True
+    from speccheck import waivers
+
+    waivers.apply(result, loaded, settings)
+    finish(result, settings)
+    return result
+
+
+def check_file(path: str | Path, settings: Settings | None = None) -> FileResult:
+    return check_loaded(loader.load(path), settings or Settings())
+
+
+def check_text(text: str, file: str = "<text>", settings: Settings | None = None) -> FileResult:
+    return check_loaded(loader.load_text(text, file), settings or Settings())
+
+
+def worst(results) -> str | None:
+    levels = [f.level for r in results for f in r.findings if not f.waived]
+    return max(levels, key=RANK.get) if levels else None

@@ -1,0 +1,65 @@
+"""What a check produces: findings with positions and the numbers behind them."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from speccheck import units
+
+LEVELS = ("note", "warning", "error")  # SARIF's level words, least severe first
+RANK = {name: i for i, name in enumerate(LEVELS)}
+
+
+@dataclass(frozen=True, slots=True)
+class Location:
+    file: str
+    line: int = 1
+    col: int = 1
+    path: str = ""  # where in the document, e.g. "parts.C12.positive"
+    end_line: int = 0
+    end_col: int = 0
+
+
+@dataclass(frozen=True, slots=True)
+class Value:
+    """One computed or quoted number, with its SI unit, shown beside a finding or on the sheet."""
+
+    name: str
+    value: float | str
+    unit: str = ""
+
+    @property
+    def text(self) -> str:
+        if isinstance(self.value, str):
+            return self.value
+        return units.fmt(self.value, self.unit)
+
+    def as_dict(self) -> dict:
+        return {"name": self.name, "value": self.value, "unit": self.unit, "text": self.text}
+
+
+@dataclass(slots=True)
+class Finding:
+    rule: str
+    level: str
+    message: str
+    location: Location
+    values: list = field(default_factory=list)
+    fix: str = ""
+    stage: str = ""  # the signal-chain stage or section it belongs to, for grouping in reports
+    waived: str | None = None  # the reason, when a waiver covers it
+    fingerprint: str = ""
+
+    def sort_key(self):
+        loc = self.location
+        return (loc.file, loc.line, loc.col, self.rule, self.message)
+
+
+@dataclass(frozen=True, slots=True)
+class SheetEntry:
+    """One derived quantity on the design sheet."""
+
+    section: str  # e.g. "conversion", "if-filter", "power"
+    owner: str  # the part, path or stage it belongs to
+    value: Value
+    rule: str = ""

@@ -1,0 +1,358 @@
+"""From a file on disk to a typed, unit-converted `Build`, and the input.* findings.
+
+The narrow interface: `load(path) -> Loaded`. It reads text, asks yamlnodes for plain data
+with positions, validates against the published schema, converts every quantity through
+units, resolves device profiles and references, and reports every problem as a finding at
+its file:line:col. Nothing here raises for bad input.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass, field
+from functools import lru_cache
+from importlib import resources
+from pathlib import Path
+
+from speccheck import model, schema, units, yamlnodes
+from speccheck.findings import Finding, Location
+from speccheck.registry import define
+
+# ---- the input family: problems with the file itself -----------------------------------
+
+_INPUT_RULES = {
+    "input.unreadable": ("error", "The file cannot be read",
+                         "speccheck could not read the file as UTF-8 text.", "Save the file as UTF-8 text."),
+    "input.yaml-syntax": ("error", "The file is not valid YAML",
+                          "The YAML could not be parsed at the position shown, so nothing else was checked.",
+                          "Fix the YAML at the position shown; indentation and unclosed brackets are the usual cause."),
+    "input.duplicate-key": ("error", "A key appears twice in the same mapping",
+                            "YAML keeps only one of two equal keys, so half of what you wrote would be lost "
+                            "without a word. speccheck refuses the file instead.",
+                            "Remove or rename one of the two keys."),
+    "input.not-accepted": ("error", "A YAML feature a build file does not accept",
+                           "Anchors, aliases and merge keys make a plan hard to read in a diff and can be used to "
+                           "blow up the size of a document; a build file spells every value out.",
+                           "Write the value out where it is used."),
+    "input.schema": ("error", "The file does not follow the build format",
+                     "Every build file follows format 1, published as a JSON Schema (`speccheck schema`). "
+                     "A key that is unknown, missing, or of the wrong kind is reported at its position. "
+                     "Rules do not run on a file with such errors, because they would guess.",
+                     "Correct the key or value shown; `speccheck schema` prints the format, and an editor with "
+                     "YAML schema support completes keys for you."),
+    "input.unit": ("error", "A value has the wrong unit or no unit",
+                   "Every physical value carries its unit, and each field expects one kind of quantity: a "
+                   "frequency in Hz, a capacitance in F, a level in dBm. A value in the wrong dimension "
+                   "(an inductance where a frequency belongs) is a typing slip that would make every number "
+                   "derived from it wrong.",
+                   "Write the value with the unit the field expects, e.g. '455 kHz', '100 nF', '-60 dBm'."),
+    "input.value-range": ("error", "A value is physically meaningless",
+                          "A frequency, capacitance, inductance, resistance or current must be greater than "
+                          "zero; zero or a negative number there would divide by zero or flip a sign in the "
+                          "arithmetic.",
+                          "Give the real, positive value."),
+    "input.reference": ("error", "A name refers to nothing",
+                        "Parts, devices, profiles, rails and IF paths are referred to by name. A name that is "
+                        "not declared is usually a typing slip, and the rule that needs it cannot run.",
+                        "Declare the part, device, profile or rail, or correct the name."),
+}
+for _id, (_level, _title, _why, _fix) in _INPUT_RULES.items():
+    define(_id, level=_level, title=_title, explanation=_why, fix=_fix, source="speccheck build format 1")
+
+ZERO_ALLOWED = {"drift", "stray", "extra_capacitance", "theta_cs", "tolerance", "ac_peak", "forward_voltage"}
+POSITIVE_DIMS = {"frequency", "capacitance", "inductance", "resistance", "current", "power", "apparent_power",
+                 "time", "length", "inductance_factor", "thermal_resistance", "i2t", "fraction"}
+
+
+@dataclass
+class Loaded:
+    path: str
+    build: model.Build | None
+    findings: list = field(default_factory=list)
+    doc: yamlnodes.Document | None = None
+    text: str = ""
+
+    @property
+    def can_check(self) -> bool:
+        return self.build is not None and not any(f.rule == "input.schema" for f in self.findings)
+
+
+class _Context:
+    def __init__(self, file: str, doc: yamlnodes.Document, findings: list):
+        self.file, self.doc, self.findings = file, doc, findings
+
+    def loc(self, path, at_key: bool = False) -> Location:
+        mark = self.doc.key_mark(path) if at_key else self.doc.mark(path)
+        return Location(self.file, mark.line, mark.col, schema.dotted(path), mark.end_line, mark.end_col)
+
+    def report(self, rule: str, message: str, path, at_key: bool = False):
+        level = _INPUT_RULES[rule][0]
+        self.findings.append(Finding(rule, level, message, self.loc(path, at_key), fix=_INPUT_RULES[rule][3],
+                                     stage="input"))
+
+    def quantity(self, raw, dim: str, path, name: str):
+        try:
+            si = units.parse(raw, dim)
+        except units.UnitError as exc:
+            self.report("input.unit", f"{schema.dotted(path)}: {exc}", path)
+            return None
+        if dim in POSITIVE_DIMS and (si < 0 or (si == 0 and name not in ZERO_ALLOWED)):
+            self.report("input.value-range", f"{schema.dotted(path)} is {raw}: a {dim.replace('_', ' ')} "
+                        f"here must be greater than zero", path)
+            return None
+        return model.Q(si, dim, str(raw).strip(), self.loc(path))
+
+
+@lru_cache(maxsize=None)
+def _field_specs(cls):
+    specs = []
+    for f in dataclasses.fields(cls):
+        if f.name in ("loc", "locs"):
+            continue
+        specs.append((f.name, f.metadata.get("key", f.name), f.metadata))
+    return tuple(specs)
+
+
+def _build_obj(cls, data, path, ctx: _Context, **extra):
+    obj = cls(**extra)
+    obj.loc = ctx.loc(path)
+    if not isinstance(data, dict):
+        return obj
+    for name, key, meta in _field_specs(cls):
+        if key not in data:
+            continue
+        raw, here = data[key], path + (key,)
+        obj.locs[name] = ctx.loc(here)
+        if raw is None:
+            continue
+        if "dim" in meta:
+            value = ctx.quantity(raw, meta["dim"], here, name)
+        elif "node" in meta:
+            value = _build_obj(meta["node"], raw, here, ctx)
+        elif "nodes" in meta:
+            value = {k: _build_obj(meta["nodes"], v, here + (k,), ctx, name=k)
+                     for k, v in raw.items()} if isinstance(raw, dict) else {}
+        elif "items" in meta:
+            value = [_build_obj(meta["items"], v, here + (i,), ctx) for i, v in enumerate(raw)] \
+                if isinstance(raw, list) else []
+        else:
+            value = raw
+        setattr(obj, name, value)
+    _special_fields(obj, data, path, ctx)
+    return obj
+
+
+def _special_fields(obj, data, path, ctx: _Context):
+    """Fields whose dimension depends on another field."""
+    if isinstance(obj, model.Part):
+        dim = model.VALUE_DIMENSION.get(obj.kind)
+        if "value" in data and data["value"] is not None:
+            if dim:
+                obj.value = ctx.quantity(data["value"], dim, path + ("value",), "value")
+            else:
+                ctx.report("input.schema", f"{schema.dotted(path)}: a {obj.kind} has no 'value'; use the "
+                           "fields of its kind (frequency, center, current_rating ...)", path + ("value",), True)
+        adjust = data.get("adjust")
+        if isinstance(adjust, dict) and dim:
+            obj.adjust = model.Adjust(loc=ctx.loc(path + ("adjust",)))
+            for end in ("min", "max"):
+                if end in adjust:
+                    setattr(obj.adjust, end, ctx.quantity(adjust[end], dim, path + ("adjust", end), end))
+        obj.ends = [str(e) for e in obj.ends]
+    elif isinstance(obj, model.Pin) and isinstance(obj.dc, str) and obj.dc not in ("supply", "half-supply",
+                                                                                     "ground", "none"):
+        obj.dc = ctx.quantity(obj.dc, "voltage", path + ("dc",), "dc")
+    elif isinstance(obj, model.Stage):
+        obj.index = path[-1] if path and isinstance(path[-1], int) else 0
+
+
+# ---- profiles --------------------------------------------------------------------------
+
+def _profiles_from(data, file: str, doc, findings: list, builtin: bool) -> dict:
+    ctx = _Context(file, doc, findings)
+    out = {}
+    for name, raw in (data.get("profiles") or {}).items():
+        prof = _build_obj(model.Profile, raw, ("profiles", name), ctx, name=name)
+        prof.builtin = builtin
+        out[name] = prof
+    return out
+
+
+def _parse_file(text: str, file: str, kind: str, findings: list):
+    doc = yamlnodes.parse(text)
+    ctx = _Context(file, doc, findings)
+    for p in doc.problems:
+        rule = {"duplicate-key": "input.duplicate-key", "alias": "input.not-accepted"}.get(p.kind, "input.yaml-syntax")
+        findings.append(Finding(rule, "error", p.message,
+                                Location(file, p.mark.line, p.mark.col, schema.dotted(p.path), p.mark.end_line,
+                                         p.mark.end_col), fix=_INPUT_RULES[rule][3], stage="input"))
+    if any(f.rule == "input.yaml-syntax" for f in findings):
+        return doc, False
+    if not isinstance(doc.data, dict):
+        ctx.report("input.schema", "the file should be a mapping of keys (build_spec, build, parts, ...)", ())
+        return doc, False
+    schema_ok = True
+    problems = schema.problems(doc.data, kind)
+    for path, message, at_key in problems[:schema.MAX_SCHEMA_FINDINGS]:
+        rule = "input.unit" if message.startswith(schema.dotted(path) + ":") and "expected" in message else "input.schema"
+        ctx.report(rule, message, path, at_key)
+        schema_ok = False
+    if len(problems) > schema.MAX_SCHEMA_FINDINGS:
+        ctx.report("input.schema", f"{len(problems) - schema.MAX_SCHEMA_FINDINGS} more format errors not shown", ())
+    return doc, schema_ok
+
+
+@lru_cache(maxsize=1)
+def builtin_profiles() -> dict:
+    text = resources.files("speccheck").joinpath("profiles", "builtin.yaml").read_text("utf-8")
+    findings: list = []
+    doc, ok = _parse_file(text, "<built-in profiles>", "parts", findings)
+    if findings:
+        raise RuntimeError(f"built-in profiles are broken: {findings[0].message}")
+    return _profiles_from(doc.data, "<built-in profiles>", doc, findings, builtin=True)
+
+
+def _read(path: Path, findings: list, file: str, at: Location | None = None) -> str | None:
+    try:
+        raw = path.read_bytes()
+    except OSError as exc:
+        loc = at or Location(file)
+        findings.append(Finding("input.unreadable", "error", f"cannot read {path}: {exc.strerror}", loc,
+                                stage="input"))
+        return None
+    if len(raw) > yamlnodes.MAX_BYTES:
+        findings.append(Finding("input.unreadable", "error", f"{path} is larger than "
+                                f"{yamlnodes.MAX_BYTES // 1000} kB; a build plan never is", at or Location(file),
+                                stage="input"))
+        return None
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        findings.append(Finding("input.unreadable", "error", f"{path} is not UTF-8 text (byte {exc.start})",
+                                at or Location(file), stage="input"))
+        return None
+
+
+def load_text(text: str, file: str, base_dir: Path | None = None) -> Loaded:
+    findings: list = []
+    doc, ok = _parse_file(text, file, "build", findings)
+    result = Loaded(file, None, findings, doc, text)
+    if doc.data is None or not isinstance(doc.data, dict) or any(f.rule == "input.yaml-syntax" for f in findings):
+        return result
+    ctx = _Context(file, doc, findings)
+    build = _build_obj(model.Build, doc.data, (), ctx, file=file)
+    build.profiles = _all_profiles(build, doc, file, findings, base_dir)
+    _resolve(build, ctx)
+    result.build = build
+    return result
+
+
+def load(path: str | Path) -> Loaded:
+    path = Path(path)
+    findings: list = []
+    text = _read(path, findings, str(path))
+    if text is None:
+        return Loaded(str(path), None, findings)
+    return load_text(text, str(path), path.parent)
+
+
+def _all_profiles(build, doc, file: str, findings: list, base_dir: Path | None) -> dict:
+    profiles = dict(builtin_profiles())
+    for i, name in enumerate(build.parts_files):
+        at = Location(file, *_line_col(doc, ("parts_files", i)), path=f"parts_files[{i}]")
+        target = (base_dir or Path(".")) / name
+        more: list = []
+        text = _read(target, more, file, at)
+        if text is not None:
+            pdoc, ok = _parse_file(text, str(target), "parts", more)
+            if ok and isinstance(pdoc.data, dict):
+                profiles.update(_profiles_from(pdoc.data, str(target), pdoc, more, builtin=False))
+        findings.extend(more)
+    profiles.update(build.profiles)  # declared in the build file itself: wins
+    return profiles
+
+
+def _line_col(doc, path):
+    m = doc.mark(path)
+    return m.line, m.col
+
+
+# ---- references ------------------------------------------------------------------------
+
+def _resolve(build: model.Build, ctx: _Context):
+    def missing(what, name, obj, field_name, known):
+        close = schema._suggest(name, known)
+        loc = obj.at(field_name)
+        ctx.findings.append(Finding("input.reference", "error", f"{what} '{name}' is not declared{close}", loc,
+                                    fix=_INPUT_RULES["input.reference"][3], stage="input"))
+
+    for dev in build.devices.values():
+        dev.profile = build.profiles.get(dev.profile_name)
+        if dev.profile is None:
+            missing("device profile", dev.profile_name, dev, "profile_name", build.profiles)
+        for field_name in ("rail", "output_rail"):
+            rail = getattr(dev, field_name)
+            if rail and rail not in build.rails:
+                missing("rail", rail, dev, field_name, build.rails)
+    for part in build.parts.values():
+        for net in [*part.ends, *part.primary, *part.secondary]:
+            pin_of = _pin(net)
+            if pin_of:
+                dev = build.devices.get(pin_of[0])
+                if dev is None:
+                    missing("device", pin_of[0], part, "ends", build.devices)
+                elif dev.profile and pin_of[1] not in dev.profile.pins:
+                    missing(f"pin of {dev.name} ({dev.profile.name})", pin_of[1], part, "ends", dev.profile.pins)
+        if part.positive and part.positive not in part.ends:
+            ctx.findings.append(Finding("input.reference", "error",
+                                        f"{part.name}.positive is '{part.positive}', which is not one of its ends "
+                                        f"({', '.join(part.ends)})", part.at("positive"), stage="input"))
+    supply = build.supply
+    if supply:
+        for field_name in ("fuse", "series_resistor"):
+            _check_part(build, supply, field_name, missing)
+        if supply.reverse_protection not in (None, "none"):
+            _check_part(build, supply, "reverse_protection", missing)
+        if supply.rail and supply.rail not in build.rails:
+            missing("rail", supply.rail, supply, "rail", build.rails)
+        if supply.mains:
+            for field_name in ("transformer", "primary_fuse", "switch"):
+                _check_part(build, supply.mains, field_name, missing)
+    for rail in build.rails.values():
+        if rail.source not in (None, "supply") and rail.source not in build.devices:
+            missing("device", rail.source, rail, "source", build.devices)
+    paths = {name for st in build.chain for name in st.paths}
+    for sig in build.signals:
+        if sig.path and paths and sig.path not in paths:
+            missing("IF path", sig.path, sig, "path", paths)
+    for stage in build.chain:
+        if stage.device and stage.device not in build.devices:
+            missing("device", stage.device, stage, "device", build.devices)
+        for i, ref in enumerate(stage.parts):
+            if ref not in build.parts:
+                missing("part", ref, stage, "parts", build.parts)
+        for holder in (stage, stage.tank, stage.output_network, stage.oscillator):
+            if holder is None:
+                continue
+            for field_name in ("resistor", "capacitor", "load", "coupling", "input_bypass", "inductor",
+                               "damping", "crystal"):
+                if hasattr(holder, field_name):
+                    _check_part(build, holder, field_name, missing)
+        if stage.oscillator:
+            for ref in stage.oscillator.load_caps:
+                if ref not in build.parts:
+                    missing("part", ref, stage.oscillator, "load_caps", build.parts)
+        for path in stage.paths.values():
+            _check_part(build, path, "filter", missing)
+
+
+def _check_part(build, holder, field_name, missing):
+    ref = getattr(holder, field_name, None)
+    if ref and ref not in build.parts:
+        missing("part", ref, holder, field_name, build.parts)
+
+
+def _pin(net: str):
+    from speccheck.nets import split_pin
+
+    return split_pin(net)

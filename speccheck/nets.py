@@ -1,0 +1,128 @@
+"""Nets of a build and the DC potential each one sits at.
+
+A net's DC potential comes from what the plan states: a rail's voltage, a device pin's DC
+bias from its profile, a named node's declared voltage. It then spreads across parts that
+carry DC with (nearly) no drop: coils, fuses, switches, speaker voice coils, transformer
+windings. Resistors spread it too, one step later, on the usual assumption that the bias
+current through them is small; a net that two different potentials reach that way is left
+unknown rather than guessed.
+"""
+
+from __future__ import annotations
+
+import heapq
+from dataclasses import dataclass
+
+ZERO_DROP = {"inductor", "fuse", "switch", "speaker", "connector", "transformer"}
+SMALL_DROP = {"resistor", "potentiometer"}
+
+
+@dataclass(frozen=True, slots=True)
+class Potential:
+    volts: float
+    why: str  # how it was found, for the finding's text
+    origin: str  # the net the value was first stated on
+
+
+def split_pin(net: str) -> tuple[str, str] | None:
+    """'U1.quad' -> ('U1', 'quad'); None for a plain net name."""
+    if "." in net:
+        device, _, pin = net.partition(".")
+        return device, pin
+    return None
+
+
+class NetGraph:
+    def __init__(self, build):
+        self.build = build
+        self.links: dict[str, list] = {}  # net -> [(part, other net, cost)]
+        self.members: dict[str, list] = {}  # net -> [part]
+        for part in build.parts.values():
+            for pair in self._pairs(part):
+                a, b = pair
+                self.members.setdefault(a, []).append(part)
+                self.members.setdefault(b, []).append(part)
+                cost = 0 if part.kind in ZERO_DROP else 1 if part.kind in SMALL_DROP else None
+                if cost is not None:
+                    self.links.setdefault(a, []).append((part, b, cost))
+                    self.links.setdefault(b, []).append((part, a, cost))
+        self.potentials = self._solve()
+
+    @staticmethod
+    def _pairs(part):
+        if part.kind == "transformer":
+            return [tuple(w) for w in (part.primary, part.secondary) if len(w) == 2]
+        return [tuple(part.ends)] if len(part.ends) == 2 else []
+
+    # ---- stated potentials ----------------------------------------------------------
+    def rail_voltage(self, name: str | None) -> float | None:
+        rail = self.build.rails.get(name) if name else None
+        return rail.voltage.si if rail and rail.voltage else None
+
+    def is_ground(self, net: str) -> bool:
+        rail = self.build.rails.get(net)
+        return bool(rail and rail.is_ground)
+
+    def is_rail(self, net: str) -> bool:
+        rail = self.build.rails.get(net)
+        return bool(rail and not rail.is_ground)
+
+    def stated(self, net: str) -> Potential | None:
+        rail = self.build.rails.get(net)
+        if rail and rail.voltage:
+            what = "ground" if rail.is_ground else "rail"
+            return Potential(rail.voltage.si, f"{net} is a {what} at {rail.voltage.text}", net)
+        node = self.build.nodes.get(net)
+        if node and node.dc:
+            return Potential(node.dc.si, f"{net} is declared at {node.dc.text}", net)
+        pin_of = split_pin(net)
+        if not pin_of:
+            return None
+        device = self.build.device(pin_of[0])
+        pin = device.pin(pin_of[1]) if device else None
+        if not pin or pin.dc in (None, "none"):
+            return None
+        supply = self.rail_voltage(device.rail)
+        if pin.dc == "ground":
+            return Potential(0.0, f"pin {pin.name} of {device.name} sits at ground", net)
+        if pin.dc == "supply" and supply is not None:
+            return Potential(supply, f"pin {pin.name} of {device.name} sits at its supply {device.rail} "
+                                     f"({supply:g} V)", net)
+        if pin.dc == "half-supply" and supply is not None:
+            return Potential(supply / 2, f"pin {pin.name} of {device.name} sits at half its supply "
+                                         f"({supply / 2:g} V of {supply:g} V)", net)
+        if hasattr(pin.dc, "si"):
+            return Potential(pin.dc.si, f"pin {pin.name} of {device.name} is biased at {pin.dc.text}", net)
+        return None
+
+    # ---- spreading --------------------------------------------------------------------
+    def _solve(self) -> dict:
+        nets = set(self.members) | set(self.build.rails) | set(self.build.nodes)
+        best: dict[str, tuple] = {}
+        heap = []
+        for net in sorted(nets):
+            pot = self.stated(net)
+            if pot:
+                best[net] = (0, pot)
+                heapq.heappush(heap, (0, net))
+        conflicted = set()
+        while heap:
+            cost, net = heapq.heappop(heap)
+            if best[net][0] != cost or net in conflicted:
+                continue
+            pot = best[net][1]
+            for part, other, step in self.links.get(net, ()):
+                new_cost = cost + step
+                new = Potential(pot.volts, f"{pot.why}, reaching {other} through {part.name}", pot.origin)
+                if other not in best:
+                    best[other] = (new_cost, new)
+                    heapq.heappush(heap, (new_cost, other))
+                elif best[other][0] == new_cost and new_cost > 0 and abs(best[other][1].volts - pot.volts) > 1e-9:
+                    conflicted.add(other)
+        return {net: p for net, (c, p) in best.items() if net not in conflicted}
+
+    def dc(self, net: str | None) -> Potential | None:
+        return self.potentials.get(net) if net else None
+
+    def parts_on(self, net: str) -> list:
+        return self.members.get(net, [])

@@ -1,0 +1,53 @@
+"""Plain text in the file:line:col: level rule-id message shape, with the numbers and the fix."""
+
+from __future__ import annotations
+
+import click
+
+from speccheck.findings import LEVELS
+
+COLORS = {"error": "red", "warning": "yellow", "note": "cyan"}
+
+
+def _plural(n: int, word: str) -> str:
+    return f"{n} {word}{'' if n == 1 else 's'}"
+
+
+def counts_line(counts: dict) -> str:
+    return ", ".join(_plural(counts[level], level) for level in reversed(LEVELS))
+
+
+def finding_lines(f, color: bool = False) -> list[str]:
+    loc = f.location
+    level = click.style(f.level, fg=COLORS[f.level], bold=True) if color else f.level
+    head = f"{loc.file}:{loc.line}:{loc.col}: {level} {f.rule} {f.message}"
+    if f.waived:
+        head += f" [waived: {f.waived}]"
+    lines = [head]
+    if f.values:
+        lines.append("    numbers: " + "; ".join(f"{v.name} {v.text}" for v in f.values))
+    if f.fix and not f.waived:
+        lines.append(f"    fix: {f.fix}")
+    return lines
+
+
+def render(results, settings, color: bool = False) -> str:
+    out: list[str] = []
+    total = {level: 0 for level in LEVELS}
+    waived = 0
+    for result in results:
+        if result.cautions:
+            out.append(f"{result.path}: SAFETY CAUTIONS for this build:")
+            out.extend(f"  ! {c}" for c in result.cautions)
+        for f in result.findings:
+            out.extend(finding_lines(f, color))
+            if f.waived:
+                waived += 1
+            else:
+                total[f.level] += 1
+    files = _plural(len(results), "file")
+    tail = f"speccheck: {files} checked: {counts_line(total)}"
+    if waived:
+        tail += f" ({waived} waived)"
+    out.append(tail)
+    return "\n".join(out) + "\n"

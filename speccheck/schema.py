@@ -1,0 +1,116 @@
+"""The published JSON Schema of the build format, and plain-words messages for its errors."""
+
+from __future__ import annotations
+
+import difflib
+import json
+from functools import lru_cache
+from importlib import resources
+
+SCHEMA_FILE = "build-v1.json"
+MAX_SCHEMA_FINDINGS = 20
+
+
+@lru_cache(maxsize=1)
+def build_schema() -> dict:
+    return json.loads(resources.files("speccheck").joinpath("schema", SCHEMA_FILE).read_text("utf-8"))
+
+
+@lru_cache(maxsize=1)
+def parts_file_schema() -> dict:
+    """A parts file beside a build holds only device profiles; it reuses the build's $defs."""
+    build = build_schema()
+    return {"$schema": build["$schema"], "type": "object", "additionalProperties": False,
+            "required": ["profiles"], "properties": {"profiles": build["properties"]["profiles"],
+                                                     "note": {"type": "string"}},
+            "$defs": build["$defs"]}
+
+
+@lru_cache(maxsize=2)
+def validator(kind: str = "build"):
+    from jsonschema import Draft202012Validator
+
+    return Draft202012Validator(build_schema() if kind == "build" else parts_file_schema())
+
+
+def dotted(path) -> str:
+    out = ""
+    for step in path:
+        out += f"[{step}]" if isinstance(step, int) else (f".{step}" if out else str(step))
+    return out
+
+
+def _where(path) -> str:
+    return f" in {dotted(path)}" if path else ""
+
+
+def _suggest(word, choices) -> str:
+    close = difflib.get_close_matches(str(word), [str(c) for c in choices], n=1)
+    return f"; did you mean '{close[0]}'?" if close else ""
+
+
+def _dimension(schema: dict) -> str | None:
+    if "x-dimension" in schema:
+        return schema["x-dimension"]
+    ref = schema.get("$ref", "")
+    if ref.startswith("#/$defs/"):
+        return build_schema()["$defs"].get(ref[8:], {}).get("x-dimension")
+    return None
+
+
+def explain(error) -> list[tuple[tuple, str, bool]]:
+    """One jsonschema error -> [(path, message, at_key)]; at_key points the finding at the key."""
+    from speccheck import units
+
+    path = tuple(error.absolute_path)
+    kind, inst, schema = error.validator, error.instance, error.schema
+    if kind in ("anyOf", "oneOf") and error.context:
+        from jsonschema.exceptions import best_match
+
+        return explain(best_match(error.context))
+    if kind == "additionalProperties" and isinstance(inst, dict):
+        allowed = sorted(schema.get("properties", {}))
+        extra = [k for k in inst if k not in schema.get("properties", {})]
+        return [(path + (k,), f"unknown key '{k}'{_where(path)}{_suggest(k, allowed)}", True) for k in extra]
+    if kind == "required":
+        missing = error.message.split("'")[1] if "'" in error.message else error.message
+        return [(path, f"missing key '{missing}'{_where(path)}", False)]
+    if kind == "enum":
+        choices = ", ".join(str(c) for c in error.validator_value)
+        return [(path, f"'{inst}' is not allowed here; use one of: {choices}{_suggest(inst, error.validator_value)}", False)]
+    if kind == "const":
+        return [(path, f"{dotted(path)} must be {error.validator_value!r}, got {inst!r}", False)]
+    if kind == "type":
+        dim = _dimension(schema)
+        if dim:
+            try:
+                units.parse(inst, dim)
+            except units.UnitError as exc:
+                return [(path, f"{dotted(path)}: {exc}", False)]
+        want = error.validator_value
+        want = " or ".join(want) if isinstance(want, list) else want
+        shown = "a list" if isinstance(inst, list) else "a mapping" if isinstance(inst, dict) else repr(inst)
+        return [(path, f"{dotted(path) or 'the file'} should be {'an' if want[0] in 'aeiou' else 'a'} {want}, got {shown}", False)]
+    if kind == "pattern":
+        what = schema.get("description", "a name of letters, digits and _ - + .").split(":")[0]
+        return [(path, f"'{inst}' is not a valid name here: expected {what}", False)]
+    if kind == "propertyNames":
+        return [(path, f"'{inst}' is not a valid name{_where(path[:-1] if path else path)}", True)]
+    if kind in ("minItems", "maxItems"):
+        lo, hi = schema.get("minItems"), schema.get("maxItems")
+        count = f"exactly {lo}" if lo == hi else f"at least {lo}" if kind == "minItems" else f"at most {hi}"
+        return [(path, f"{dotted(path)} needs {count} entries, got {len(inst)}", False)]
+    if kind in ("maxLength", "maxProperties", "maximum", "minimum", "exclusiveMinimum"):
+        return [(path, f"{dotted(path)}: value out of bounds ({kind} {error.validator_value})", False)]
+    return [(path, f"{dotted(path) or 'the file'}: {error.message[:200]}", False)]
+
+
+def problems(data, kind: str = "build") -> list[tuple[tuple, str, bool]]:
+    """All schema errors of a document, explained, one per place, in document order."""
+    seen, out = set(), []
+    for error in validator(kind).iter_errors(data):
+        for path, message, at_key in explain(error):
+            if (path, message) not in seen:
+                seen.add((path, message))
+                out.append((path, message, at_key))
+    return out

@@ -1,0 +1,193 @@
+"""The one place that knows about units.
+
+User text such as "455 kHz", "-100 dBm" or "4.7 µF" becomes a float in SI units here,
+checked for the dimension the field expects. pint (with the small registry in units.txt)
+decides what a unit means; this module bounds the untrusted text before pint sees it,
+handles logarithmic levels (dBm, dB) that a plain pint parse rejects, and formats numbers
+back with SI prefixes for every report. Rules work on SI floats so that the arithmetic of a
+thousand-file check is not spent inside unit objects.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from functools import lru_cache
+from importlib import resources
+
+MAX_TEXT = 64
+
+# dimension name -> (SI unit pint converts to, symbol shown in reports, an example for messages)
+DIMENSIONS: dict[str, tuple[str, str, str]] = {
+    "frequency": ("Hz", "Hz", "455 kHz"),
+    "capacitance": ("F", "F", "100 nF"),
+    "inductance": ("H", "H", "1 mH"),
+    "resistance": ("ohm", "Ω", "4.7 kohm"),
+    "voltage": ("V", "V", "12 V"),
+    "current": ("A", "A", "250 mA"),
+    "power": ("W", "W", "1.5 W"),
+    "apparent_power": ("VA", "VA", "10 VA"),
+    "time": ("s", "s", "50 us"),
+    "temperature": ("degC", "°C", "40 degC"),
+    "thermal_resistance": ("K/W", "°C/W", "12 degC/W"),
+    "length": ("m", "m", "12 mm"),
+    "inductance_factor": ("H", "H/turn²", "4.9 nH/turn^2"),
+    "i2t": ("A**2*s", "A²s", "3.4 A^2 s"),
+    "fraction": ("", "", "20 ppm"),
+    "level": ("dBm", "dBm", "-60 dBm"),
+    "gain": ("dB", "dB", "10 dB"),
+}
+
+ARTICLE = {"inductance": "an inductance", "apparent_power": "an apparent power", "i2t": "an I²t value",
+           "inductance_factor": "an inductance factor (AL)", "fraction": "a plain ratio"}
+
+_NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?"
+_SPLIT = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+_UNIT_OK = re.compile(r"^[A-Za-z%][A-Za-z0-9_/*^. %]*$")
+_POWERS = re.compile(r"(\*\*|\^)\s*(-?\d+)")
+_REPLACE = (("µ", "u"), ("μ", "u"), ("Ω", "ohm"), ("°C/W", "K/W"), ("degC/W", "K/W"), ("C/W", "K/W"),
+            ("°C", "degC"), ("²", "^2"), ("·", "*"))
+_PER_TURN = re.compile(r"\s*/\s*(turn|t)(\^2|\*\*2)\s*$")
+
+
+class UnitError(ValueError):
+    """A value that cannot stand for the quantity the field wants; the text says why."""
+
+
+def article(dim: str) -> str:
+    return ARTICLE.get(dim) or f"a {dim.replace('_', ' ')}"
+
+
+@lru_cache(maxsize=1)
+def registry():
+    import pint
+
+    path = resources.files("speccheck").joinpath("units.txt")
+    with resources.as_file(path) as real:
+        return pint.UnitRegistry(str(real), autoconvert_offset_to_baseunit=True)
+
+
+@lru_cache(maxsize=4096)
+def _dimension_of(unit: str) -> str | None:
+    reg = registry()
+    try:
+        have = reg.Unit(unit).dimensionality
+    except Exception:
+        return None
+    for name, (si, _, _) in DIMENSIONS.items():
+        if si and name not in ("level", "gain") and reg.Unit(si).dimensionality == have:
+            return name
+    return "dimensionless" if not have else None
+
+
+@lru_cache(maxsize=4096)
+def _factor(unit: str, dim: str) -> float:
+    """SI value of one `unit`, after checking it is of dimension `dim`. Raises UnitError."""
+    reg = registry()
+    si = DIMENSIONS[dim][0]
+    try:
+        parsed = reg.Unit(unit)
+    except Exception:
+        raise UnitError(f"'{unit}' is not a unit speccheck knows") from None
+    try:
+        return float(reg.Quantity(1.0, parsed).to(si or "dimensionless").magnitude)
+    except Exception:
+        got = _dimension_of(unit)
+        what = article(got) if got else "something else"
+        raise UnitError(f"expected {article(dim)}, got {{text}} ({what})") from None
+
+
+def _clean_unit(unit: str) -> str:
+    for a, b in _REPLACE:
+        unit = unit.replace(a, b)
+    if not _UNIT_OK.match(unit):
+        raise UnitError(f"'{unit}' is not a unit speccheck knows")
+    for _, power in _POWERS.findall(unit):
+        if abs(int(power)) > 3:
+            raise UnitError(f"power {power} in '{unit}' is not a unit of this trade")
+    return unit.replace("^", "**")
+
+
+def _log_level(value: float, unit: str, dim: str, text: str) -> float:
+    key = unit.strip()
+    if dim == "gain":
+        if key == "dB":
+            return value
+        raise UnitError(f"expected a gain in dB, got '{text}'")
+    offsets = {"dBm": 0.0, "dBW": 30.0}
+    if key in offsets:
+        return value + offsets[key]
+    if key in ("dBuV", "dBµV", "dBμV"):
+        raise UnitError(f"'{key}' needs an impedance to become a power; give the level in dBm")
+    watts = value * _factor(_clean_unit(key), "power")
+    if watts <= 0:
+        raise UnitError(f"a power of {text} has no level in dBm")
+    return 10.0 * math.log10(watts / 1e-3)
+
+
+def parse(text: object, dim: str) -> float:
+    """User text -> SI float of dimension `dim` (dBm for levels, dB for gains, °C for temperatures)."""
+    if dim not in DIMENSIONS:
+        raise KeyError(dim)
+    example = DIMENSIONS[dim][2]
+    if isinstance(text, bool) or text is None:
+        raise UnitError(f"expected {article(dim)} such as '{example}'")
+    if isinstance(text, (int, float)):
+        if dim != "fraction":
+            raise UnitError(f"expected {article(dim)} with its unit, such as '{example}', got a bare number {text}")
+        value = float(text)
+        if not math.isfinite(value):
+            raise UnitError("not a finite number")
+        return value
+    if len(text) > MAX_TEXT:
+        raise UnitError(f"value is longer than {MAX_TEXT} characters")
+    m = _SPLIT.match(text)
+    if not m:
+        raise UnitError(f"expected {article(dim)} such as '{example}', got '{text}'")
+    value = float(m.group(1))
+    unit = m.group(2)
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is not a finite number")
+    if dim in ("level", "gain"):
+        return _log_level(value, unit, dim, text)
+    if dim == "inductance_factor":
+        unit = _PER_TURN.sub("", unit)
+    if not unit:
+        if dim == "fraction":
+            return value
+        raise UnitError(f"'{text}' has no unit: expected {article(dim)} such as '{example}'")
+    unit = _clean_unit(unit)
+    try:
+        factor = _factor(unit, dim)  # also checks the dimension
+    except UnitError as exc:
+        raise UnitError(str(exc).replace("{text}", f"'{text.strip()}'")) from None
+    if dim == "temperature":
+        reg = registry()
+        return float(reg.Quantity(value, reg.Unit(unit)).to("degC").magnitude)
+    return value * factor
+
+
+# ---- formatting ------------------------------------------------------------------------
+
+_PREFIXES = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"),
+             (1e-12, "p"), (1e-15, "f")]
+_NO_PREFIX = {"°C", "°C/W", "dB", "dBm", "dBc", "%", "ppm", "", "A²s", "turns", "AWG"}
+
+
+def fmt(value: float, unit: str, digits: int = 4) -> str:
+    """A number with its SI unit as a person writes it: 455 kHz, 4.7 µF, 912 mW."""
+    if value is None or not math.isfinite(value):
+        return f"{value} {unit}".strip()
+    if unit in _NO_PREFIX or value == 0:
+        return f"{value:.{digits}g} {unit}".strip()
+    mag = abs(value)
+    for scale, prefix in _PREFIXES:
+        if mag >= scale:
+            break
+    else:
+        scale, prefix = _PREFIXES[-1]
+    return f"{value / scale:.{digits}g} {prefix}{unit}"
+
+
+def symbol(dim: str) -> str:
+    return DIMENSIONS[dim][1]

@@ -1,0 +1,188 @@
+"""The only module that talks to the YAML engine.
+
+It turns YAML text into plain Python data (dict, list, str, int, float, bool, None) and a
+table of positions keyed by the path of each value, so that every later stage can point at
+file:line:col without knowing which YAML engine read the file. Duplicate keys, aliases and
+merge keys are reported here, because the plain data can no longer show them.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+MAX_BYTES = 1_000_000  # a hand-written build plan is a few kB; refuse anything absurd
+MAX_DEPTH = 32
+MAX_INT_DIGITS = 30
+
+Path = tuple  # of str | int
+
+
+@dataclass(frozen=True, slots=True)
+class Mark:
+    line: int  # 1-based
+    col: int  # 1-based
+    end_line: int
+    end_col: int
+
+
+@dataclass(slots=True)
+class Problem:
+    kind: str  # "syntax", "duplicate-key", "alias", "limit", "encoding"
+    message: str
+    mark: Mark
+    path: Path = ()
+
+
+@dataclass(slots=True)
+class Document:
+    data: object = None
+    values: dict = field(default_factory=dict)  # path -> Mark of the value
+    keys: dict = field(default_factory=dict)  # path -> Mark of the mapping key
+    problems: list = field(default_factory=list)
+    comments: dict = field(default_factory=dict)  # line -> comment text (without '#')
+
+    def mark(self, path: Path) -> Mark:
+        """Position of the value at path, or of the nearest enclosing value."""
+        path = tuple(path)
+        while path not in self.values and path:
+            path = path[:-1]
+        return self.values.get(path, Mark(1, 1, 1, 1))
+
+    def key_mark(self, path: Path) -> Mark:
+        path = tuple(path)
+        return self.keys.get(path) or self.mark(path)
+
+
+def _mark(node) -> Mark:
+    s, e = node.start_mark, node.end_mark
+    return Mark(s.line + 1, s.column + 1, e.line + 1, e.column + 1)
+
+
+def _yaml():
+    from ruamel.yaml import YAML
+
+    try:
+        return YAML(typ="safe", pure=False)
+    except Exception:  # no C extension on this interpreter: same output, slower
+        return YAML(typ="safe", pure=True)
+
+
+_ENGINE = None
+
+
+def _engine():
+    global _ENGINE
+    if _ENGINE is None:
+        _ENGINE = _yaml()
+    return _ENGINE
+
+
+def _scalar(node, doc: Document, path: Path):
+    tag, text = node.tag, node.value
+    if tag.endswith(":str"):
+        return text
+    if tag.endswith(":null"):
+        return None
+    if tag.endswith(":bool"):
+        return text.lower() in ("true", "yes", "on")
+    if tag.endswith(":int"):
+        digits = text.replace("_", "").lstrip("+-")
+        if len(digits) > MAX_INT_DIGITS:
+            doc.problems.append(Problem("limit", f"number '{text[:40]}' has too many digits", _mark(node), path))
+            return text
+        try:
+            return int(text.replace("_", ""), 0)
+        except ValueError:
+            return text
+    if tag.endswith(":float"):
+        low = text.lower()
+        if low in (".nan", ".inf", "+.inf", "-.inf"):
+            return {".nan": math.nan, "-.inf": -math.inf}.get(low, math.inf)
+        try:
+            return float(text.replace("_", ""))
+        except ValueError:
+            return text
+    return text  # timestamps and other tags stay text; the schema decides
+
+
+def _convert(node, doc: Document, path: Path, depth: int, seen: set):
+    if depth > MAX_DEPTH:
+        doc.problems.append(Problem("limit", f"nesting deeper than {MAX_DEPTH} levels", _mark(node), path))
+        return None
+    if id(node) in seen:
+        doc.problems.append(Problem("alias", "YAML anchors and aliases are not accepted in a build file; "
+                                    "write the value out", doc.keys.get(path) or _mark(node), path))
+        return None
+    seen.add(id(node))
+    doc.values[path] = _mark(node)
+    kind = node.id
+    if kind == "scalar":
+        return _scalar(node, doc, path)
+    if kind == "sequence":
+        return [_convert(item, doc, path + (i,), depth + 1, seen) for i, item in enumerate(node.value)]
+    out: dict = {}
+    for key_node, value_node in node.value:
+        if key_node.id != "scalar":
+            doc.problems.append(Problem("syntax", "a mapping key must be a plain word", _mark(key_node), path))
+            continue
+        key = key_node.value
+        if key == "<<" and key_node.tag.endswith(":merge"):
+            doc.problems.append(Problem("alias", "YAML merge keys ('<<') are not accepted in a build file",
+                                        _mark(key_node), path))
+            continue
+        if key in out:
+            first = doc.keys[path + (key,)]
+            doc.problems.append(Problem(
+                "duplicate-key",
+                f"key '{key}' appears twice; the first is at line {first.line}, col {first.col}; "
+                "only one may stay",
+                _mark(key_node), path + (key,)))
+            continue
+        doc.keys[path + (key,)] = _mark(key_node)
+        out[key] = _convert(value_node, doc, path + (key,), depth + 1, seen)
+    return out
+
+
+def _comments(text: str) -> dict:
+    """Line number -> text after '#', for lines whose '#' is outside quotes (for waivers)."""
+    found = {}
+    for no, line in enumerate(text.splitlines(), 1):
+        if "#" not in line:
+            continue
+        quote = None
+        for i, ch in enumerate(line):
+            if quote:
+                if ch == quote:
+                    quote = None
+            elif ch in "'\"":
+                quote = ch
+            elif ch == "#" and (i == 0 or line[i - 1] in " \t"):
+                found[no] = line[i + 1:].strip()
+                break
+    return found
+
+
+def parse(text: str) -> Document:
+    """YAML text -> Document. Never raises for bad input: problems are recorded instead."""
+    doc = Document()
+    if len(text) > MAX_BYTES:
+        doc.problems.append(Problem("limit", f"file is larger than {MAX_BYTES // 1000} kB", Mark(1, 1, 1, 1)))
+        return doc
+    from ruamel.yaml.error import MarkedYAMLError, YAMLError
+
+    try:
+        root = _engine().compose(text)
+    except MarkedYAMLError as exc:
+        m = exc.problem_mark or exc.context_mark
+        line, col = (m.line + 1, m.column + 1) if m is not None else (1, 1)
+        what = exc.problem or exc.context or "not valid YAML"
+        doc.problems.append(Problem("syntax", f"YAML syntax: {what}", Mark(line, col, line, col)))
+        return doc
+    except (YAMLError, ValueError, RecursionError) as exc:
+        doc.problems.append(Problem("syntax", f"YAML syntax: {exc}".splitlines()[0][:200], Mark(1, 1, 1, 1)))
+        return doc
+    if root is not None:
+        doc.data = _convert(root, doc, (), 0, set())
+    doc.comments = _comments(text)
+    return doc

@@ -1,0 +1,38 @@
+"""Shared test helpers: check a YAML text, pick findings, find the line a text sits on."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from speccheck import engine
+from speccheck.config import Settings
+
+ROOT = Path(__file__).resolve().parent.parent
+EXAMPLES = ROOT / "examples"
+CLEAN = EXAMPLES / "vhf-monitor-455k.yaml"
+
+
+def check(text: str, file: str = "plan.yaml", settings: Settings | None = None):
+    return engine.check_text(text, file, settings)
+
+
+def of(result, rule: str) -> list:
+    return [f for f in result.findings if f.rule == rule]
+
+
+def line_of(text: str, needle: str, nth: int = 0) -> int:
+    """1-based line of the nth line containing needle."""
+    hits = [i for i, line in enumerate(text.splitlines(), 1) if needle in line]
+    return hits[nth]
+
+
+def edited(text: str, old: str, new: str) -> str:
+    assert text.count(old) == 1, f"{old!r} must appear exactly once"
+    return text.replace(old, new)
+
+
+@pytest.fixture
+def clean_text() -> str:
+    return CLEAN.read_text("utf-8")
