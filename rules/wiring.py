@@ -80,6 +80,8 @@ def _check_coil_return(build, ctx, dev, pin_net, coil):
                        stage=_stage(build, coil.name, "discriminator"))
         return
     pot = nets.dc(far)
+    if pot is not None and pot.origin == pin_net:
+        pot = None  # the pin's own bias, seen back through the coil: says nothing about the return
     if to_ground or (pot is not None and abs(pot.volts) < DC_THRESHOLD):
         via = to_ground[0][0].name if to_ground else None
         ctx.report(f"{coil.name} returns {pin_net} to node {far}, which sits at 0 V"

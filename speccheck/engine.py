@@ -4,6 +4,8 @@ design sheet. Rules never see YAML, reporters never see rules' internals."""
 from __future__ import annotations
 
 import hashlib
+import os
+import re
 import traceback
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -71,10 +73,24 @@ def run_rules(build, result: FileResult, settings: Settings):
                 stage="internal"))
 
 
-def _fingerprint(f: Finding, seen: dict) -> str:
-    """Stable across unrelated edits: rule, file name, document path and message shape, not line."""
-    shape = "".join(ch for ch in f.message if not ch.isdigit())
-    base = f"{f.rule}|{Path(f.location.file).as_posix()}|{f.location.path}|{shape}"
+_NUMBER = re.compile(r"[-+]?\d+(?:[.,]\d+)*(?:[eE][-+]?\d+)?")
+
+
+def fingerprint_file(file: str, settings: Settings) -> str:
+    """The file as a fingerprint sees it: from the project root, so that a check run from a
+    sub-folder, or with './' in front, gives the same identity."""
+    if file.startswith("<"):
+        return file
+    rel = settings.relative(file)
+    return rel if rel is not None else Path(os.path.normpath(file)).as_posix()
+
+
+def _fingerprint(f: Finding, seen: dict, file: str) -> str:
+    """Stable across unrelated edits: rule, file (from the project root), document path and the
+    message with its numbers blanked; never the line or column, which move when lines are
+    inserted above. Equal bases are told apart by their order in the file."""
+    shape = _NUMBER.sub("#", f.message)
+    base = f"{f.rule}|{file}|{f.location.path}|{shape}"
     n = seen.get(base, 0)
     seen[base] = n + 1
     return hashlib.sha256(f"{base}|{n}".encode()).hexdigest()[:32]
@@ -86,8 +102,12 @@ def finish(result: FileResult, settings: Settings):
         f.level = settings.level_for(f.rule, f.level)
     result.findings.sort(key=Finding.sort_key)
     seen: dict = {}
+    files: dict = {}
     for f in result.findings:
-        f.fingerprint = _fingerprint(f, seen)
+        file = files.get(f.location.file)
+        if file is None:
+            file = files[f.location.file] = fingerprint_file(f.location.file, settings)
+        f.fingerprint = _fingerprint(f, seen, file)
 
 
 def check_loaded(loaded: loader.Loaded, settings: Settings) -> FileResult:

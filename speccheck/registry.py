@@ -24,6 +24,7 @@ class Rule:
     source: str
     check: Callable | None = field(default=None, compare=False)
     settings: dict = field(default_factory=dict, compare=False)  # setting name -> default value
+    verify: str = ""  # how to confirm the finding (or its fix) on the bench, in plain words
 
     @property
     def family(self) -> str:
@@ -48,12 +49,13 @@ def _clean(text: str) -> str:
 
 
 def define(id: str, *, level: str, title: str, explanation: str, fix: str, source: str,
-           settings: dict | None = None, check: Callable | None = None) -> Rule:
+           settings: dict | None = None, check: Callable | None = None, verify: str = "") -> Rule:
     if level not in LEVELS:
         raise ValueError(f"{id}: level must be one of {LEVELS}")
     if id in RULES and RULES[id].check is not check:
         raise ValueError(f"rule id {id} is defined twice")
-    made = Rule(id, level, title, _clean(explanation), _clean(fix), source, check, dict(settings or {}))
+    made = Rule(id, level, title, _clean(explanation), _clean(fix), source, check, dict(settings or {}),
+                _clean(verify))
     RULES[id] = made
     return made
 
@@ -89,6 +91,7 @@ def load_rules() -> dict[str, Rule]:
     global _LOADED
     if not _LOADED:
         import speccheck.loader  # noqa: F401  (defines the input.* family)
+        import speccheck.waivers  # noqa: F401  (defines the review.* family)
 
         families = _import_families()
         for name in families.FAMILIES:

@@ -26,11 +26,30 @@ def parts_file_schema() -> dict:
             "$defs": build["$defs"]}
 
 
+def inline_refs(node, defs: dict):
+    """The schema with every local '#/$defs/...' reference replaced by its target.
+
+    Same meaning, but jsonschema no longer resolves a reference at each use, which was a
+    third of the time of checking a file. The format has no recursive definitions.
+    """
+    if isinstance(node, dict):
+        ref = node.get("$ref", "")
+        if ref.startswith("#/$defs/"):
+            target = inline_refs(defs[ref[len("#/$defs/"):]], defs)
+            rest = {k: inline_refs(v, defs) for k, v in node.items() if k != "$ref"}
+            return {**target, **rest}
+        return {k: inline_refs(v, defs) for k, v in node.items() if k != "$defs"}
+    if isinstance(node, list):
+        return [inline_refs(v, defs) for v in node]
+    return node
+
+
 @lru_cache(maxsize=2)
 def validator(kind: str = "build"):
     from jsonschema import Draft202012Validator
 
-    return Draft202012Validator(build_schema() if kind == "build" else parts_file_schema())
+    published = build_schema() if kind == "build" else parts_file_schema()
+    return Draft202012Validator(inline_refs(published, published["$defs"]))
 
 
 def dotted(path) -> str:

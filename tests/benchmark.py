@@ -1,0 +1,116 @@
+"""Benchmark: speccheck against the YAML loader alone, measured in the same run.
+
+    python tests/benchmark.py [--files 1000] [--repeat 5]
+
+Generates a corpus of build files shaped like the shipped examples, then reports
+- per-file time of a full check in one process, next to the time ruamel.yaml's own loader
+  (the C-accelerated safe loader) needs to read the same files: target ratio <= 2;
+- peak memory (max RSS) after 10 %, 50 % and 100 % of the corpus: target flat;
+- cold start of one `speccheck check` next to `python -c "import ruamel.yaml, jsonschema, pint, click"`:
+  target ratio <= 1.5.
+Not a unit test: timings belong here, where the floor is measured beside them.
+"""
+
+from __future__ import annotations
+
+import argparse
+import random
+import resource
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+EXAMPLES = sorted((ROOT / "examples").glob("*.yaml"))
+
+
+def make_corpus(folder: Path, count: int) -> list[Path]:
+    """Copies of the examples with values nudged, so that no two files are the same text."""
+    rng = random.Random(1)
+    texts = [p.read_text("utf-8") for p in EXAMPLES]
+    out = []
+    for i in range(count):
+        text = texts[i % len(texts)]
+        text = text.replace("ambient_max: 40 degC", f"ambient_max: {rng.randint(20, 45)} degC")
+        text = text.replace("ambient_max: 30 degC", f"ambient_max: {rng.randint(20, 45)} degC")
+        text = text.replace("name: ", f"name: unit {i} ", 1)
+        path = folder / f"build-{i:05d}.yaml"
+        path.write_text(text, "utf-8")
+        out.append(path)
+    return out
+
+
+def max_rss_mb() -> float:
+    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
+
+
+def time_yaml_alone(files) -> float:
+    from ruamel.yaml import YAML
+
+    yaml = YAML(typ="safe", pure=False)
+    start = time.perf_counter()
+    for path in files:
+        yaml.load(path.read_text("utf-8"))
+    return (time.perf_counter() - start) / len(files)
+
+
+def time_full_check(files) -> tuple[float, list[float]]:
+    from speccheck import engine
+
+    engine.check_file(files[0])  # warm: registry, unit registry, schema validator
+    marks = {max(1, len(files) // 10), max(1, len(files) // 2), len(files)}
+    rss = []
+    start = time.perf_counter()
+    for i, path in enumerate(files, 1):
+        engine.check_file(path)
+        if i in marks:
+            rss.append(max_rss_mb())
+    return (time.perf_counter() - start) / len(files), rss
+
+
+def cold(cmd: list[str], repeat: int) -> float:
+    runs = []
+    for _ in range(repeat):
+        start = time.perf_counter()
+        subprocess.run(cmd, capture_output=True, check=False)
+        runs.append(time.perf_counter() - start)
+    return statistics.median(runs)
+
+
+def main(argv=None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--files", type=int, default=1000)
+    ap.add_argument("--repeat", type=int, default=5, help="cold-start runs of each command (median)")
+    args = ap.parse_args(argv)
+    ok = True
+    with tempfile.TemporaryDirectory() as tmp:
+        files = make_corpus(Path(tmp), args.files)
+        yaml_t = min(time_yaml_alone(files) for _ in range(2))
+        check_t, rss = time_full_check(files)
+        ratio = check_t / yaml_t
+        print(f"corpus: {len(files)} files made from {len(EXAMPLES)} examples")
+        print(f"YAML loader alone (ruamel.yaml safe, C): {yaml_t * 1e3:.2f} ms/file")
+        print(f"full check (speccheck engine):           {check_t * 1e3:.2f} ms/file")
+        print(f"ratio check / YAML:                      {ratio:.2f}  (target <= 2.0)")
+        ok &= ratio <= 2.0
+        growth = rss[-1] - rss[0]
+        print("max RSS at 10% / 50% / 100%:             " + " / ".join(f"{r:.1f}" for r in rss) + " MB"
+              f"  (growth {growth:+.1f} MB; target flat, under 5 MB)")
+        ok &= growth < 5.0
+    floor = cold([sys.executable, "-c", "import ruamel.yaml, jsonschema, pint, click"], args.repeat)
+    exe = Path(sys.executable).with_name("speccheck")
+    cmd = [str(exe)] if exe.exists() else [sys.executable, "-m", "speccheck"]
+    tool = cold(cmd + ["check", str(ROOT / "examples" / "vhf-monitor-455k.yaml")], args.repeat)
+    print(f"cold start, import line:                 {floor * 1e3:.0f} ms")
+    print(f"cold start, speccheck check example:     {tool * 1e3:.0f} ms")
+    print(f"ratio:                                   {tool / floor:.2f}  (target <= 1.5)")
+    ok &= tool / floor <= 1.5
+    print("all targets met" if ok else "TARGET MISSED")
+    return 0 if ok else 1
+
+
+if __name__ == "__main__":
+    sys.exit(main())
