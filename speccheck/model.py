@@ -134,6 +134,7 @@ class Supply(Located):
     series_resistor: str = plain(None)
     reverse_protection: str = plain(None)
     wire_gauge: int = plain(None)
+    source_resistance: Q = qty("resistance")
     mains: Mains = sub(Mains)
     note: str = plain(None)
 
@@ -204,6 +205,7 @@ class Device(Located):
     profile_name: str = plain("", key="profile")
     rail: str = plain(None)
     output_rail: str = plain(None)
+    negative_rail: str = plain(None)
     theta_ja: Q = qty("thermal_resistance")
     heat_sink: HeatSink = sub(HeatSink)
     load_current: Q = qty("current")
@@ -268,6 +270,7 @@ class Part(Located):
     primary_voltage: Q = qty("voltage")
     secondary_voltage: Q = qty("voltage")
     forward_voltage: Q = qty("voltage")
+    melting_i2t: Q = qty("i2t")
     note: str = plain(None)
 
     @property

@@ -1,15 +1,55 @@
-"""Reporters turn results into text. They read FileResults and rule metadata only."""
+"""Reporters turn results into text. They read FileResults and rule metadata only.
+
+Every format shows the same findings: waived ones are kept and marked with their reason,
+findings hidden by a baseline are counted, and the safety cautions come first."""
 
 from __future__ import annotations
 
-FORMATS = ("text", "json")
+from dataclasses import dataclass, field
+
+FORMATS = ("text", "json", "sarif", "markdown")
 
 
-def render(fmt: str, results, settings, color: bool = False) -> str:
+@dataclass
+class RunInfo:
+    """What a run knows beyond the per-file results."""
+
+    skipped: list = field(default_factory=list)  # YAML files in folders that are not build files
+    excluded: list = field(default_factory=list)  # build files the project file's globs leave out
+    hidden: dict = field(default_factory=dict)  # file path -> findings hidden by the baseline
+    baseline: str = ""  # the baseline file, if one was used
+    config: str = ""  # the project file, if one was used
+
+    @property
+    def hidden_total(self) -> int:
+        return sum(self.hidden.values())
+
+
+def waived_count(results) -> int:
+    return sum(1 for r in results for f in r.findings if f.waived)
+
+
+def totals(results) -> dict:
+    """Open findings by level (waived ones not included) and the waived count."""
+    out = {"error": 0, "warning": 0, "note": 0, "waived": 0}
+    for r in results:
+        for f in r.findings:
+            out["waived" if f.waived else f.level] += 1
+    return out
+
+
+def render(fmt: str, results, settings, color: bool = False, run: RunInfo | None = None) -> str:
+    run = run or RunInfo()
     if fmt == "text":
         from speccheck.reporters.text import render as out
-        return out(results, settings, color=color)
+        return out(results, settings, color=color, run=run)
     if fmt == "json":
         from speccheck.reporters.json import render as out
-        return out(results, settings)
+        return out(results, settings, run=run)
+    if fmt == "sarif":
+        from speccheck.reporters.sarif import render as out
+        return out(results, settings, run=run)
+    if fmt == "markdown":
+        from speccheck.reporters.markdown import render as out
+        return out(results, settings, run=run)
     raise ValueError(f"unknown format {fmt}")

@@ -22,22 +22,26 @@ def sheet_dict(entry) -> dict:
     return {"section": entry.section, "owner": entry.owner, "rule": entry.rule, **entry.value.as_dict()}
 
 
-def file_dict(result) -> dict:
+def file_dict(result, hidden: int = 0) -> dict:
     return {"path": result.path, "build": result.build_name, "checked": result.checked,
-            "counts": result.counts(), "cautions": list(result.cautions),
+            "counts": result.counts(), "waived": sum(1 for f in result.findings if f.waived),
+            "hidden_by_baseline": hidden, "cautions": list(result.cautions),
             "findings": [finding_dict(f) for f in result.findings]}
 
 
-def report(results, settings) -> dict:
-    totals = {"error": 0, "warning": 0, "note": 0, "waived": 0}
-    for r in results:
-        for f in r.findings:
-            totals["waived" if f.waived else f.level] += 1
+def report(results, settings, run=None) -> dict:
+    from speccheck.reporters import RunInfo, totals
+
+    run = run or RunInfo()
+    counted = totals(results)
+    counted["hidden_by_baseline"] = run.hidden_total
     return {"report": "speccheck-findings", "version": REPORT_VERSION,
             "tool": {"name": "speccheck", "version": __version__},
-            "fail_level": settings.fail_level, "totals": totals,
-            "files": [file_dict(r) for r in results]}
+            "fail_level": settings.fail_level, "project_file": run.config or None,
+            "baseline": run.baseline or None, "totals": counted,
+            "files": [file_dict(r, run.hidden.get(r.path, 0)) for r in results],
+            "skipped": [str(p) for p in run.skipped], "excluded": [str(p) for p in run.excluded]}
 
 
-def render(results, settings) -> str:
-    return json.dumps(report(results, settings), indent=2, ensure_ascii=False) + "\n"
+def render(results, settings, run=None) -> str:
+    return json.dumps(report(results, settings, run), indent=2, ensure_ascii=False) + "\n"

@@ -31,23 +31,31 @@ def finding_lines(f, color: bool = False) -> list[str]:
     return lines
 
 
-def render(results, settings, color: bool = False) -> str:
+def tail_line(results, run) -> str:
+    from speccheck.reporters import totals
+
+    counts = totals(results)
+    tail = f"speccheck: {_plural(len(results), 'file')} checked: {counts_line(counts)}"
+    extra = []
+    if counts["waived"]:
+        extra.append(f"{counts['waived']} waived")
+    if run is not None and run.baseline:
+        extra.append(f"{run.hidden_total} hidden by the baseline")
+    if extra:
+        tail += f" ({', '.join(extra)})"
+    return tail
+
+
+def render(results, settings, color: bool = False, run=None) -> str:
     out: list[str] = []
-    total = {level: 0 for level in LEVELS}
-    waived = 0
     for result in results:
         if result.cautions:
             out.append(f"{result.path}: SAFETY CAUTIONS for this build:")
             out.extend(f"  ! {c}" for c in result.cautions)
         for f in result.findings:
             out.extend(finding_lines(f, color))
-            if f.waived:
-                waived += 1
-            else:
-                total[f.level] += 1
-    files = _plural(len(results), "file")
-    tail = f"speccheck: {files} checked: {counts_line(total)}"
-    if waived:
-        tail += f" ({waived} waived)"
-    out.append(tail)
+    if run is not None:
+        out.extend(f"{path}: note: skipped, not a build file (no 'build_spec:' key)" for path in run.skipped)
+        out.extend(f"{path}: note: skipped, excluded by the project file" for path in run.excluded)
+    out.append(tail_line(results, run))
     return "\n".join(out) + "\n"
