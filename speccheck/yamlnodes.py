@@ -15,6 +15,8 @@ from dataclasses import dataclass, field
 MAX_BYTES = 1_000_000  # a hand-written build plan is a few kB; refuse anything absurd
 MAX_DEPTH = 32
 MAX_INT_DIGITS = 30
+MAX_BRACKETS = 5000  # the C composer recurses per level and overflows the C stack near 50 000
+_COMPACT_DASHES = re.compile(r"(?:^|:[ \t])[ \t]*(?:[-?:][ \t]+){%d,}" % (MAX_DEPTH + 1), re.MULTILINE)
 
 Path = tuple  # of str | int
 
@@ -213,11 +215,31 @@ def _comments(text: str) -> dict:
     return found
 
 
+def _nesting_trouble(text: str) -> str | None:
+    """Refuse, before composing, text that could nest deep enough to crash the C composer.
+
+    Block nesting needs indentation, so within the size limit it stays shallow; flow brackets
+    and compact '- - -' or '? ? ?' indicators do not, so they are bounded here.
+    """
+    brackets = text.count("[") + text.count("{")
+    if brackets > MAX_BRACKETS:
+        return f"{brackets} brackets: more than a build plan ever needs ({MAX_BRACKETS})"
+    match = _COMPACT_DASHES.search(text)
+    if match:
+        line = text.count("\n", 0, match.start()) + 1
+        return f"line {line}: sequences nested deeper than {MAX_DEPTH} levels"
+    return None
+
+
 def parse(text: str) -> Document:
     """YAML text -> Document. Never raises for bad input: problems are recorded instead."""
     doc = Document()
     if len(text) > MAX_BYTES:
         doc.problems.append(Problem("limit", f"file is larger than {MAX_BYTES // 1000} kB", Mark(1, 1, 1, 1)))
+        return doc
+    trouble = _nesting_trouble(text)
+    if trouble:
+        doc.problems.append(Problem("limit", trouble, Mark(1, 1, 1, 1)))
         return doc
     from ruamel.yaml.error import MarkedYAMLError, YAMLError
 

@@ -178,3 +178,27 @@ def test_any_quantity_text_parses_or_fails_cleanly(text):
 def test_any_yaml_text_loads_or_reports(text):
     result = check("build_spec: 1\n" + text)
     assert result is not None  # no exception escaped
+
+
+PATHOLOGICAL = {
+    "flow brackets": "'a: ' + '[' * 100000 + ']' * 100000",
+    "compact sequences": "'- ' * 100000 + 'x'",
+    "complex keys": "'? ' * 100000 + 'x'",
+    "mixed indicators": "'- ? ' * 50000 + 'x'",
+    "deep block indentation": "'a:\\n' + ''.join(' ' * i + '- \\n' for i in range(1, 1400))",
+    "billion laughs": "'a: &a [x, x]\\n' + ''.join(f'{chr(98 + i)}: &{chr(98 + i)} [*{chr(97 + i)}, *{chr(97 + i)}]\\n' for i in range(20))",
+}
+
+
+@pytest.mark.parametrize("name", sorted(PATHOLOGICAL))
+def test_hostile_yaml_is_refused_without_crash_or_hang(name):
+    """Run in a child process: a C-stack overflow would kill pytest itself otherwise."""
+    import subprocess
+    import sys
+
+    code = ("from speccheck import yamlnodes\n"
+            f"doc = yamlnodes.parse({PATHOLOGICAL[name]})\n"
+            "print(len(doc.problems))\n")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert out.returncode == 0, out.stderr[-500:]
+    assert int(out.stdout.strip()) >= 1
