@@ -114,8 +114,9 @@ class NetGraph:
             for part, other, step in self.links.get(net, ()):
                 new_cost = cost + step
                 new = Potential(pot.volts, f"{pot.why}, reaching {other} through {part.name}", pot.origin)
-                if other not in best:
+                if other not in best or new_cost < best[other][0]:
                     best[other] = (new_cost, new)
+                    conflicted.discard(other)
                     heapq.heappush(heap, (new_cost, other))
                 elif best[other][0] == new_cost and new_cost > 0 and abs(best[other][1].volts - pot.volts) > 1e-9:
                     conflicted.add(other)
