@@ -1,1 +1,179 @@
-"""Audio output: stabilising network, coupling-capacitor corner."""
+"""Audio output: stabilising network, coupling-capacitor corner, DC through the speaker.
+
+The coupling capacitor's orientation and voltage rating are the wiring family's
+(wiring.speaker-coupling, wiring.cap-voltage); this family does not repeat them.
+"""
+
+from __future__ import annotations
+
+import math
+
+from speccheck.findings import Value
+from speccheck.registry import rule
+from speccheck.units import fmt
+
+DC_THRESHOLD = 0.1  # V; below this a speaker counts as having no DC across it
+
+
+def rc_corner(ohms: float, farads: float) -> float:
+    """f_c = 1/(2π·R·C): the corner of a first-order RC (high-pass for a coupling capacitor
+    into its load, the turnover of a series R–C network)."""
+    return 1.0 / (2 * math.pi * ohms * farads)
+
+
+def high_pass_loss_db(f: float, corner: float) -> float:
+    """Loss of a first-order high-pass at f: 10·log10(1 + (f_c/f)²) dB."""
+    return 10 * math.log10(1 + (corner / f) ** 2)
+
+
+def _output_nets(dev) -> list:
+    if dev is None or dev.profile is None:
+        return []
+    return [f"{dev.name}.{pin.name}" for pin in dev.profile.pins.values() if pin.role == "audio-out"]
+
+
+def _network_ok(build, dev, res, cap, extra_nets=()) -> bool:
+    """The resistor and the capacitor in series from an amplifier output to ground (or across two outputs)."""
+    if len(res.ends) != 2 or len(cap.ends) != 2:
+        return False
+    shared = set(res.ends) & set(cap.ends)
+    if len(shared) != 1:
+        return False
+    middle = shared.pop()
+    far = {res.other_end(middle), cap.other_end(middle)}
+    outs = set(_output_nets(dev)) | set(extra_nets)
+    nets = build.nets
+    hits = [n for n in far if n in outs]
+    if len(hits) == 2:
+        return True  # across a bridge-tied output
+    return len(hits) == 1 and all(n in outs or nets.is_ground(n) for n in far)
+
+
+@rule("audio.output-network", level="warning",
+      title="Series R–C stabilising network across the amplifier output",
+      explanation="""
+      Many audio power amplifier ICs are stable only when their output sees a resistive load at
+      radio frequencies. A speaker is not one: its voice-coil inductance and the leads make the
+      load rise with frequency, and the amplifier may oscillate at hundreds of kilohertz,
+      running hot and distorting while nothing is audible. The usual cure is a series R–C
+      network from the output to ground, about 10 Ω with 100 nF (a turnover of 1/(2π·R·C),
+      159 kHz), well above the audio band so that it draws almost no audio power. The rule
+      follows the amplifier profile's output_network: 'required' makes a missing network an
+      error, 'recommended' a warning.
+      """,
+      fix="Add about 10 ohm in series with 100 nF from the amplifier output to ground and name them in the "
+          "stage's output_network.",
+      source="common practice (audio amplifier IC application circuits)",
+      settings={"lowest_corner": 20e3})
+def output_network(build, ctx):
+    for stage in build.stages("audio-amp"):
+        dev = build.device(stage.device)
+        want = dev.profile.output_network if dev and dev.profile else None
+        net = stage.output_network
+        if net is None:
+            if want in ("required", "recommended"):
+                ctx.report(f"profile {dev.profile.name} of {dev.name} {'requires' if want == 'required' else 'recommends'} "
+                           f"a series R–C network across its output and the {stage.label} stage has none: with the "
+                           f"speaker lead's inductance the amplifier may oscillate at RF", stage.at("kind"),
+                           level="error" if want == "required" else "warning", stage=stage.label)
+            continue
+        res, cap = build.part(net.resistor), build.part(net.capacitor)
+        if res is None or cap is None:
+            continue  # input.reference names it
+        if res.kind != "resistor" or cap.kind != "capacitor":
+            ctx.report(f"output_network of {stage.label} names {res.name} ({res.kind}) and {cap.name} ({cap.kind}); "
+                       f"expected a resistor and a capacitor", net.loc, level="note", stage=stage.label)
+            continue
+        if res.value is not None and cap.value is not None:
+            corner = rc_corner(res.value.si, cap.value.si)
+            ctx.publish("audio", stage.label, f"output network {res.name} + {cap.name} turnover", corner, "Hz")
+            lowest = ctx.setting("lowest_corner")
+            if corner < lowest:
+                ctx.report(f"output network {res.name} ({res.value.text}) + {cap.name} ({cap.value.text}) turns over at "
+                           f"{fmt(corner, 'Hz')}, inside the audio band (below {fmt(lowest, 'Hz')}): {res.name} takes audio "
+                           f"power", cap.at("value"), [Value("turnover", corner, "Hz")], stage=stage.label)
+        load = build.part(stage.load)
+        hot = [e for e in (load.ends if load else []) if not build.nets.is_ground(e)]
+        if dev is not None and not _network_ok(build, dev, res, cap, hot):
+            ctx.report(f"{res.name} and {cap.name} do not form a series R–C from {dev.name}'s output to ground "
+                       f"({res.name}: {', '.join(res.ends) or 'no ends'}; {cap.name}: {', '.join(cap.ends) or 'no ends'})",
+                       res.at("ends"), stage=stage.label)
+        if cap.polarized:
+            ctx.report(f"{cap.name} in the output network is {cap.dielectric}: the network carries RF and audio both "
+                       f"ways; use a film or ceramic capacitor", cap.at("dielectric"), stage=stage.label)
+
+
+@rule("audio.coupling-corner", level="warning",
+      title="Output coupling capacitor against the lowest audio frequency",
+      explanation="""
+      The capacitor between a single-supply amplifier's output and the speaker forms a
+      high-pass filter with the speaker's impedance: f_c = 1/(2π·R_L·C). Below f_c the bass
+      falls away at 6 dB per octave. 470 µF into 8 Ω turns over at 42.3 Hz, 1000 µF at 19.9 Hz;
+      a 4 Ω speaker needs twice the capacitance for the same corner. The corner should sit at or
+      below the lowest audio frequency the build means to reproduce (build.lowest_audio); for a
+      voice channel a few hundred hertz is plenty.
+      """,
+      fix="Use a coupling capacitor of at least 1/(2π·R_L·f_low) (the value shown), or accept the higher corner by "
+          "raising build.lowest_audio.",
+      source="first-order RC high-pass: circuit theory (cross-checked with scipy.signal in the tests)")
+def coupling_corner(build, ctx):
+    lowest = build.build.lowest_audio if build.build else None
+    unchecked = []
+    for stage in build.stages("audio-amp"):
+        cap, load = build.part(stage.coupling), build.part(stage.load)
+        if cap is None or load is None or cap.kind != "capacitor" or cap.value is None or load.value is None:
+            continue
+        corner = rc_corner(load.value.si, cap.value.si)
+        ctx.publish("audio", stage.label, f"coupling {cap.name} into {load.name} corner", corner, "Hz")
+        if lowest is None:
+            unchecked.append((stage, cap, corner))
+            continue
+        if corner <= lowest.si * (1 + 1e-9):
+            continue
+        need = 1.0 / (2 * math.pi * load.value.si * lowest.si)
+        loss = high_pass_loss_db(lowest.si, corner)
+        ctx.report(f"{cap.name} ({cap.value.text}) into {load.name} ({load.value.text}) turns over at {fmt(corner, 'Hz')}, "
+                   f"above the build's lowest audio frequency of {lowest.text}: {loss:.1f} dB down there; "
+                   f"{fmt(need, 'F')} or more keeps it", cap.at("value"),
+                   [Value("corner", corner, "Hz"), Value("lowest audio", lowest.si, "Hz"), Value("loss there", loss, "dB"),
+                    Value("capacitance needed", need, "F")], stage=stage.label)
+    if unchecked:
+        stage, cap, corner = unchecked[0]
+        ctx.report(f"build.lowest_audio is not stated: the {fmt(corner, 'Hz')} corner of {cap.name} is not checked",
+                   build.build.loc if build.build else build.loc, level="note", stage=stage.label,
+                   fix="State 'lowest_audio:' under build (300 Hz for voice, 50 Hz or lower for music).")
+
+
+@rule("audio.speaker-dc", level="error",
+      title="DC standing across the speaker",
+      explanation="""
+      A single-supply amplifier's output idles at about half the supply. Wired straight to a
+      speaker returned to ground, that DC drives a steady current through the voice coil: the
+      cone sits pushed out of its gap, the coil heats (V²/R of DC, several watts from 12 V into
+      8 Ω) and the amplifier wastes its output swing. A coupling capacitor (or a bridge-tied
+      load, whose two outputs idle at the same DC) keeps DC out of the speaker.
+      """,
+      fix="Put an electrolytic coupling capacitor (+ toward the amplifier) in series with the speaker, or return "
+          "the speaker to a net at the same DC potential.",
+      source="common practice (single-supply audio amplifier application circuits)")
+def speaker_dc(build, ctx):
+    nets = build.nets
+    for part in build.parts.values():
+        if part.kind != "speaker" or len(part.ends) != 2:
+            continue
+        a, b = part.ends
+        pa, pb = nets.dc(a), nets.dc(b)
+        if pa is None or pb is None:
+            continue
+        across = abs(pa.volts - pb.volts)
+        if across <= DC_THRESHOLD:
+            continue
+        values = [Value(a, pa.volts, "V"), Value(b, pb.volts, "V"), Value("DC across", across, "V")]
+        tail = ""
+        if part.value is not None:
+            amps, watts = across / part.value.si, across ** 2 / part.value.si
+            values += [Value("DC through the coil (at its nominal impedance)", amps, "A"), Value("DC power", watts, "W")]
+            tail = f": about {fmt(amps, 'A')} of DC ({fmt(watts, 'W')}) in the voice coil"
+        ctx.report(f"{part.name} has {fmt(across, 'V')} DC across it, {a} at {pa.volts:g} V ({pa.why}) and {b} at "
+                   f"{pb.volts:g} V{tail}", part.at("ends"), values,
+                   stage=(build.stage_of_part(part.name).label if build.stage_of_part(part.name) else "audio-amp"))

@@ -35,7 +35,10 @@ def _volts(name: str, pot) -> Value:
       well the coil is tuned.
       """,
       fix="Return the coil's far end to the supply rail, through about 10 ohm with a 100 nF bypass to ground.",
-      source="common practice (IF-chip application circuits)")
+      source="common practice (IF-chip application circuits)",
+      verify="Power up without a signal and measure the DC on the quadrature pin with a meter to ground: it "
+             "should read close to the supply rail, not 0 V. With a signal, turning the coil's slug should "
+             "swing the recovered audio through a clear peak.")
 def tank_return(build, ctx):
     nets = build.nets
     for dev in build.devices.values():
@@ -108,7 +111,9 @@ def _check_coil_return(build, ctx, dev, pin_net, coil):
       """,
       fix="Return the crystal's far end to the same potential as the pin (the bypassed supply rail), "
           "or put a series capacitor (about 1 nF) in line with it.",
-      source="common practice (crystal oscillator application circuits)")
+      source="common practice (crystal oscillator application circuits)",
+      verify="With the board powered and no crystal fitted, measure the DC between the two crystal pads: "
+             "it should be about 0 V. Fitted, the oscillator should start every time it is powered.")
 def crystal_dc(build, ctx):
     nets = build.nets
     for part in build.parts.values():
@@ -164,7 +169,9 @@ def _pin_role(build, net: str) -> str | None:
       check it.
       """,
       fix="Add 'positive: NET' naming the net at the higher DC potential.",
-      source="common practice (IEC 60384-4 marks the polarity of aluminium electrolytic capacitors)")
+      source="common practice (IEC 60384-4 marks the polarity of aluminium electrolytic capacitors)",
+      verify="Before fitting, measure the DC on both pads with the board powered: the stripe (negative) side "
+             "goes to the pad that reads lower.")
 def polarity_unstated(build, ctx):
     speaker_caps = speaker_coupling_caps(build)
     nets = build.nets
@@ -192,7 +199,9 @@ def polarity_unstated(build, ctx):
       and may vent; a tantalum can fail short and burn.
       """,
       fix="Swap the capacitor: its positive end goes to the net at the higher DC potential.",
-      source="common practice (IEC 60384-4 marks the polarity of aluminium electrolytic capacitors)")
+      source="common practice (IEC 60384-4 marks the polarity of aluminium electrolytic capacitors)",
+      verify="Power the board briefly and measure the DC from the capacitor's + lead to its - lead: it must "
+             "read positive. A reversed part warms up; switch off at once if it does.")
 def polarity_reversed(build, ctx):
     speaker_caps = speaker_coupling_caps(build)
     nets = build.nets
@@ -221,7 +230,10 @@ def polarity_reversed(build, ctx):
       """,
       fix="Note 'positive: <amplifier output net>' and fit the capacitor with + toward the amplifier, "
           "- toward the speaker.",
-      source="common practice (single-supply audio amplifier application circuits)")
+      source="common practice (single-supply audio amplifier application circuits)",
+      verify="With the speaker connected and no signal, measure the DC at the amplifier output (about half "
+             "the supply) and at the speaker terminal (about 0 V); the capacitor's + lead is on the "
+             "amplifier side. The speaker should give no click beyond a soft thump at switch-on.")
 def speaker_coupling(build, ctx):
     nets = build.nets
     for ref, (amp_net, speaker_net) in speaker_coupling_caps(build).items():
@@ -258,6 +270,8 @@ def speaker_coupling(build, ctx):
       fix="Choose a part rated well above the working voltage (the next series value above "
           "working voltage / derating share).",
       source="derating shares: common practice",
+      verify="Measure the DC across the capacitor in circuit at the highest supply voltage you will use, and "
+             "compare it with the rating printed on the part: keep it under the derating share.",
       settings={"derating": 0.8, "tantalum_derating": 0.5})
 def cap_voltage(build, ctx):
     nets = build.nets

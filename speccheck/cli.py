@@ -1,4 +1,8 @@
-"""The command line: check, explain, rules, schema."""
+"""The command line: check, baseline, explain, rules, schema, sheet, starter.
+
+Start-up stays light: only click is imported here; the engine, the rules and the reporters
+are imported inside the command that needs them.
+"""
 
 from __future__ import annotations
 
@@ -10,6 +14,59 @@ from speccheck import __version__
 from speccheck.findings import LEVELS, RANK
 
 EXIT_CLEAN, EXIT_FINDINGS, EXIT_TROUBLE = 0, 1, 2
+REPORT_FORMATS = ("text", "json", "sarif", "markdown")
+
+
+def _trouble(message: str):
+    click.echo(f"speccheck: {message}", err=True)
+    sys.exit(EXIT_TROUBLE)
+
+
+def _settings(paths, config, no_config, fail_level=None, skip=()):
+    from speccheck import config as config_mod
+
+    try:
+        settings = config_mod.for_paths(paths, config, use_file=not no_config)
+        return config_mod.apply_options(settings, fail_level=fail_level, skip=skip)
+    except config_mod.ConfigError as exc:
+        for line in exc.messages:
+            click.echo(f"speccheck: {line}", err=True)
+        sys.exit(EXIT_TROUBLE)
+
+
+def _gather(paths, settings, build_files_only: bool):
+    """-> (build files to check, RunInfo); exits 2 for a path that does not exist."""
+    from speccheck import discover
+    from speccheck.reporters import RunInfo
+
+    files, skipped, missing = discover.expand(paths, named_must_be_build=build_files_only)
+    for path in missing:
+        click.echo(f"speccheck: {path}: no such file or folder", err=True)
+    if missing:
+        sys.exit(EXIT_TROUBLE)
+    run = RunInfo(skipped=[str(p) for p in skipped], config=settings.source)
+    wanted = []
+    for f in files:
+        if settings.wants(f):
+            wanted.append(f)
+        else:
+            run.excluded.append(str(f))
+    if not wanted and not run.excluded and not (build_files_only and skipped):
+        _trouble("no build files found (a build file has a 'build_spec:' key)")
+    return wanted, run
+
+
+def _jobs_option(fn):
+    return click.option("--jobs", "-j", type=click.IntRange(min=0), default=1, show_default=True,
+                        help="Check this many files at once in worker processes (0: one per CPU).")(fn)
+
+
+def _project_options(fn):
+    fn = click.option("--no-config", is_flag=True, help="Ignore any project file; use the built-in defaults.")(fn)
+    fn = click.option("--config", type=click.Path(dir_okay=False), default=None,
+                      help="The project file to use [default: speccheck-project.yaml found by walking up "
+                           "from the checked paths].")(fn)
+    return fn
 
 
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})
@@ -20,44 +77,97 @@ def main():
 
 @main.command()
 @click.argument("paths", nargs=-1, required=True, type=click.Path())
-@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text", show_default=True,
-              help="How to write the report.")
+@click.option("--format", "fmt", type=click.Choice(REPORT_FORMATS), default="text", show_default=True,
+              help="How to write the report (sarif: for code-scanning views; markdown: for a pull-request "
+                   "comment or a mentor).")
 @click.option("--fail-level", type=click.Choice(LEVELS), default=None,
-              help="Exit 1 when a finding at this level or above remains [default: error].")
+              help="Exit 1 when a finding at this level or above remains [default: the project file's, "
+                   "else error].")
 @click.option("--output", "-o", type=click.Path(dir_okay=False, writable=True), default=None,
               help="Write the report to this file instead of standard output.")
-def check(paths, fmt, fail_level, output):
+@_project_options
+@click.option("--skip", multiple=True, metavar="RULE",
+              help="Do not run this rule or family (repeatable); adds to the project file's rules.skip.")
+@click.option("--baseline", type=click.Path(dir_okay=False), default=None,
+              help="Report only findings that are not in this baseline file (see `speccheck baseline`).")
+@click.option("--build-files-only", is_flag=True,
+              help="Skip named files that are not build files (no 'build_spec:' key), as in folders; "
+                   "for hooks that pass every changed YAML file.")
+@_jobs_option
+def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, build_files_only, jobs):
     """Check build plans (files, or folders holding them).
 
     Exit 0 when nothing at the fail level remains, 1 when something does, 2 when speccheck
-    could not do its job (a path that does not exist, a file it cannot read).
+    could not do its job (a path that does not exist, a file it cannot read, a wrong project
+    file or baseline).
     """
     from speccheck import discover, engine, reporters
-    from speccheck.config import Settings
 
-    settings = Settings()
-    if fail_level:
-        settings.fail_level = fail_level
-    files, _skipped, missing = discover.expand(paths)
-    for path in missing:
-        click.echo(f"speccheck: {path}: no such file or folder", err=True)
-    if missing:
-        sys.exit(EXIT_TROUBLE)
-    if not files:
-        click.echo("speccheck: no build files found (a build file has a 'build_spec:' key)", err=True)
-        sys.exit(EXIT_TROUBLE)
-    results = [engine.check_file(f, settings) for f in files]
+    settings = _settings(paths, config, no_config, fail_level, skip)
+    files, run = _gather(paths, settings, build_files_only)
+    known = None
+    if baseline:
+        from speccheck import baseline as baseline_mod
+
+        try:
+            known = baseline_mod.load(baseline)
+        except baseline_mod.BaselineError as exc:
+            _trouble(str(exc))
+    results = discover.check_files(files, settings, jobs)
+    if known is not None:
+        from speccheck import baseline as baseline_mod
+
+        run.baseline = baseline
+        run.hidden = baseline_mod.hide(results, known)
     color = fmt == "text" and output is None and sys.stdout.isatty()
-    text = reporters.render(fmt, results, settings, color=color)
+    text = reporters.render(fmt, results, settings, color=color, run=run)
     if output:
-        with open(output, "w", encoding="utf-8") as fh:
-            fh.write(text)
+        try:
+            with open(output, "w", encoding="utf-8") as fh:
+                fh.write(text)
+        except OSError as exc:
+            _trouble(f"{output}: cannot write the report: {exc.strerror}")
+        from speccheck.reporters.text import tail_line
+
+        click.echo(f"{tail_line(results, run)}; report written to {output}", err=True)
     else:
         click.echo(text, nl=False)
     if any(f.rule == "input.unreadable" for r in results for f in r.findings):
         sys.exit(EXIT_TROUBLE)
     worst = engine.worst(results)
     sys.exit(EXIT_FINDINGS if worst and RANK[worst] >= RANK[settings.fail_level] else EXIT_CLEAN)
+
+
+@main.command("baseline")
+@click.argument("paths", nargs=-1, required=True, type=click.Path())
+@click.option("--output", "-o", type=click.Path(dir_okay=False, writable=True), required=True,
+              help="The baseline file to write (JSON).")
+@_project_options
+@_jobs_option
+def baseline_cmd(paths, output, config, no_config, jobs):
+    """Record the current findings, so that later checks report only new ones.
+
+    A club adopting speccheck on an existing repository writes a baseline once and commits
+    it; `speccheck check --baseline FILE` then hides every finding the baseline knows (matched
+    by its stable fingerprint) and says how many it hid.
+    """
+    from speccheck import baseline as baseline_mod
+    from speccheck import discover
+
+    settings = _settings(paths, config, no_config)
+    files, _run = _gather(paths, settings, False)
+    results = discover.check_files(files, settings, jobs)
+    text = baseline_mod.dumps(results, settings)
+    try:
+        with open(output, "w", encoding="utf-8") as fh:
+            fh.write(text)
+    except OSError as exc:
+        _trouble(f"{output}: cannot write the baseline: {exc.strerror}")
+    count = sum(len(r.findings) for r in results)
+    click.echo(f"speccheck: wrote {count} finding{'' if count == 1 else 's'} from {len(results)} "
+               f"file{'' if len(results) == 1 else 's'} to {output}", err=True)
+    if any(f.rule == "input.unreadable" for r in results for f in r.findings):
+        sys.exit(EXIT_TROUBLE)
 
 
 @main.command()
@@ -78,10 +188,12 @@ def explain(rule_id):
     click.echo(f"{found.id} ({found.level}): {found.title}\n")
     click.echo(click.wrap_text(found.explanation, 88, preserve_paragraphs=True))
     click.echo(f"\nFix: {found.fix}")
+    if found.verify:
+        click.echo(f"Verify on the bench: {found.verify}")
     click.echo(f"Source of the numbers: {found.source}")
     if found.settings:
         shown = ", ".join(f"{k} = {v}" for k, v in found.settings.items())
-        click.echo(f"Settings (project file): {shown}")
+        click.echo(f"Settings (project file, rules.settings.{found.id}): {shown}")
 
 
 @main.command("rules")
@@ -100,7 +212,8 @@ def list_rules(family):
 @click.argument("path", type=click.Path(dir_okay=False))
 @click.option("--format", "fmt", type=click.Choice(["text", "json", "markdown"]), default="text",
               show_default=True, help="How to write the sheet.")
-def sheet(path, fmt):
+@_project_options
+def sheet(path, fmt, config, no_config):
     """Print the design sheet of one build: every value the rules derived, with units."""
     from pathlib import Path
 
@@ -110,7 +223,8 @@ def sheet(path, fmt):
     if not Path(path).exists():
         click.echo(f"speccheck: {path}: no such file", err=True)
         sys.exit(EXIT_TROUBLE)
-    result = engine.check_file(path)
+    settings = _settings([path], config, no_config)
+    result = engine.check_file(path, settings)
     click.echo(sheet_reporter.render(result, fmt), nl=False)
     blocking = [f for f in result.findings if f.rule.startswith("input.")]
     for f in blocking:
@@ -120,10 +234,54 @@ def sheet(path, fmt):
 
 
 @main.command()
-def schema():
-    """Print the JSON Schema of the build format (for editors and other tools)."""
+@click.argument("kind", type=click.Choice(["build", "project"]), default="build", required=False)
+def schema(kind):
+    """Print a JSON Schema: of the build format (default), or of the project file."""
     from importlib import resources
 
+    from speccheck.config import PROJECT_SCHEMA
     from speccheck.schema import SCHEMA_FILE
 
-    click.echo(resources.files("speccheck").joinpath("schema", SCHEMA_FILE).read_text("utf-8"), nl=False)
+    name = SCHEMA_FILE if kind == "build" else PROJECT_SCHEMA
+    click.echo(resources.files("speccheck").joinpath("schema", name).read_text("utf-8"), nl=False)
+
+
+@main.command()
+@click.option("--layout", default=None, metavar="NAME",
+              help="Which configuration to start from; `--list` shows them.")
+@click.option("--list", "list_layouts", is_flag=True, help="List the layouts and exit.")
+@click.option("--output", "-o", type=click.Path(dir_okay=False, writable=True), default=None,
+              help="Write the starter to this file instead of standard output.")
+@click.option("--force", is_flag=True, help="Overwrite the output file if it exists.")
+def starter(layout, list_layouts, output, force):
+    """Write a commented starter build file that checks clean as written."""
+    from pathlib import Path
+
+    from speccheck import starters
+
+    if list_layouts or not layout:
+        for name, about in starters.LAYOUTS.items():
+            click.echo(f"{name:20} {about}")
+        if not list_layouts:
+            click.echo("\nspeccheck: choose one with --layout NAME", err=True)
+            sys.exit(EXIT_TROUBLE)
+        return
+    if layout not in starters.LAYOUTS:
+        import difflib
+
+        close = difflib.get_close_matches(layout, list(starters.LAYOUTS), n=1)
+        hint = f"; did you mean '{close[0]}'?" if close else ""
+        _trouble(f"no starter layout '{layout}'{hint} (`speccheck starter --list` shows them)")
+    text = starters.text(layout)
+    if output is None:
+        click.echo(text, nl=False)
+        return
+    target = Path(output)
+    if target.exists() and not force:
+        _trouble(f"{output} exists; add --force to overwrite it")
+    try:
+        target.write_text(text, encoding="utf-8")
+    except OSError as exc:
+        _trouble(f"{output}: cannot write: {exc.strerror}")
+    click.echo(f"speccheck: wrote the {layout} starter to {output}; check it with `speccheck check {output}`",
+               err=True)

@@ -140,12 +140,6 @@ def _schema():
     return json.loads(resources.files("speccheck").joinpath("schema", PROJECT_SCHEMA).read_text("utf-8"))
 
 
-def project_schema_text() -> str:
-    from importlib import resources
-
-    return resources.files("speccheck").joinpath("schema", PROJECT_SCHEMA).read_text("utf-8")
-
-
 def _suggest(word, choices) -> str:
     close = difflib.get_close_matches(str(word), [str(c) for c in choices], n=1)
     return f"; did you mean '{close[0]}'?" if close else ""
@@ -153,11 +147,16 @@ def _suggest(word, choices) -> str:
 
 class _Reader:
     def __init__(self, file: str, doc):
-        self.file, self.doc, self.errors = file, doc, []
+        self.file, self.doc, self.errors, self._at = file, doc, [], []
 
     def error(self, path, message: str, at_key: bool = False):
         mark = self.doc.key_mark(tuple(path)) if at_key else self.doc.mark(tuple(path))
         self.errors.append(f"{self.file}:{mark.line}:{mark.col}: {message}")
+        self._at.append((mark.line, mark.col))
+
+    def sorted(self) -> list[str]:
+        at = self._at + [(0, 0)] * (len(self.errors) - len(self._at))
+        return [e for _, e in sorted(zip(at, self.errors), key=lambda pair: pair[0])]
 
 
 def _schema_errors(reader: _Reader, data):
@@ -259,7 +258,7 @@ def load_project(path) -> Settings:
                            "files, fail_level)"])
     _schema_errors(reader, data)
     if reader.errors:
-        raise ConfigError(reader.errors)
+        raise ConfigError(reader.sorted())
 
     rules = registry.load_rules()
     settings = Settings(source=file, root=str(Path(os.path.abspath(path)).parent))
@@ -290,7 +289,7 @@ def load_project(path) -> Settings:
                 reader.error(where + (name,), f"{rule_id}.{name} should be {_kind(default)} like its default "
                              f"{default!r}, got {value!r}")
     if reader.errors:
-        raise ConfigError(reader.errors)
+        raise ConfigError(reader.sorted())
 
     if "fail_level" in data:
         settings.fail_level = data["fail_level"]

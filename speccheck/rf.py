@@ -8,7 +8,6 @@ named beside it there.
 
 from __future__ import annotations
 
-import cmath
 import math
 from decimal import ROUND_HALF_UP, Decimal
 
@@ -72,7 +71,8 @@ def bandwidth_code(hz: float) -> str:
 def emission_class(modulation: str, service: str | None) -> str | None:
     """The three class symbols of Radio Regulations Appendix 1 for the signals a build
     carries: F3E FM telephony / sound broadcasting, F2D FM data on a subcarrier, A3E
-    double-sideband AM telephony, J3E single sideband suppressed carrier, A1A on-off keying."""
+    double-sideband AM telephony, J3E single sideband suppressed carrier, A1A on-off keying
+    (the symbol table is recalled from memory; F3E is the issue's published check value)."""
     if modulation == "fm":
         return "F2D" if service == "data" else "F3E"
     return {"am": "A3E", "ssb": "J3E", "cw": "A1A"}.get(modulation)
@@ -133,6 +133,15 @@ def coil_parallel_resistance(q: float, f0: float, inductance: float) -> float:
 
 def parallel(*resistances: float) -> float:
     return 1.0 / sum(1.0 / r for r in resistances)
+
+
+def rc_corner(time_constant: float) -> float:
+    """-3 dB corner of a first-order RC (de-emphasis or low-pass): f = 1 / (2 pi tau)."""
+    return 1.0 / (TWO_PI * time_constant)
+
+
+def rc_time_constant(corner: float) -> float:
+    return 1.0 / (TWO_PI * corner)
 
 
 # ---- crystal ------------------------------------------------------------------------------
@@ -255,6 +264,3 @@ def toroid_inductance(turns: float, al: float) -> float:
     """L = AL N^2."""
     return al * turns * turns
 
-
-def phasor_polar(z: complex) -> tuple[float, float]:
-    return abs(z), math.degrees(cmath.phase(z))

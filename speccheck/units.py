@@ -174,19 +174,33 @@ _PREFIXES = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, 
 _NO_PREFIX = {"°C", "°C/W", "dB", "dBm", "dBc", "%", "ppm", "", "A²s", "turns", "AWG"}
 
 
-def fmt(value: float, unit: str, digits: int = 4) -> str:
-    """A number with its SI unit as a person writes it: 455 kHz, 4.7 µF, 912 mW."""
+def fmt(value: float, unit: str, digits: int | None = None) -> str:
+    """A number with its SI unit as a person writes it: 455 kHz, 4.7 µF, 912 mW.
+
+    A frequency that is exact in up to 7 significant digits is shown exactly (a 10.245 MHz
+    oscillator must not read 10.24 MHz); a computed one (a corner of 423.2844... Hz) and
+    every other quantity gets 4.
+    """
     if value is None or not math.isfinite(value):
         return f"{value} {unit}".strip()
     if unit in _NO_PREFIX or value == 0:
-        return f"{value:.{digits}g} {unit}".strip()
+        return f"{value:.{digits or 4}g} {unit}".strip()
     mag = abs(value)
     for scale, prefix in _PREFIXES:
         if mag >= scale:
             break
     else:
         scale, prefix = _PREFIXES[-1]
-    return f"{value / scale:.{digits}g} {prefix}{unit}"
+    scaled = value / scale
+    return f"{scaled:.{digits or _digits(scaled, unit)}g} {prefix}{unit}"
+
+
+def _digits(value: float, unit: str) -> int:
+    if unit == "Hz":
+        for digits in (4, 5, 6, 7):
+            if abs(float(f"{value:.{digits}g}") - value) <= 1e-9 * abs(value):
+                return digits
+    return 4
 
 
 def symbol(dim: str) -> str:

@@ -40,7 +40,7 @@ _OWN["review.waiver-reason"] = define("review.waiver-reason", level="warning",
        silenced, and nobody can tell when the reason stops holding. speccheck therefore does not
        honour a waiver without a reason: the finding it names stays open.
        """,
-       fix="Write the reason after the word 'because': `# waive RULE-ID because <why this is acceptable here>`.",
+       fix="Write the reason after the word 'because': `# waive RULE-ID because REASON` (why it is acceptable here).",
        source="speccheck waiver syntax",
        verify="Re-run the check: the finding shows as waived with your reason, and this finding is gone.")
 

@@ -25,8 +25,13 @@ class RunInfo:
         return sum(self.hidden.values())
 
 
-def waived_count(results) -> int:
-    return sum(1 for r in results for f in r.findings if f.waived)
+def value_dict(v) -> dict:
+    """A Value as JSON-safe data: a non-finite number (inf, nan) becomes its text, since JSON has none."""
+    out = v.as_dict()
+    x = out.get("value")
+    if isinstance(x, float) and (x != x or x in (float("inf"), float("-inf"))):
+        out["value"] = str(x)
+    return out
 
 
 def totals(results) -> dict:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import json
 
 from speccheck import __version__
+from speccheck.reporters import value_dict
 
 REPORT_VERSION = 1
 
@@ -14,12 +15,12 @@ def finding_dict(f) -> dict:
     return {"rule": f.rule, "level": f.level, "message": f.message,
             "location": {"file": loc.file, "line": loc.line, "column": loc.col, "path": loc.path,
                          "end_line": loc.end_line, "end_column": loc.end_col},
-            "values": [v.as_dict() for v in f.values], "fix": f.fix, "stage": f.stage,
+            "values": [value_dict(v) for v in f.values], "fix": f.fix, "stage": f.stage,
             "waived": f.waived is not None, "waiver_reason": f.waived, "fingerprint": f.fingerprint}
 
 
 def sheet_dict(entry) -> dict:
-    return {"section": entry.section, "owner": entry.owner, "rule": entry.rule, **entry.value.as_dict()}
+    return {"section": entry.section, "owner": entry.owner, "rule": entry.rule, **value_dict(entry.value)}
 
 
 def file_dict(result, hidden: int = 0) -> dict:

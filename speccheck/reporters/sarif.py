@@ -78,6 +78,11 @@ def artifact_location(file: str) -> dict:
     return {"uri": quote(rel.as_posix(), safe="/"), "uriBaseId": BASE_ID}
 
 
+def _folder_uri(folder: Path) -> str:
+    uri = folder.as_uri()
+    return uri if uri.endswith("/") else uri + "/"
+
+
 def region(loc) -> dict:
     out = {"startLine": max(1, loc.line), "startColumn": max(1, loc.col)}
     if loc.end_line and (loc.end_line, loc.end_col) > (loc.line, loc.col):
@@ -87,7 +92,9 @@ def region(loc) -> dict:
 
 
 def _value_props(f) -> list:
-    return [v.as_dict() for v in f.values]
+    from speccheck.reporters import value_dict
+
+    return [value_dict(v) for v in f.values]
 
 
 def result_of(f, index: dict, artifacts: dict, with_baseline: bool) -> dict:
@@ -183,7 +190,7 @@ def report(results, settings, run=None) -> dict:
         "tool": {"driver": {"name": "speccheck", "version": __version__, "semanticVersion": __version__,
                             "rules": [descriptor(r) for r in rules]}},
         "invocations": [invocation],
-        "originalUriBaseIds": {BASE_ID: {"uri": Path.cwd().as_uri() + "/"}},
+        "originalUriBaseIds": {BASE_ID: {"uri": _folder_uri(Path.cwd())}},
         "artifacts": artifact_list,
         "columnKind": "unicodeCodePoints",
         "results": out_results,

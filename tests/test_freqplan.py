@@ -1,0 +1,542 @@
+"""Frequency-plan formulas against their published check values, and each freqplan rule firing
+on a planted mistake at its line and staying quiet on the clean plan.
+
+Every expected number is typed in from the source named beside it, or computed in the test
+independently (scipy, plain arithmetic of the published formula), never taken from the code.
+"""
+
+import math
+
+import pytest
+from conftest import EXAMPLES, check, edited, line_of, of
+
+from speccheck import engine, rf
+from speccheck.config import Settings
+
+# ---- necessary bandwidth and emission designators -------------------------------------------
+
+
+def test_sm1138_narrowband_fm():
+    # ITU-R SM.1138 / Radio Regulations Appendix 1: 5 kHz deviation, 3 kHz audio -> 16 kHz, 16K0F3E
+    assert rf.necessary_bandwidth("fm", 5e3, 3e3) == pytest.approx(16e3)
+    assert rf.emission_designator(16e3, "fm", "voice") == "16K0F3E"
+
+
+def test_sm1138_broadcast_fm():
+    # ITU-R SM.1138: 75 kHz deviation (47 CFR 73.1570; ITU-R BS.450-3), 15 kHz audio -> 180 kHz, 180KF3E
+    bn = rf.necessary_bandwidth("fm", 75e3, 15e3)
+    assert bn == pytest.approx(180e3)
+    assert rf.emission_designator(bn, "fm", "broadcast") == "180KF3E"
+
+
+def test_carson_rule_matches_sm1138_for_fm():
+    # Carson's rule B = 2 (deviation + audio): 2 (75 + 15) kHz = 180 kHz, the SM.1138 value above
+    assert rf.carson_bandwidth(75e3, 15e3) == pytest.approx(180e3)
+    assert rf.carson_bandwidth(5e3, 3e3) == pytest.approx(16e3)
+
+
+@pytest.mark.parametrize("hz, code", [
+    (2.4e3, "2K40"), (12.5e3, "12K5"), (180.5e3, "181K"),   # Radio Regulations Appendix 1 (issue check values)
+])
+def test_designator_spelling_rr_appendix_1(hz, code):
+    assert rf.bandwidth_code(hz) == code
+
+
+@pytest.mark.parametrize("hz, code", [
+    # Radio Regulations Appendix 1 §1 examples, recalled from memory
+    (0.002, "H002"), (0.1, "H100"), (25.3, "25H3"), (400.0, "400H"), (6e3, "6K00"), (180.4e3, "180K"),
+    (180.7e3, "181K"), (1.25e6, "1M25"), (2e6, "2M00"), (10e6, "10M0"), (202e6, "202M"), (5.65e9, "5G65"),
+])
+def test_designator_spelling_more_examples(hz, code):
+    assert rf.bandwidth_code(hz) == code
+
+
+def test_designator_rounding_carries_into_the_next_letter():
+    # 999.5 Hz has three significant figures 1.00 kHz: written 1K00 (RR Appendix 1 rule: 1.00 to 999 per letter)
+    assert rf.bandwidth_code(999.5) == "1K00"
+
+
+# ---- conversion arithmetic and image ----------------------------------------------------------
+
+
+def test_image_textbook_tooley():
+    # Tooley, Electronic Circuits: 455 kHz IF tuned to 1200 kHz -> LO 1655 kHz, image 2110 kHz
+    lo = rf.lo_for(1200e3, 455e3, "high")
+    assert lo == pytest.approx(1655e3)
+    assert rf.image_frequency(1200e3, lo) == pytest.approx(2110e3)
+
+
+def test_low_side_lo_common_practice():
+    # common practice: 21.4 MHz converted to 455 kHz, low side, needs a 20.945 MHz oscillator
+    assert rf.lo_for(21.4e6, 455e3, "low") == pytest.approx(20.945e6)
+
+
+def test_spur_inputs_solve_the_mixing_equation():
+    # independent check: every yielded input satisfies |m fs + k fLO| = IF (the definition of a response),
+    # and the wanted low-side response fs = fLO + fIF is among them (m = 1, k = -1)
+    lo, fif = 10.245e6, 455e3
+    found = list(rf.spur_inputs(lo, fif, 5))
+    for m, k, s, fs in found:
+        assert abs(m * fs + k * lo) == pytest.approx(fif)
+    assert any(m == 1 and k == -1 and fs == pytest.approx(10.7e6) for m, k, s, fs in found)
+    assert any(m == 1 and k == -1 and fs == pytest.approx(9.79e6) for m, k, s, fs in found)  # the image
+    # the half-IF response 2 fs - 2 fLO = IF sits at fLO + IF/2 (plain arithmetic)
+    assert any(m == 2 and k == -2 and fs == pytest.approx(lo + fif / 2) for m, k, s, fs in found)
+
+
+# ---- parallel RLC, crystal, RC corners -----------------------------------------------------------
+
+
+def test_parallel_rlc_wikibooks():
+    # Wikibooks, Practical Electronics / Parallel RLC: 10.7 MHz, 1 µH, 10 kΩ -> C 221.2 pF, Q 148.7, BW 71.9 kHz
+    c = rf.capacitance_for(10.7e6, 1e-6)
+    assert c == pytest.approx(221.2e-12, rel=1e-3)
+    q = rf.parallel_q(10e3, 10.7e6, 1e-6)
+    assert q == pytest.approx(148.7, rel=1e-3)
+    assert 10.7e6 / q == pytest.approx(71.9e3, rel=1e-3)
+    assert rf.resonance(1e-6, 221.2e-12) == pytest.approx(10.7e6, rel=1e-3)
+
+
+def test_tank_1mh_120pf_near_455k_common_practice():
+    # common practice: a 1 mH coil with 120 pF resonates near 455 kHz (within the few % a slug covers)
+    assert rf.resonance(1e-3, 120e-12) == pytest.approx(455e3, rel=0.02)
+
+
+def test_crystal_pulling_check_values():
+    # crystal pulling D = C1m / (2 (C0 + CL)): 20 fF, 5 pF -> 400.0 ppm at 20 pF, 434.8 ppm at 18 pF
+    assert rf.pulling(20e-15, 5e-12, 20e-12) * 1e6 == pytest.approx(400.0, abs=0.05)
+    assert rf.pulling(20e-15, 5e-12, 18e-12) * 1e6 == pytest.approx(434.8, abs=0.05)
+    assert rf.pulling_shift(20e-15, 5e-12, 18e-12, 20e-12) * 1e6 == pytest.approx(34.8, abs=0.05)
+
+
+def test_series_load_capacitance():
+    # C_L = C1 C2 / (C1 + C2) + C_stray; two 33 pF in series are 16.5 pF (plain arithmetic), plus 4 pF stray
+    assert rf.series_load(33e-12, 33e-12, 4e-12) == pytest.approx(1 / (1 / 33e-12 + 1 / 33e-12) + 4e-12)
+
+
+@pytest.mark.parametrize("tau, corner", [(50e-6, 3183.1), (75e-6, 2122.1)])
+def test_de_emphasis_corners(tau, corner):
+    # ITU-R BS.450-3 / 47 CFR 73.317: 50 µs and 75 µs de-emphasis -> corners 3183.1 Hz and 2122.1 Hz
+    assert rf.rc_corner(tau) == pytest.approx(corner, abs=0.05)
+    assert rf.rc_time_constant(corner) == pytest.approx(tau, rel=1e-4)
+
+
+@pytest.mark.parametrize("tau", [50e-6, 75e-6])
+def test_rc_corner_against_scipy(tau):
+    # scipy.signal.freqs of 1 / (s tau + 1) gives -3.01 dB at 1/tau rad/s, i.e. at our corner in Hz
+    from scipy import signal
+
+    w, h = signal.freqs([1.0], [tau, 1.0], worN=[2 * math.pi * rf.rc_corner(tau)])
+    assert 20 * math.log10(abs(h[0])) == pytest.approx(-3.0103, abs=1e-3)
+
+
+# ---- rules on the clean plan ----------------------------------------------------------------------
+
+
+def test_clean_plan_has_no_freqplan_warning_or_error(clean_text):
+    bad = [f for f in check(clean_text).findings if f.rule.startswith("freqplan.") and f.level != "note"]
+    assert bad == [], [f.message for f in bad]
+
+
+def _sheet(result):
+    return {(e.section, e.owner, e.value.name): e.value for e in result.sheet}
+
+
+def test_clean_plan_design_sheet_lists_the_frequency_plan(clean_text):
+    sheet = _sheet(check(clean_text))
+    lo = sheet[("conversion", "conversion", "LO frequency")]
+    assert lo.unit == "Hz"
+    # LO = crystal 10.245 MHz moved by its pulling D(20.5 pF) - D(20 pF), with C1m 15 fF, C0 4 pF (formula above)
+    pull = 15e-15 / (2 * (4e-12 + 20.5e-12)) - 15e-15 / (2 * (4e-12 + 20e-12))
+    assert lo.value == pytest.approx(10.245e6 * (1 + pull))
+    assert sheet[("conversion", "conversion", "IF (nominal)")].value == pytest.approx(10.7e6 - 10.245e6 * (1 + pull))
+    spread = 500 + 20e-6 * 10.245e6  # source drift + 20 ppm of the crystal
+    assert sheet[("conversion", "conversion", "IF highest (worst case)")].value == pytest.approx(
+        10.7e6 - 10.245e6 * (1 + pull) + spread)
+    assert sheet[("conversion", "conversion", "image frequency")].value == pytest.approx(
+        2 * 10.245e6 * (1 + pull) - 10.7e6)
+    assert sheet[("signals", "repeater voice", "emission designator")].value == "16K0F3E"
+    assert sheet[("signals", "repeater voice", "necessary bandwidth (ITU-R SM.1138)")].unit == "Hz"
+    margin = sheet[("if-filter", "narrow path", "margin for repeater voice (worst case)")]
+    assert margin.unit == "Hz" and margin.value > 0
+    spurs = [k for k in sheet if k[0] == "spurs"]
+    assert any("2·fs − 2·fLO" in k[2] for k in spurs)
+    assert all(sheet[k].unit == "Hz" for k in spurs)
+    assert sheet[("discriminator", "discriminator", "tank resonance f0")].value == pytest.approx(
+        1 / (2 * math.pi * math.sqrt(1e-3 * 120e-12)))
+    for name in ("loaded Q", "linear range (f0/Q)", "tuning range low", "tuning range high"):
+        assert ("discriminator", "discriminator", name) in sheet
+    assert sheet[("crystal", "X1", "load capacitance from the oscillator")].value == pytest.approx(20.5e-12)
+    assert sheet[("crystal", "X1", "load capacitance from the oscillator")].unit == "F"
+
+
+def test_filter_in_clean_plan_passes_nbfm_with_drift(clean_text):
+    # common practice: a 455 kHz ceramic filter of ±10 kHz at 6 dB passes 16 kHz NBFM with 20 ppm and 500 Hz drift
+    assert of(check(clean_text), "freqplan.filter-fit") == []
+
+
+# ---- freqplan.conversion --------------------------------------------------------------------------
+
+
+def test_injection_side_contradiction_is_a_warning(clean_text):
+    text = edited(clean_text, "injection: low, mode", "injection: high, mode")
+    found = of(check(text), "freqplan.conversion")
+    assert [f.level for f in found] == ["warning"]
+    assert "injection is declared high side, but the LO" in found[0].message
+    assert "is below the input" in found[0].message
+    assert found[0].location.line == line_of(text, "oscillator: {crystal: X1")
+
+
+def test_conversion_without_oscillator_is_a_note(clean_text):
+    text = edited(clean_text, "    oscillator: {crystal: X1, injection: low, mode: fundamental, load_caps: [C6, C7], "
+                              "stray: 4 pF}\n", "")
+    found = of(check(text), "freqplan.conversion")
+    assert [f.level for f in found] == ["note"]
+    assert "chain[1].oscillator is not given" in found[0].message
+
+
+def test_conversion_with_no_filter_after_it_is_a_note(clean_text):
+    text = edited(clean_text, "  - stage: if-filter\n    paths:\n      narrow: {filter: FL1}\n"
+                              "      wide: {bandwidth: 180 kHz, note: \"bypass link for wideband signals\"}\n", "")
+    found = of(check(text), "freqplan.conversion")
+    assert len(found) == 1 and found[0].level == "note"
+    assert "no if-filter stage follows" in found[0].message
+
+
+def test_multi_conversion_chain_carries_the_if_and_its_spread():
+    # 45 MHz -> 10.7 MHz (high side, LO 55.7 MHz) -> 455 kHz (low side, LO 10.245 MHz): plain arithmetic
+    text = _two_conversions("10.245 MHz")
+    result = check(text)
+    sheet = _sheet(result)
+    assert sheet[("conversion", "conversion 1", "IF (nominal)")].value == pytest.approx(10.7e6)
+    assert sheet[("conversion", "conversion 2", "input frequency")].value == pytest.approx(10.7e6)
+    assert sheet[("conversion", "conversion 2", "IF (nominal)")].value == pytest.approx(455e3)
+    spread = 200 + 55.7e6 * 5e-6 + 10.245e6 * 10e-6  # source drift + both crystals' tolerance
+    assert sheet[("conversion", "conversion 2", "IF highest (worst case)")].value == pytest.approx(455e3 + spread)
+    errors = [f for f in result.findings if f.rule.startswith("freqplan.") and f.level == "error"]
+    assert errors == [], [f.message for f in errors]
+
+
+def test_multi_conversion_wrong_second_crystal_is_caught_at_its_line():
+    text = _two_conversions("10.235 MHz")
+    found = of(check(text), "freqplan.filter-fit")
+    assert [f.level for f in found] == ["error"]
+    assert found[0].location.line == line_of(text, "X2: {kind: crystal")
+    assert "does not fit the second path" in found[0].message
+
+
+def _two_conversions(x2: str) -> str:
+    return f"""build_spec: 1
+build: {{name: double conversion}}
+signals:
+  - {{name: voice, modulation: fm, deviation: 5 kHz, audio_max: 3 kHz}}
+source: {{kind: receiver-if, frequency: 45 MHz, impedance: 50 ohm, bandwidth: 100 kHz, drift: 200 Hz}}
+parts:
+  X1: {{kind: crystal, frequency: 55.7 MHz, overtone: 3, tolerance: 5 ppm}}
+  X2: {{kind: crystal, frequency: {x2}, tolerance: 10 ppm}}
+  FL1: {{kind: filter, center: 10.7 MHz, bandwidth: 30 kHz, bandwidth_at: 3 dB}}
+  FL2: {{kind: filter, center: 455 kHz, bandwidth: 20 kHz, bandwidth_at: 6 dB}}
+chain:
+  - stage: conversion
+    if_frequency: 10.7 MHz
+    oscillator: {{crystal: X1, injection: high, mode: overtone}}
+  - stage: if-filter
+    paths:
+      first: {{filter: FL1}}
+  - stage: conversion
+    if_frequency: 455 kHz
+    oscillator: {{crystal: X2, injection: low, mode: fundamental}}
+  - stage: if-filter
+    paths:
+      second: {{filter: FL2}}
+"""
+
+
+# ---- freqplan.filter-fit ------------------------------------------------------------------------
+
+
+def test_wrong_crystal_puts_the_signal_outside_the_filter(clean_text):
+    text = edited(clean_text, "frequency: 10.245 MHz", "frequency: 10.240 MHz")
+    found = of(check(text), "freqplan.filter-fit")
+    assert [f.level for f in found] == ["error"]
+    assert found[0].message.startswith("repeater voice does not fit the narrow path at the worst-case IF")
+    assert "past the passband 445 kHz to 465 kHz" in found[0].message
+    assert found[0].location.line == line_of(text, "frequency: 10.240 MHz")
+    assert found[0].location.path == "parts.X1.frequency"
+
+
+def test_thin_margin_is_a_warning_at_the_filter(clean_text):
+    # 1.5 kHz source drift: the worst-case edge comes within 2 % of the half passband; centring cannot fix it
+    text = edited(clean_text, "drift: 500 Hz", "drift: 1.5 kHz")
+    found = of(check(text), "freqplan.filter-fit")
+    assert [f.level for f in found] == ["warning"]
+    assert "fits the narrow path with only" in found[0].message
+    assert found[0].location.line == line_of(text, "FL1: {kind: filter")
+
+
+def test_margin_share_is_a_setting(clean_text):
+    settings = Settings(rule_settings={"freqplan.filter-fit": {"margin_share": 0.2}})
+    found = of(check(clean_text, settings=settings), "freqplan.filter-fit")
+    assert [f.level for f in found] == ["warning"]
+
+
+def test_crystal_off_filter_example():
+    path = EXAMPLES / "freq-crystal-off-filter.yaml"
+    found = of(engine.check_file(path), "freqplan.filter-fit")
+    assert [f.level for f in found] == ["error"]
+    assert found[0].location.line == line_of(path.read_text("utf-8"), "frequency: 10.240 MHz")
+
+
+# ---- freqplan.image --------------------------------------------------------------------------------
+
+
+def test_image_with_nothing_ahead_is_a_warning(clean_text):
+    text = edited(clean_text, "  bandwidth: 1 MHz          # the receiver's first IF bandwidth ahead of the tap\n", "")
+    found = of(check(text), "freqplan.image")
+    assert [f.level for f in found] == ["warning"]
+    assert "nothing declared ahead of the mixer rejects it" in found[0].message
+    assert found[0].location.line == line_of(text, "oscillator: {crystal: X1")
+
+
+def test_image_inside_a_wide_upstream_passband(clean_text):
+    # image at 2 fLO - fin = 9.79 MHz lies inside 10.7 MHz ± 1.5 MHz (plain arithmetic)
+    text = edited(clean_text, "bandwidth: 1 MHz ", "bandwidth: 3 MHz ")
+    found = of(check(text), "freqplan.image")
+    assert len(found) == 1 and "lies inside the upstream bandwidth" in found[0].message
+
+
+def test_image_rejected_by_the_upstream_bandwidth(clean_text):
+    assert of(check(clean_text), "freqplan.image") == []
+
+
+def test_preselector_counts_as_rejection(clean_text):
+    text = edited(clean_text, "  bandwidth: 1 MHz          # the receiver's first IF bandwidth ahead of the tap\n",
+                  "  preselector: {center: 10.7 MHz, bandwidth: 400 kHz}\n")
+    assert of(check(text), "freqplan.image") == []
+
+
+# ---- freqplan.path-width ------------------------------------------------------------------------------
+
+
+def test_broadcast_through_the_narrow_path_is_an_error():
+    path = EXAMPLES / "freq-broadcast-through-narrow.yaml"
+    text = path.read_text("utf-8")
+    found = of(engine.check_file(path), "freqplan.path-width")
+    assert [f.level for f in found] == ["error"]
+    f = found[0]
+    assert f.message.startswith("local FM station needs 180 kHz (180KF3E) but the narrow path passes only 20 kHz")
+    assert "the wide path (230 kHz) would pass it" in f.message
+    assert f.location.line == line_of(text, "    path: narrow", nth=1)
+
+
+def test_voice_through_a_very_wide_path_is_a_warning(clean_text):
+    text = edited(clean_text, "    path: narrow\n", "    path: wide\n")
+    found = of(check(text), "freqplan.path-width")
+    assert [f.level for f in found] == ["warning"]
+    assert "is 11.2 times the 16 kHz (16K0F3E)" in found[0].message  # 180 / 16 (plain arithmetic)
+    assert found[0].location.line == line_of(text, "path: wide")
+
+
+def test_missing_deviation_is_a_note(clean_text):
+    text = edited(clean_text, "    deviation: 5 kHz\n", "")
+    found = of(check(text), "freqplan.path-width")
+    assert [f.level for f in found] == ["note"]
+    assert "signals[0].deviation is not given" in found[0].message
+
+
+# ---- freqplan.upstream-bandwidth -------------------------------------------------------------------------
+
+
+def test_upstream_narrower_than_broadcast_fm(clean_text):
+    text = edited(clean_text, "    service: voice\n    path: narrow\n", "    service: voice\n    path: narrow\n"
+                  "  - {name: broadcast, modulation: fm, deviation: 75 kHz, audio_max: 15 kHz, service: broadcast, "
+                  "path: wide}\n")
+    text = edited(text, "bandwidth: 1 MHz ", "bandwidth: 100 kHz ")
+    found = of(check(text), "freqplan.upstream-bandwidth")
+    assert [f.level for f in found] == ["error"]
+    assert "upstream bandwidth 100 kHz is narrower than the 180 kHz (180KF3E) that broadcast needs" in found[0].message
+    assert found[0].location.line == line_of(text, "bandwidth: 100 kHz")
+
+
+def test_one_megahertz_upstream_suits_broadcast_fm(clean_text):
+    # common practice: about 1 MHz of upstream resolution bandwidth suits broadcast FM
+    text = edited(clean_text, "    service: voice\n    path: narrow\n", "    service: voice\n    path: narrow\n"
+                  "  - {name: broadcast, modulation: fm, deviation: 75 kHz, audio_max: 15 kHz, service: broadcast, "
+                  "path: wide}\n")
+    assert of(check(text), "freqplan.upstream-bandwidth") == []
+
+
+# ---- freqplan.mixer-spurs -----------------------------------------------------------------------------
+
+
+def test_if_harmonic_on_the_tuned_frequency_is_a_birdie(clean_text):
+    # 23 x 455 kHz = 10.465 MHz (plain arithmetic): tune the source there, LO 10.010 MHz, and the
+    # limiter's 23rd harmonic sits on the wanted signal
+    text = edited(clean_text, "  frequency: 10.7 MHz\n", "  frequency: 10.465 MHz\n")
+    text = edited(text, "frequency: 10.245 MHz", "frequency: 10.010 MHz")
+    found = of(check(text), "freqplan.mixer-spurs")
+    assert [f.level for f in found] == ["warning"]
+    assert "IF harmonic 23 at 10.4665" in found[0].message
+    assert found[0].location.line == line_of(text, "oscillator: {crystal: X1")
+
+
+def test_clean_plan_spurs_are_listed_but_not_close(clean_text):
+    result = check(clean_text)
+    assert of(result, "freqplan.mixer-spurs") == []
+    # the half-IF response 2 fs - 2 fLO = IF lies at fLO + IF/2, 227.5 kHz below the wanted 10.7 MHz
+    half_if = [e for e in result.sheet if e.section == "spurs" and "2·fs − 2·fLO" in e.value.name]
+    assert len(half_if) == 1 and abs(half_if[0].value.value - (10.7e6 - 455e3 / 2)) < 200
+
+
+def test_close_window_is_a_setting(clean_text):
+    settings = Settings(rule_settings={"freqplan.mixer-spurs": {"close_factor": 12}})
+    found = of(check(clean_text, settings=settings), "freqplan.mixer-spurs")
+    assert len(found) == 1 and "2·fs − 2·fLO = IF" in found[0].message
+
+
+# ---- freqplan.tank-tuning / tank-range ------------------------------------------------------------------
+
+
+def test_tank_that_cannot_tune_to_the_if():
+    path = EXAMPLES / "freq-tank-off-if.yaml"
+    text = path.read_text("utf-8")
+    found = of(engine.check_file(path), "freqplan.tank-tuning")
+    assert [f.level for f in found] == ["error"]
+    # 1 / (2 pi sqrt(L C)) with L 1.1 mH .. 0.9 mH and 82 pF: 529.9 kHz .. 585.9 kHz (plain arithmetic)
+    low = 1 / (2 * math.pi * math.sqrt(1.1e-3 * 82e-12))
+    assert f"tunes only {low / 1e3:.6g} kHz" in found[0].message
+    assert "is outside that range" in found[0].message
+    assert found[0].location.line == line_of(text, "L2: {kind: inductor")
+    assert found[0].location.path == "parts.L2.adjust"
+
+
+def test_fixed_tank_far_off_the_if(clean_text):
+    old = "L2: {kind: inductor, value: 1 mH, adjust: {min: 0.9 mH, max: 1.1 mH}, q: 60,"
+    text = edited(clean_text, old, "L2: {kind: inductor, value: 1 mH, q: 60,")
+    text = edited(text, "value: 120 pF", "value: 150 pF")
+    found = of(check(text), "freqplan.tank-tuning")
+    assert [f.level for f in found] == ["error"] and "has no adjustment" in found[0].message
+
+
+def test_clean_tank_tunes_to_the_if(clean_text):
+    assert of(check(clean_text), "freqplan.tank-tuning") == []
+    assert of(check(clean_text), "freqplan.tank-range") == []
+
+
+def test_broadcast_deviation_exceeds_the_linear_range():
+    path = EXAMPLES / "freq-broadcast-through-narrow.yaml"
+    text = path.read_text("utf-8")
+    found = of(engine.check_file(path), "freqplan.tank-range")
+    assert [f.level for f in found] == ["warning"]
+    assert "less than the 151.4 kHz that local FM station swings" in found[0].message
+    assert found[0].location.line == line_of(text, "R5: {kind: resistor")
+
+
+# ---- freqplan.crystal-load / crystal-overtone ---------------------------------------------------------------
+
+
+def test_wrong_load_caps_pull_the_crystal(clean_text):
+    text = edited(clean_text, "C6: {kind: capacitor, value: 33 pF", "C6: {kind: capacitor, value: 47 pF")
+    text = edited(text, "C7: {kind: capacitor, value: 33 pF", "C7: {kind: capacitor, value: 47 pF")
+    found = of(check(text), "freqplan.crystal-load")
+    assert [f.level for f in found] == ["warning"]
+    shift = 15e-15 / (2 * (4e-12 + 27.5e-12)) - 15e-15 / (2 * (4e-12 + 20e-12))  # D(27.5 pF) - D(20 pF)
+    assert f"pulls it {shift * 1e6:+.1f} ppm" in found[0].message
+    assert "X1 sees 27.5 pF (C6 and C7 plus 4 pF stray)" in found[0].message
+    assert found[0].location.line == line_of(text, "oscillator: {crystal: X1")
+
+
+def test_clean_crystal_load_is_fine(clean_text):
+    assert of(check(clean_text), "freqplan.crystal-load") == []
+
+
+def test_load_mismatch_without_motional_data(clean_text):
+    text = edited(clean_text, "    motional_capacitance: 15 fF\n", "")
+    text = edited(text, "value: 33 pF, dielectric: ceramic, ends: [U1.osc_emitter, GND]",
+                  "value: 15 pF, dielectric: ceramic, ends: [U1.osc_emitter, GND]")
+    found = of(check(text), "freqplan.crystal-load")
+    assert [f.level for f in found] == ["warning"] and "will run high" in found[0].message
+
+
+def test_overtone_crystal_on_fundamental_oscillator():
+    path = EXAMPLES / "freq-overtone-on-fundamental.yaml"
+    text = path.read_text("utf-8")
+    found = of(engine.check_file(path), "freqplan.crystal-overtone")
+    assert [f.level for f in found] == ["error"]
+    assert "X1 is a 3rd-overtone crystal marked 44.545 MHz" in found[0].message
+    assert "about 14.85 MHz" in found[0].message  # a third of 44.545 MHz (plain arithmetic)
+    assert found[0].location.line == line_of(text, "oscillator: {crystal: X1, injection: low, mode: fundamental}")
+    assert found[0].location.path == "chain[1].oscillator.mode"
+
+
+def test_fundamental_crystal_on_its_own_mode_is_fine(clean_text):
+    assert of(check(clean_text), "freqplan.crystal-overtone") == []
+
+
+# ---- freqplan.de-emphasis / audio-corner -----------------------------------------------------------------------
+
+
+def test_broadcast_example_de_emphasis_matches_region_1():
+    assert of(engine.check_file(EXAMPLES / "freq-broadcast-through-narrow.yaml"), "freqplan.de-emphasis") == []
+
+
+def test_75us_in_region_1_is_a_warning():
+    path = EXAMPLES / "freq-broadcast-through-narrow.yaml"
+    text = edited(path.read_text("utf-8"), "value: 5.1 kohm, ends: [U1.audio, DE1]", "value: 7.5 kohm, ends: [U1.audio, DE1]")
+    found = of(check(text), "freqplan.de-emphasis")
+    assert [f.level for f in found] == ["warning"]
+    assert "does not match the 50 µs of itu-region-1" in found[0].message
+    assert found[0].location.line == line_of(text, "C13: {kind: capacitor")
+
+
+def test_75us_in_region_2_is_fine():
+    path = EXAMPLES / "freq-broadcast-through-narrow.yaml"
+    text = edited(path.read_text("utf-8"), "value: 5.1 kohm, ends: [U1.audio, DE1]", "value: 7.5 kohm, ends: [U1.audio, DE1]")
+    text = edited(text, "region: itu-region-1", "region: itu-region-2")
+    assert of(check(text), "freqplan.de-emphasis") == []
+
+
+def test_broadcast_without_de_emphasis(clean_text):
+    text = edited(clean_text, "    service: voice\n", "    service: broadcast\n")
+    found = of(check(text), "freqplan.de-emphasis")
+    assert [f.level for f in found] == ["warning"]
+    assert "has no de-emphasis stage" in found[0].message
+    assert found[0].location.line == line_of(text, "service: broadcast")
+
+
+def test_audio_low_pass_cuts_broadcast_audio():
+    path = EXAMPLES / "freq-broadcast-through-narrow.yaml"
+    text = path.read_text("utf-8")
+    found = of(engine.check_file(path), "freqplan.audio-corner")
+    assert [f.level for f in found] == ["warning"]
+    # 1 / (2 pi 10 kohm 4.7 nF) = 3.386 kHz (plain arithmetic)
+    assert f"corner {1 / (2 * math.pi * 10e3 * 4.7e-9) / 1e3:.4g} kHz is below the 15 kHz" in found[0].message
+    assert found[0].location.line == line_of(text, "C11: {kind: capacitor")
+
+
+def test_clean_audio_corner_is_fine(clean_text):
+    assert of(check(clean_text), "freqplan.audio-corner") == []
+
+
+def test_audio_corner_far_above_voice_is_a_note(clean_text):
+    text = edited(clean_text, "C11: {kind: capacitor, value: 4.7 nF", "C11: {kind: capacitor, value: 1 nF")
+    found = of(check(text), "freqplan.audio-corner")
+    assert [f.level for f in found] == ["note"]
+
+
+# ---- robustness ---------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("text", [
+    "build_spec: 1\nbuild: {name: empty}\nparts: {}\n",
+    "build_spec: 1\nbuild: {name: x}\nparts: {}\nchain:\n  - {stage: conversion}\n  - {stage: if-filter}\n"
+    "  - {stage: discriminator}\n  - {stage: de-emphasis}\n  - {stage: audio-filter}\n",
+    "build_spec: 1\nbuild: {name: x}\nsignals: [{name: s, modulation: cw}]\nsource: {kind: antenna, frequency: 7 MHz}\n"
+    "parts:\n  X1: {kind: crystal}\n  L1: {kind: inductor, value: 1 uH}\n  C1: {kind: capacitor, value: 1 pF}\n"
+    "chain:\n  - {stage: conversion, oscillator: {crystal: X1, injection: low, load_caps: [C1, C9]}}\n"
+    "  - {stage: if-filter, paths: {a: {filter: NOPE}, b: {}}}\n"
+    "  - {stage: discriminator, tank: {inductor: L1, capacitor: C1}}\n",
+])
+def test_sparse_plans_give_no_internal_error(text):
+    result = check(text)
+    assert [f for f in result.findings if "internal error" in f.message] == []
