@@ -297,6 +297,9 @@ def ratings_declared(build, ctx):
     missing = [name for name in ("voltage", "frequency") if getattr(m, name) is None]
     if missing:
         ctx.report(f"supply.mains does not state its {' and '.join(missing)}", m.loc, stage="mains")
+    if m.voltage is not None and m.voltage.si <= 0:
+        ctx.report(f"mains voltage {m.voltage.text} is not a mains voltage (state the rms value, e.g. '230 V')",
+                   m.at("voltage"), stage="mains")
     if m.frequency is not None and not any(abs(m.frequency.si - f) <= 0.05 * f for f in (50.0, 60.0)):
         ctx.report(f"mains frequency {m.frequency.text} is neither 50 Hz nor 60 Hz", m.at("frequency"), stage="mains")
 
@@ -322,7 +325,7 @@ def transformer_primary(build, ctx):
             ctx.report("a mains-transformer supply with no transformer part: its primary and the primary fuse are "
                        "not checked", build.supply.at("kind"), level="note", stage="mains")
         return
-    if xf.primary_voltage is None or m.voltage is None:
+    if xf.primary_voltage is None or m.voltage is None or m.voltage.si <= 0:
         return
     off = abs(xf.primary_voltage.si - m.voltage.si) / m.voltage.si
     if off > ctx.setting("tolerance"):

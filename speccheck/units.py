@@ -177,9 +177,9 @@ _NO_PREFIX = {"°C", "°C/W", "dB", "dBm", "dBc", "%", "ppm", "", "A²s", "turns
 def fmt(value: float, unit: str, digits: int | None = None) -> str:
     """A number with its SI unit as a person writes it: 455 kHz, 4.7 µF, 912 mW.
 
-    A frequency that is exact in up to 7 significant digits is shown exactly (a 10.245 MHz
-    oscillator must not read 10.24 MHz); a computed one (a corner of 423.2844... Hz) and
-    every other quantity gets 4.
+    Frequencies keep every digit down to 1 Hz (a 10.245 MHz oscillator must not read
+    10.24 MHz, and a frequency plan is about such offsets); every other quantity gets 4
+    significant digits.
     """
     if value is None or not math.isfinite(value):
         return f"{value} {unit}".strip()
@@ -192,15 +192,14 @@ def fmt(value: float, unit: str, digits: int | None = None) -> str:
     else:
         scale, prefix = _PREFIXES[-1]
     scaled = value / scale
-    return f"{scaled:.{digits or _digits(scaled, unit)}g} {prefix}{unit}"
+    return f"{scaled:.{digits or _digits(value, unit)}g} {prefix}{unit}"
 
 
 def _digits(value: float, unit: str) -> int:
-    if unit == "Hz":
-        for digits in (4, 5, 6, 7):
-            if abs(float(f"{value:.{digits}g}") - value) <= 1e-9 * abs(value):
-                return digits
-    return 4
+    """Significant digits: down to 1 Hz for frequencies (at least 4, at most 9), else 4."""
+    if unit != "Hz" or value == 0:
+        return 4
+    return max(4, min(9, math.floor(math.log10(abs(value))) + 1))
 
 
 def symbol(dim: str) -> str:
