@@ -121,7 +121,8 @@ def coupling_corner(build, ctx):
     unchecked = []
     for stage in build.stages("audio-amp"):
         cap, load = build.part(stage.coupling), build.part(stage.load)
-        if cap is None or load is None or cap.kind != "capacitor" or cap.value is None or load.value is None:
+        if cap is None or load is None or cap.kind != "capacitor" or cap.value is None or load.value is None \
+                or load.kind not in ("speaker", "resistor"):
             continue
         corner = rc_corner(load.value.si, cap.value.si)
         ctx.publish("audio", stage.label, f"coupling {cap.name} into {load.name} corner", corner, "Hz")

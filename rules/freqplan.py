@@ -333,7 +333,8 @@ def _missing_note(ctx, c: Conversion, stage_label: str):
 
 # ---- 1. conversion arithmetic -----------------------------------------------------------------
 
-@rule("freqplan.conversion", level="error",
+@rule("freqplan.conversion", verify='Measure the LO with a frequency counter at a buffered output or a loosely coupled probe, and the IF at the mixer output with a receiver or spectrum analyser.',
+      level="error",
       title="The IF each local oscillator really produces",
       explanation="""
       A mixer makes the difference between its input and the local oscillator (LO). With low-side
@@ -404,7 +405,8 @@ def conversion(build, ctx):
 
 # ---- 1b. the signal inside the filter at the worst-case IF ------------------------------------
 
-@rule("freqplan.filter-fit", level="error",
+@rule("freqplan.filter-fit", verify="Feed a generator at the input frequency, step it across the signal's width, and watch the level after the filter: the whole signal must sit on the filter's flat top.",
+      level="error",
       title="Signal must stay inside the IF filter at the worst-case IF",
       explanation="""
       The filter after the mixer passes a fixed band around its centre. The signal arrives at the IF
@@ -478,7 +480,8 @@ def filter_fit(build, ctx):
 
 # ---- 2. image ----------------------------------------------------------------------------
 
-@rule("freqplan.image", level="warning",
+@rule("freqplan.image", verify="Set a generator to the image frequency at the wanted signal's level and compare the RSSI or audio with the wanted signal: the difference is the image rejection.",
+      level="warning",
       title="Image frequency with nothing ahead of the mixer to reject it",
       explanation="""
       A mixer answers two inputs with the same IF: the wanted one and its image, mirrored about the
@@ -518,7 +521,8 @@ def image(build, ctx):
 
 # ---- 3. necessary bandwidth against the IF path --------------------------------------------------
 
-@rule("freqplan.path-width", level="error",
+@rule("freqplan.path-width", verify='Apply a carrier at full deviation and watch the recovered audio on a scope: a path narrower than the signal distorts the peaks; compare with the other path.',
+      level="error",
       title="IF path narrower than the signal, or many times wider",
       explanation="""
       Every signal occupies a band: for FM, Carson's rule gives B = 2(peak deviation + highest audio
@@ -580,7 +584,8 @@ def path_width(build, ctx):
 
 # ---- 4. upstream bandwidth ---------------------------------------------------------------
 
-@rule("freqplan.upstream-bandwidth", level="error",
+@rule("freqplan.upstream-bandwidth", verify="Step a generator across the upstream receiver's input and read the level at its IF output: the -6 dB points give its IF bandwidth.",
+      level="error",
       title="Upstream IF or resolution bandwidth narrower than the signal",
       explanation="""
       When the build taps another receiver's or instrument's IF output, that equipment has already
@@ -626,7 +631,8 @@ def _spur_name(m: int, k: int, s: int) -> str:
     return f"{ms} − {ns} = IF" if s > 0 else f"{ns} − {ms} = IF"
 
 
-@rule("freqplan.mixer-spurs", level="warning",
+@rule("freqplan.mixer-spurs", verify='Sweep a strong generator across the input band and note each frequency where the squelch opens or the RSSI rises: each one is a spurious response.',
+      level="warning",
       title="Mixer spurious response or harmonic close to the wanted signal",
       explanation="""
       A real mixer is not an ideal multiplier: harmonics of the input and of the LO mix too, so an
@@ -753,7 +759,8 @@ def tank_facts(build, stage, ctx=None):
                      f_if, unc)
 
 
-@rule("freqplan.tank-tuning", level="error",
+@rule("freqplan.tank-tuning", verify="With a steady carrier at the IF applied, turn the coil's slug through its range: the detector output must pass through its centre inside the range.",
+      level="error",
       title="Quadrature tank cannot tune to the final IF",
       explanation="""
       A quadrature (phase-shift) detector compares the IF with a copy shifted by a parallel tuned
@@ -803,7 +810,8 @@ def tank_tuning(build, ctx):
                            f"range centres on the IF.")
 
 
-@rule("freqplan.tank-range", level="warning",
+@rule("freqplan.tank-range", verify="Apply a carrier at full deviation and watch the audio on a scope: flattened peaks mean the detector's linear range is too small.",
+      level="warning",
       title="Detector linear range narrower than the deviation plus drift",
       explanation="""
       The tank's loaded Q sets the detector: Q = R_p / (omega0 L), where R_p is the damping resistor
@@ -857,7 +865,8 @@ def tank_range(build, ctx):
 
 # ---- 7. crystal ------------------------------------------------------------------------------
 
-@rule("freqplan.crystal-load", level="warning",
+@rule("freqplan.crystal-load", verify="Measure the oscillator with a counter through a buffer or a loosely coupled probe, and compare with the crystal's marked frequency.",
+      level="warning",
       title="Crystal load capacitance differs from the crystal's specified load",
       explanation="""
       A parallel-resonant crystal is calibrated at the load capacitance its maker states. The
@@ -926,7 +935,8 @@ def crystal_load_rule(build, ctx):
                        stage=stage.label)
 
 
-@rule("freqplan.crystal-overtone", level="error",
+@rule("freqplan.crystal-overtone", verify='Read the oscillator with a counter: an overtone crystal on a fundamental-mode circuit runs near a third of its marked frequency, or not at all.',
+      level="error",
       title="Overtone crystal on an oscillator built for fundamental mode",
       explanation="""
       An overtone crystal is marked with its overtone frequency (3rd, 5th ...), but the quartz
@@ -985,7 +995,8 @@ def _rc(build, stage):
 DEEMPHASIS = {"itu-region-1": 50e-6, "itu-region-2": 75e-6, "itu-region-3": 50e-6}
 
 
-@rule("freqplan.de-emphasis", level="warning",
+@rule("freqplan.de-emphasis", verify='Feed tones at constant deviation and read the audio output: the level is 3 dB down at the de-emphasis corner frequency.',
+      level="warning",
       title="De-emphasis time constant for broadcast FM",
       explanation="""
       FM broadcasting boosts the treble before transmission (pre-emphasis) so that the receiver can
@@ -1037,7 +1048,8 @@ def de_emphasis(build, ctx):
                        where, [Value("time constant", tau, "s"), Value("wanted", want, "s")], stage=stage.label)
 
 
-@rule("freqplan.audio-corner", level="warning",
+@rule("freqplan.audio-corner", verify='Sweep an audio tone at constant deviation and read the output with an AC voltmeter: the level falls 3 dB at the corner.',
+      level="warning",
       title="Audio low-pass corner against the highest modulating frequency",
       explanation="""
       The audio low-pass after the detector should pass the highest modulating frequency of the

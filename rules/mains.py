@@ -122,7 +122,7 @@ def hazard(build, ctx):
     for text in cautions(reasons):
         ctx.caution(text)
     ctx.report(f"hazardous voltage: {reasons}; read the safety cautions at the top of this report",
-               found[0][1], [Value("ES1 AC limit", ac_limit, "V"), Value("ES1 DC limit", dc_limit, "V")],
+               found[0][1], [Value("AC limit (rms)", ac_limit, "V"), Value("DC limit", dc_limit, "V")],
                stage="mains")
 
 
@@ -235,6 +235,10 @@ def switch_line(build, ctx):
     switch = build.part(m.switch)
     if switch is None or not m.line_net:
         return
+    if switch.kind != "switch":
+        ctx.report(f"supply.mains.switch names {switch.name}, a {switch.kind}, not a switch", m.at("switch"),
+                   level="note", stage="mains")
+        return
     line = conductor_nets(build, m.line_net)
     if set(switch.ends) & line:
         return
@@ -320,6 +324,11 @@ def transformer_primary(build, ctx):
         return
     m = build.supply.mains
     xf = transformer(build)
+    named = build.part(m.transformer)
+    if xf is None and named is not None:
+        ctx.report(f"supply.mains.transformer names {named.name}, a {named.kind}, not a transformer",
+                   m.at("transformer"), level="note", stage="mains")
+        return
     if xf is None:
         if not any(p.kind == "transformer" for p in build.parts.values()):
             ctx.report("a mains-transformer supply with no transformer part: its primary and the primary fuse are "

@@ -238,7 +238,7 @@ def amp_point(build, dev) -> tuple[AmpPoint | None, list]:
                             f"name a rail with a voltage", dev.at("negative_rail")))
     r_load, load_text = None, ""
     load = build.part(stage.load) if stage else None
-    if load is not None and load.value is not None:
+    if load is not None and load.value is not None and load.kind in ("speaker", "resistor"):
         r_load, load_text = load.value.si, f"{load.name} ({load.value.text})"
     elif stage is not None and stage.load_impedance is not None:
         r_load, load_text = stage.load_impedance.si, stage.load_impedance.text
@@ -261,9 +261,21 @@ class Budget:
     full_output: dict = field(default_factory=dict)  # amplifier -> {rail: amps}
     unknown_amps: list = field(default_factory=list)  # amplifiers whose full-output current is unknown
     no_rail: list = field(default_factory=list)  # devices with no rail
+    bad_rail: list = field(default_factory=list)  # devices on a rail that is not declared (input.reference)
     no_quiescent: dict = field(default_factory=dict)  # profile name -> [devices]
     input: float | None = None
     input_rails: list = field(default_factory=list)
+
+    @property
+    def complete(self) -> bool:
+        """False when some draw is unknown: the budget is then only a lower bound."""
+        return not (self.unknown_amps or self.no_rail or self.bad_rail or self.no_quiescent)
+
+    def gaps(self) -> str:
+        parts = [f"{n}'s full-output current" for n in self.unknown_amps]
+        parts += [f"{d.name} (no rail)" for d in self.no_rail + self.bad_rail]
+        parts += [f"{', '.join(devs)} (no quiescent current)" for devs in self.no_quiescent.values()]
+        return ", ".join(parts)
 
 
 _BUDGETS: "weakref.WeakKeyDictionary" = weakref.WeakKeyDictionary()
@@ -292,8 +304,7 @@ def budget(build) -> Budget:
         if prof is None:
             continue
         if not dev.rail or dev.rail not in build.rails:
-            if not dev.rail:
-                b.no_rail.append(dev)
+            (b.no_rail if not dev.rail else b.bad_rail).append(dev)
             continue
         iq = prof.quiescent_current.si if prof.quiescent_current else None
         if iq is None:
@@ -688,7 +699,8 @@ def fuse_size(build, ctx):
         ctx.report(f"supply.fuse names {part.name}, a {part.kind}, not a fuse", supply.at("fuse"), level="note",
                    stage="power")
         return
-    normal = budget(build).input
+    b = budget(build)
+    normal = b.input
     if not normal:
         ctx.report(f"{part.name} cannot be sized: the build's current budget is unknown (no device on the supply "
                    f"rail states a quiescent current)", part.loc, level="note", stage="power")
@@ -721,6 +733,8 @@ def fuse_size(build, ctx):
                    f"{' after rerating' if c['rerate'] < 1 else ''} in normal use (keep under {c['share']:.0%}): "
                    f"expect nuisance opening; fit {fmt(c['preferred'], 'A')}", part.at("current_rating"), values,
                    stage="power")
+    elif not b.complete:
+        ctx.publish("fuse", part.name, "budget left out", b.gaps())
     elif rating > ctx.setting("oversize_factor") * c["preferred"] * (1 + 1e-9):
         ctx.report(f"{part.name} ({part.current_rating.text}) is {rating / c['preferred']:.3g} times the "
                    f"{fmt(c['preferred'], 'A')} the build needs (normal current {fmt(normal, 'A')}, derated to "
@@ -888,7 +902,7 @@ def fuse_missing(build, ctx):
         return
     values = []
     need = ""
-    if b.input:
+    if b.input and b.complete:
         c = fuse_choice(build, ctx, b.input)
         values = [Value("normal current", b.input, "A"), Value("preferred rating", c["preferred"], "A")]
         need = f"; the build needs about {fmt(c['preferred'], 'A')}"

@@ -55,7 +55,8 @@ def _publish_picks(ctx, who: str, what: str, ideal: float, unit: str) -> str:
     return ", ".join(shown)
 
 
-@rule("rfpath.input-match", level="warning",
+@rule("rfpath.input-match", verify='Measure the return loss (or VSWR) at the input with an antenna analyser or a bridge, at the working frequency, with the circuit powered.',
+      level="warning",
       title="Input network against the source impedance at the working frequency",
       explanation="""
       The source (a receiver's IF output, an instrument, a generator) is built to work into its own
@@ -168,7 +169,8 @@ def input_match(build, ctx):
                         Value("mismatch loss", round(rf.mismatch_loss_db(zin, rs), 2), "dB")], stage=stage.label)
 
 
-@rule("rfpath.coil-turns", level="warning",
+@rule("rfpath.coil-turns", verify='Measure the wound coil with an LC meter, or resonate it with a known capacitor and a dip meter, before fitting it.',
+      level="warning",
       title="Turns on a declared core against the coil's inductance",
       explanation="""
       A coil wound on a toroid or other core with a known inductance factor AL (inductance per turn
@@ -222,7 +224,8 @@ def _low_intercept(dev) -> bool:
     return dev.profile is not None and (dev.profile.max_gain_ahead is not None or dev.profile.cls == "fm-if-subsystem")
 
 
-@rule("rfpath.gain-ahead", level="warning",
+@rule("rfpath.gain-ahead", verify='Raise the input level in 10 dB steps with a generator and watch for the audio to distort or the RSSI to stop rising: there the chip overloads.',
+      level="warning",
       title="Too much gain ahead of a low-intercept IF device",
       explanation="""
       The mixers of narrowband FM IF chips are made for small signals: their intercept point is
@@ -255,7 +258,8 @@ def gain_ahead(build, ctx):
                        [Value("gain ahead", total, "dB"), Value("limit", limit, "dB")], stage=biggest.label)
 
 
-@rule("rfpath.max-input", level="warning",
+@rule("rfpath.max-input", verify='Raise the input level in 10 dB steps with a generator and watch for the audio to distort or the RSSI to stop rising: there the chip overloads.',
+      level="warning",
       title="Highest level reaching the chip against its maximum input",
       explanation="""
       The strongest signal the source delivers (source.level_max), plus the gain of every

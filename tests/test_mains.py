@@ -94,6 +94,13 @@ def test_cautions_in_text_and_json_output():
         assert any(words in c for c in cautions), words
 
 
+@pytest.mark.parametrize("fmt", ["sarif", "markdown"])
+def test_cautions_in_the_other_formats(fmt):
+    out = CliRunner().invoke(main, ["check", "--format", fmt, str(MAINS_FILE)]).output
+    for words in CAUTION_WORDS:
+        assert words in out, (fmt, words)
+
+
 # ---- primary fuse --------------------------------------------------------------------------------
 
 def test_missing_primary_fuse_is_an_error():

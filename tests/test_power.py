@@ -352,7 +352,11 @@ def test_ul_fuse_carries_its_full_rating(clean_text):
 def test_fuse_several_times_too_large_is_a_warning():
     found = of(check(TOO_LARGE), "power.fuse-size")
     assert [f.level for f in found] == ["warning"]
-    assert found[0].message.startswith("F1 (5 A) is 12.5 times the 400 mA the build needs")
+    # U2 (builtin low-voltage amplifier profile, 6 mA) at full output on 12 V into 8 ohm, derated and rerated, R10
+    normal = 0.006 + half_wave_average(6.0 / 8.0)
+    preferred = r10_from_the_list(normal / (0.75 * (1 - 0.005 * 15)))
+    assert found[0].message.startswith(f"F1 (5 A) is {5 / preferred:.3g} times the {preferred * 1e3:.4g} mA the build "
+                                       f"needs (normal current {normal * 1e3:.4g} mA")
     assert found[0].location.line == fuse_line(TOO_LARGE)
 
 
@@ -554,3 +558,25 @@ def test_series_diode_turned_round_blocks_the_supply(clean_text):
     found = of(check(text), "power.reverse-diode")
     assert [f.level for f in found] == ["error"]
     assert found[0].message.startswith("series diode D1 has its cathode toward the input")
+
+
+# ---- incomplete inputs ------------------------------------------------------------------------------
+
+def test_unknown_load_is_a_note_and_keeps_the_fuse_unjudged(clean_text):
+    text = edited(clean_text, "    load: SPK1\n", "")
+    result = check(text)
+    found = of(result, "power.heat")
+    assert [f.level for f in found] == ["note"]
+    assert found[0].message.startswith("no load impedance for U2: name its speaker in the audio-amp stage")
+    assert found[0].location.line == line_of(text, "- stage: audio-amp")
+    # the budget is then a lower bound: the fuse is not called too large on it
+    assert of(result, "power.fuse-size") == []
+
+
+@pytest.mark.parametrize("name", ["power-hot-amplifier.yaml", "mains-bench-unit.yaml"])
+def test_any_line_left_out_gives_findings_not_tracebacks(name):
+    lines = (EXAMPLES / name).read_text("utf-8").splitlines(keepends=True)
+    for i in range(len(lines)):
+        result = check("".join(lines[:i] + lines[i + 1:]))
+        crashed = [f.message for f in result.findings if f.stage == "internal"]
+        assert crashed == [], f"line {i + 1} left out: {crashed}"
