@@ -49,7 +49,8 @@ def _network_ok(build, dev, res, cap, extra_nets=()) -> bool:
     return len(hits) == 1 and all(n in outs or nets.is_ground(n) for n in far)
 
 
-@rule("audio.output-network", level="warning",
+@rule("audio.output-network", verify='With no input and full volume, look at the amplifier output on a scope with a speaker connected: no RF oscillation should be visible.',
+      level="warning",
       title="Series R–C stabilising network across the amplifier output",
       explanation="""
       Many audio power amplifier ICs are stable only when their output sees a resistive load at
@@ -103,7 +104,8 @@ def output_network(build, ctx):
                        f"ways; use a film or ceramic capacitor", cap.at("dielectric"), stage=stage.label)
 
 
-@rule("audio.coupling-corner", level="warning",
+@rule("audio.coupling-corner", verify='Sweep an audio generator into the amplifier and read the speaker voltage: it falls 3 dB at the corner.',
+      level="warning",
       title="Output coupling capacitor against the lowest audio frequency",
       explanation="""
       The capacitor between a single-supply amplifier's output and the speaker forms a
@@ -145,7 +147,8 @@ def coupling_corner(build, ctx):
                    fix="State 'lowest_audio:' under build (300 Hz for voice, 50 Hz or lower for music).")
 
 
-@rule("audio.speaker-dc", level="error",
+@rule("audio.speaker-dc", verify='Measure the DC voltage across the speaker terminals with the build on: it should be near 0 V.',
+      level="error",
       title="DC standing across the speaker",
       explanation="""
       A single-supply amplifier's output idles at about half the supply. Wired straight to a

@@ -572,12 +572,14 @@ def path_width(build, ctx):
             if pb.width < bn:
                 wider = [p for p in point.paths.values() if p.width is not None and p.width >= bn]
                 hint = f"; the {wider[0].name} path ({khz(wider[0].width)}) would pass it" if wider else ""
-                ctx.report(f"{sig.name} needs {khz(bn)} ({designator}) but the {pb.name} path passes only "
+                ctx.report(f"{sig.name} needs {khz(bn)}{f' ({designator})' if designator else ''} but the "
+                           f"{pb.name} path passes only "
                            f"{khz(pb.width)} ({pb.describe()}){hint}", where, values, stage=point.stage.label,
                            fix=(f"Set the signal's path to {wider[0].name}." if wider else None))
             elif pb.width > factor * bn:
-                ctx.report(f"the {pb.name} path ({khz(pb.width)}) is {pb.width / bn:.1f} times the {khz(bn)} "
-                           f"({designator}) that {sig.name} needs: it lets in noise and neighbouring channels",
+                ctx.report(f"the {pb.name} path ({khz(pb.width)}) is {pb.width / bn:.1f} times the {khz(bn)}"
+                           f"{f' ({designator})' if designator else ''} that {sig.name} needs: it lets in noise "
+                           "and neighbouring channels",
                            where, values, level="warning", stage=point.stage.label,
                            fix="Use a filter nearer the signal's necessary bandwidth for this signal.")
 
@@ -612,7 +614,8 @@ def upstream_bandwidth(build, ctx):
     bw = src.bandwidth.si
     for sig, (bn, _, designator) in needs:
         if bw < bn:
-            ctx.report(f"the upstream bandwidth {khz(bw)} is narrower than the {khz(bn)} ({designator}) that "
+            ctx.report(f"the upstream bandwidth {khz(bw)} is narrower than the {khz(bn)}"
+                       f"{f' ({designator})' if designator else ''} that "
                        f"{sig.name} needs: the source has cut the signal before it reaches the build",
                        src.at("bandwidth"), [Value("upstream bandwidth", bw, "Hz"),
                                              Value("necessary bandwidth", bn, "Hz")], stage="source")

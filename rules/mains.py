@@ -93,7 +93,8 @@ def hazards(build, ac_limit: float, dc_limit: float) -> list:
     return out
 
 
-@rule(HAZARD_RULE, level="note",
+@rule(HAZARD_RULE, verify="Do not measure on a live mains circuit unless you are trained and equipped for it; unplug and discharge the capacitors before touching anything.",
+      level="note",
       title="Mains or hazardous voltage: safety cautions",
       explanation="""
       A build that runs from the mains, or has any voltage above the extra-low-voltage limits,
@@ -126,7 +127,8 @@ def hazard(build, ctx):
                stage="mains")
 
 
-@rule("mains.primary-fuse", level="error",
+@rule("mains.primary-fuse", verify='With the set unplugged, check with an ohmmeter that the fuse holder sits between the line pin of the plug and the transformer.',
+      level="error",
       title="Primary fuse: present, in the line conductor, sized from the transformer",
       explanation="""
       A mains transformer needs a fuse on its primary, in the line (live) conductor: the mains
@@ -218,7 +220,8 @@ def _primary_choice(build, ctx, m, xf):
     return choice
 
 
-@rule("mains.switch-line", level="warning",
+@rule("mains.switch-line", verify='With the set unplugged, check with an ohmmeter that the switch breaks the line conductor (the fuse side).',
+      level="warning",
       title="Mains switch in the line conductor",
       explanation="""
       The mains switch must break the line (live) conductor. A switch in the neutral only turns
@@ -248,7 +251,8 @@ def switch_line(build, ctx):
                f"connected to the line {m.line_net}", switch.at("ends"), stage="mains")
 
 
-@rule("mains.earth", level="error",
+@rule("mains.earth", verify="With the set unplugged, measure the resistance from the plug's earth pin to the bare metal of the chassis: it should be well under 1 ohm.",
+      level="error",
       title="Protective earth bonded, or class II construction declared",
       explanation="""
       A mains-powered build needs one of two protections against a live wire touching what a
@@ -280,7 +284,8 @@ def earth(build, ctx):
         ctx.publish("mains", "supply", "protection against shock", "earth bonded" if m.earth == "bonded" else "class II")
 
 
-@rule("mains.ratings-declared", level="warning",
+@rule("mains.ratings-declared", verify="Read the mains voltage and frequency on the transformer's label and on the supply you will connect.",
+      level="warning",
       title="Mains voltage and frequency declared",
       explanation="""
       The mains voltage and frequency decide the transformer's primary, the primary fuse, the
@@ -308,7 +313,8 @@ def ratings_declared(build, ctx):
         ctx.report(f"mains frequency {m.frequency.text} is neither 50 Hz nor 60 Hz", m.at("frequency"), stage="mains")
 
 
-@rule("mains.transformer-primary", level="error",
+@rule("mains.transformer-primary", verify="Read the transformer's primary rating on its label; it must match the local mains voltage.",
+      level="error",
       title="Transformer primary voltage against the mains",
       explanation="""
       A transformer wound for 115 V on a 230 V mains saturates, draws many times its rated
@@ -343,7 +349,8 @@ def transformer_primary(build, ctx):
                                               Value("mains", m.voltage.si, "V")], stage="mains")
 
 
-@rule("mains.bleeder", level="warning",
+@rule("mains.bleeder", verify='Unplugged, measure the voltage across the bulk capacitor over a minute: with a bleeder it falls to a safe level.',
+      level="warning",
       title="Bleeder resistor across a bulk capacitor above the safe limit",
       explanation="""
       A bulk capacitor charged above the extra-low-voltage limit keeps that charge for minutes

@@ -365,7 +365,8 @@ def budget(build) -> Budget:
     return b
 
 
-@rule("power.current-budget", level="error",
+@rule("power.current-budget", verify='Measure the supply current with a meter in series: idle, then with a tone at full volume into the speaker.',
+      level="error",
       title="Current budget of each rail and of the supply input",
       explanation="""
       The current each rail must deliver is the sum of what hangs on it: the quiescent (no
@@ -426,7 +427,8 @@ def current_budget(build, ctx):
 
 # ---- device supply range -------------------------------------------------------------------
 
-@rule("power.device-supply", level="error",
+@rule("power.device-supply", verify="Measure the voltage between the device's supply and ground pins with the build running.",
+      level="error",
       title="Device supply voltage inside its profile's range",
       explanation="""
       Every device profile states the supply range the part is made for. Above supply_max the
@@ -538,7 +540,8 @@ def _thermal(build, ctx, dev, power: float, what: str, stage: str, values: list)
     return None
 
 
-@rule("power.heat", level="error",
+@rule("power.heat", verify='After ten minutes at full output, measure the package or tab temperature with a thermocouple; add the junction-to-case rise for the junction.',
+      level="error",
       title="Dissipation, junction temperature and heat sink of amplifiers and regulators",
       explanation="""
       A class-B or class-AB output stage dissipates most not at full output but at about 64 %
@@ -624,7 +627,8 @@ def _regulator_power(build, dev):
     return regulator_dissipation(v_in, v_out, i_out, iq), v_in, v_out, i_out
 
 
-@rule("power.regulator-dropout", level="error",
+@rule("power.regulator-dropout", verify='Measure input and output of the regulator at the lowest supply voltage and full load: the output must stay at its nominal value.',
+      level="error",
       title="Linear regulator input headroom (dropout)",
       explanation="""
       A linear regulator holds its output only while its input stays above the output by at
@@ -668,7 +672,8 @@ def fuse_choice(build, ctx, normal: float) -> dict:
     return {"share": share, "ambient": ta, "rerate": factor, "least": least, "preferred": r10_up(least)}
 
 
-@rule("power.fuse-size", level="warning",
+@rule("power.fuse-size", verify='Measure the normal current with a meter in series and compare it with the fuse rating.',
+      level="warning",
       title="Supply fuse rating against the build's normal current",
       explanation="""
       A fuse is sized from the current the build draws in normal use (its current budget at
@@ -743,7 +748,8 @@ def fuse_size(build, ctx):
                    values, stage="power")
 
 
-@rule("power.fuse-wire", level="error",
+@rule("power.fuse-wire", verify='Check the wire gauge printed on the insulation, or measure the conductor diameter, against the fuse rating.',
+      level="error",
       title="Supply fuse larger than the wiring can carry",
       explanation="""
       The fuse protects the wiring behind it. If the fuse is rated above what the supply wiring
@@ -780,7 +786,8 @@ def fuse_wire(build, ctx):
                    [Value("input current budget", normal, "A"), Value("wire ampacity", amps, "A")], stage="power")
 
 
-@rule("power.fuse-inrush", level="warning",
+@rule("power.fuse-inrush", verify='Switch on repeatedly from cold: a quick-acting fuse that survives a few times may still open later; a current probe on a scope shows the inrush peak.',
+      level="warning",
       title="Fuse speed against the bulk capacitor's inrush",
       explanation="""
       At switch-on the bulk capacitor behind the fuse charges through the loop resistance R
@@ -861,7 +868,8 @@ def fuse_inrush(build, ctx):
     ctx.report(head + tail, where, values, stage="power")
 
 
-@rule("power.fuse-voltage", level="error",
+@rule("power.fuse-voltage", verify='Read the voltage rating printed on the fuse body or its end cap.',
+      level="error",
       title="Fuse voltage rating below the circuit voltage",
       explanation="""
       A fuse's voltage rating is the highest voltage it can safely interrupt: above it, the arc
@@ -881,7 +889,8 @@ def fuse_voltage(build, ctx):
                                                Value("supply", supply.voltage.si, "V")], stage="power")
 
 
-@rule("power.fuse-missing", level="warning",
+@rule("power.fuse-missing", verify='Follow the supply lead from the connector: the first part on the positive conductor should be the fuse.',
+      level="warning",
       title="No fuse on a supply that can deliver more than the build needs",
       explanation="""
       Any supply that can deliver more current than the build needs can feed a fault (a shorted
@@ -913,7 +922,8 @@ def fuse_missing(build, ctx):
 
 # ---- a resistor as a fuse ---------------------------------------------------------------------
 
-@rule("power.resistor-fuse", level="warning",
+@rule("power.resistor-fuse", verify="Read the resistor's marking or datasheet for 'fusible' or 'flame-proof'; measure its drop with the build at full output.",
+      level="warning",
       title="A resistor in series with the supply, or used as its fuse",
       explanation="""
       A small resistor in series with the supply input (about 1 Ω with a large bulk capacitor)
@@ -982,7 +992,8 @@ def resistor_fuse(build, ctx):
 
 # ---- reverse polarity ------------------------------------------------------------------------
 
-@rule("power.reverse-polarity", level="warning",
+@rule("power.reverse-polarity", verify='With a current-limited bench supply set low, apply reversed polarity briefly: no current should flow (series diode) or the fuse opens (shunt diode).',
+      level="warning",
       title="No reverse-polarity protection on a DC input with polarized parts",
       explanation="""
       A battery snap touched on the wrong way, a bench supply's leads swapped, an adapter with
@@ -1014,7 +1025,8 @@ def reverse_polarity(build, ctx):
                [Value("polarized capacitors", len(caps), ""), Value("devices", len(chips), "")], stage="power")
 
 
-@rule("power.reverse-diode", level="error",
+@rule("power.reverse-diode", verify='Measure the voltage across the protection diode at full load: that drop is lost from the rail.',
+      level="error",
       title="Reverse-polarity diode wired the right way and in the right place",
       explanation="""
       A shunt protection diode sits across the rail with its anode on ground and its cathode on

@@ -290,8 +290,8 @@ def _resolve(build: model.Build, ctx: _Context):
         dev.profile = build.profiles.get(dev.profile_name)
         if dev.profile is None:
             missing("device profile", dev.profile_name, dev, "profile_name", build.profiles)
-        for field_name in ("rail", "output_rail"):
-            rail = getattr(dev, field_name)
+        for field_name in ("rail", "output_rail", "negative_rail"):
+            rail = getattr(dev, field_name, None)
             if rail and rail not in build.rails:
                 missing("rail", rail, dev, field_name, build.rails)
     for part in build.parts.values():

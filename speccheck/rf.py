@@ -79,8 +79,12 @@ def emission_class(modulation: str, service: str | None) -> str | None:
 
 
 def emission_designator(bn: float, modulation: str, service: str | None = None) -> str | None:
+    """Bandwidth code and class symbols, or None where Appendix 1 has no spelling for them."""
     cls = emission_class(modulation, service)
-    return bandwidth_code(bn) + cls if cls else None
+    try:
+        return bandwidth_code(bn) + cls if cls else None
+    except ValueError:  # beyond 999 GHz: no designator exists, the bandwidth still stands
+        return None
 
 
 # ---- conversion ------------------------------------------------------------------------------

@@ -202,3 +202,10 @@ def test_hostile_yaml_is_refused_without_crash_or_hang(name):
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert out.returncode == 0, out.stderr[-500:]
     assert int(out.stdout.strip()) >= 1
+
+
+def test_undeclared_negative_rail_is_a_reference_error():
+    text = MINI + "rails: {V12: {voltage: 12 V}}\ndevices: {U2: {profile: audio-power-amp-lv, rail: V12, negative_rail: VEE}}\n"
+    bad = of(check(text), "input.reference")
+    assert bad and bad[0].message.startswith("rail 'VEE' is not declared")
+    assert bad[0].location.path == "devices.U2.negative_rail"
