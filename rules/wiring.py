@@ -7,6 +7,8 @@ and potentials that led to the verdict.
 
 from __future__ import annotations
 
+import weakref
+
 from speccheck.findings import Value
 from speccheck.registry import rule
 
@@ -134,9 +136,14 @@ def crystal_dc(build, ctx):
 
 # ---- polarized capacitors ---------------------------------------------------------------
 
+_SPEAKER_CAPS = weakref.WeakKeyDictionary()  # build -> its speaker-line capacitors (three rules ask)
+
+
 def speaker_coupling_caps(build) -> dict:
     """Polarized capacitors in the speaker line -> (amplifier-side net, speaker-side net)."""
-    found = {}
+    if build in _SPEAKER_CAPS:
+        return _SPEAKER_CAPS[build]
+    found = _SPEAKER_CAPS[build] = {}
     nets = build.nets
     named = {s.coupling for s in build.stages("audio-amp") if s.coupling}
     for part in build.parts.values():

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import difflib
 import os
+from functools import lru_cache
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -67,7 +68,13 @@ class ConfigError(Exception):
 # ---- paths ---------------------------------------------------------------------------------
 
 def relative_to(path, root: str = "") -> str | None:
-    base = Path(root or os.getcwd()).resolve()
+    return _relative_to(os.fspath(path), root, os.getcwd())
+
+
+@lru_cache(maxsize=4096)
+def _relative_to(path: str, root: str, cwd: str) -> str | None:
+    """Cached: resolving a path costs system calls, and every finding's file needs it."""
+    base = Path(root or cwd).resolve()
     target = Path(os.path.abspath(path))
     try:
         return target.resolve().relative_to(base).as_posix()

@@ -70,11 +70,13 @@ def check_files(files, settings, jobs: int = 1) -> list:
     if jobs == 0:
         jobs = os.cpu_count() or 1
     if jobs <= 1 or len(files) < 2:
+        if len(files) > 1:
+            engine.warm_up()
         return [engine.check_file(f, settings) for f in files]
     from concurrent.futures import ProcessPoolExecutor
 
     workers = min(jobs, len(files))
-    with ProcessPoolExecutor(max_workers=workers) as pool:
+    with ProcessPoolExecutor(max_workers=workers, initializer=engine.warm_up) as pool:
         return list(pool.map(_check_one, files, [settings] * len(files),
                              chunksize=max(1, len(files) // (workers * 4))))
 

@@ -80,10 +80,17 @@ class Loaded:
 class _Context:
     def __init__(self, file: str, doc: yamlnodes.Document, findings: list):
         self.file, self.doc, self.findings = file, doc, findings
+        self._locations: dict = {}
 
     def loc(self, path, at_key: bool = False) -> Location:
-        mark = self.doc.key_mark(path) if at_key else self.doc.mark(path)
-        return Location(self.file, mark.line, mark.col, schema.dotted(path), mark.end_line, mark.end_col)
+        """The Location of a document path (made once, when first asked for)."""
+        key = (path, at_key)
+        found = self._locations.get(key)
+        if found is None:
+            mark = self.doc.key_mark(path) if at_key else self.doc.mark(path)
+            found = Location(self.file, mark.line, mark.col, schema.dotted(path), mark.end_line, mark.end_col)
+            self._locations[key] = found
+        return found
 
     def report(self, rule: str, message: str, path, at_key: bool = False):
         level = _INPUT_RULES[rule][0]
@@ -100,29 +107,36 @@ class _Context:
             self.report("input.value-range", f"{schema.dotted(path)} is {raw}: a {dim.replace('_', ' ')} "
                         f"here must be greater than zero", path)
             return None
-        return model.Q(si, dim, str(raw).strip(), self.loc(path))
+        return model.Q(si, dim, str(raw).strip(), self, path)
 
 
 @lru_cache(maxsize=None)
-def _field_specs(cls):
-    specs = []
+def _field_specs(cls) -> dict:
+    """YAML key -> (field name, metadata) of a model class."""
+    specs: dict = {}
     for f in dataclasses.fields(cls):
-        if f.name in ("loc", "locs"):
+        if f.name in ("src", "doc_path", "places") or f.metadata.get("derived"):
             continue
-        specs.append((f.name, f.metadata.get("key", f.name), f.metadata))
-    return tuple(specs)
+        key = f.metadata.get("key", f.name)
+        if key in specs:
+            raise TypeError(f"{cls.__name__}: fields {specs[key][0]} and {f.name} both read key '{key}'")
+        specs[key] = (f.name, f.metadata)
+    return specs
 
 
 def _build_obj(cls, data, path, ctx: _Context, **extra):
     obj = cls(**extra)
-    obj.loc = ctx.loc(path)
+    obj.src, obj.doc_path = ctx, path
     if not isinstance(data, dict):
         return obj
-    for name, key, meta in _field_specs(cls):
-        if key not in data:
+    specs = _field_specs(cls)
+    for key, raw in data.items():  # a part names 5 of its 40 possible fields: walk what is there
+        spec = specs.get(key)
+        if spec is None:
             continue
-        raw, here = data[key], path + (key,)
-        obj.locs[name] = ctx.loc(here)
+        name, meta = spec
+        here = path + (key,)
+        obj.places[name] = here
         if raw is None:
             continue
         if "dim" in meta:
@@ -154,7 +168,7 @@ def _special_fields(obj, data, path, ctx: _Context):
                            "fields of its kind (frequency, center, current_rating ...)", path + ("value",), True)
         adjust = data.get("adjust")
         if isinstance(adjust, dict) and dim:
-            obj.adjust = model.Adjust(loc=ctx.loc(path + ("adjust",)))
+            obj.adjust = model.Adjust(src=ctx, doc_path=path + ("adjust",))
             for end in ("min", "max"):
                 if end in adjust:
                     setattr(obj.adjust, end, ctx.quantity(adjust[end], dim, path + ("adjust", end), end))

@@ -1,13 +1,14 @@
 """The typed, unit-converted model of one build plan. Rules read this, never raw YAML.
 
 Every quantity is a `Q`: its value in SI units (°C for temperatures, dBm for levels, dB for
-gains), the dimension it was checked for, the text the user wrote and where. Every model
+gains), the dimension it was checked for, the text the user wrote and where (`q.loc`). Every model
 object knows the position of each of its fields (`obj.at("field")`), so a rule can point a
 finding at the exact value it is about.
 
 Field metadata says how the loader fills a field: `dim` for a quantity, `node` for a nested
 object, `nodes` for a mapping of objects keyed by name, `items` for a list of objects, `key`
-when the YAML key differs from the Python name.
+when the YAML key differs from the Python name, `derived` for a field the loader computes
+(never read from the file).
 """
 
 from __future__ import annotations
@@ -19,12 +20,20 @@ from speccheck import units
 from speccheck.findings import Location
 
 
+NOWHERE = Location("")
+
+
 @dataclass(frozen=True, slots=True)
 class Q:
     si: float
     dim: str
     text: str
-    loc: Location
+    src: object = field(default=None, repr=False, compare=False)  # the loader's position source
+    doc_path: tuple = field(default=(), repr=False, compare=False)
+
+    @property
+    def loc(self) -> Location:
+        return self.src.loc(self.doc_path) if self.src is not None else NOWHERE
 
     @property
     def unit(self) -> str:
@@ -59,14 +68,23 @@ def plain(default=None, key: str | None = None):
 
 @dataclass(eq=False)
 class Located:
-    loc: Location = field(default=None, repr=False)
-    locs: dict = field(default_factory=dict, repr=False)  # field name -> Location of its value
+    """Knows where it and each of its fields sit in the file. Positions become Locations only
+    when asked for (most are never pointed at), through `src`, the loader's position source."""
+
+    src: object = field(default=None, repr=False)
+    doc_path: tuple = field(default=(), repr=False)
+    places: dict = field(default_factory=dict, repr=False)  # field name -> document path of its value
+
+    @property
+    def loc(self) -> Location:
+        return self.src.loc(self.doc_path) if self.src is not None else NOWHERE
 
     def at(self, name: str) -> Location:
-        return self.locs.get(name) or self.loc
+        path = self.places.get(name)
+        return self.src.loc(path) if path is not None else self.loc
 
     def given(self, name: str) -> bool:
-        return name in self.locs
+        return name in self.places
 
 
 # ---- build, signals, source ------------------------------------------------------------
@@ -210,7 +228,7 @@ class Device(Located):
     heat_sink: HeatSink = sub(HeatSink)
     load_current: Q = qty("current")
     note: str = plain(None)
-    profile: Profile = field(default=None, repr=False)  # resolved by the loader
+    profile: Profile = field(default=None, repr=False, metadata={"derived": True})  # resolved by the loader
 
     def pin(self, name: str) -> Pin | None:
         return self.profile.pins.get(name) if self.profile else None
@@ -323,7 +341,7 @@ class OutputNetwork(Located):
 @dataclass(eq=False)
 class Stage(Located):
     kind: str = plain("", key="stage")
-    index: int = plain(0)
+    index: int = field(default=0, metadata={"derived": True})  # position in the chain
     name: str = plain(None)
     device: str = plain(None)
     parts: list = plain([])
@@ -354,7 +372,7 @@ class Stage(Located):
 
 @dataclass(eq=False)
 class Build(Located):
-    file: str = ""
+    file: str = field(default="", metadata={"derived": True})
     build_spec: int = plain(1)
     build: BuildInfo = sub(BuildInfo)
     signals: list = items(Signal)

@@ -9,6 +9,7 @@ named beside it there.
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 from decimal import ROUND_HALF_UP, Decimal
 
 TWO_PI = 2.0 * math.pi
@@ -248,14 +249,19 @@ def nearest_preferred(value: float, series=E24) -> tuple[float, float]:
     decade = math.floor(math.log10(value))
     best = None
     for d in (decade - 1, decade, decade + 1):
-        scale = 10.0 ** d
-        for mantissa in series:
-            cand = float(f"{mantissa * scale:.6g}")
+        for cand in _decade(d, series):
             dist = abs(math.log(cand / value))
             if best is None or dist < best[0]:
                 best = (dist, cand)
     pick = best[1]
     return pick, pick / value - 1.0
+
+
+@lru_cache(maxsize=256)
+def _decade(exponent: int, series: tuple) -> tuple:
+    """The series' values in one decade, rounded to 6 digits so that 4.7e-9 stays 4.7e-9."""
+    scale = 10.0 ** exponent
+    return tuple(float(f"{mantissa * scale:.6g}") for mantissa in series)
 
 
 def toroid_turns(inductance: float, al: float) -> float:
