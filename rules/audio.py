@@ -163,15 +163,10 @@ def coupling_corner(build, ctx):
 def speaker_dc(build, ctx):
     nets = build.nets
     for part in build.parts.values():
-        if part.kind != "speaker" or len(part.ends) != 2:
+        known = nets.across(part) if part.kind == "speaker" else None
+        if known is None or known[4] <= DC_THRESHOLD:
             continue
-        a, b = part.ends
-        pa, pb = nets.dc(a), nets.dc(b)
-        if pa is None or pb is None:
-            continue
-        across = abs(pa.volts - pb.volts)
-        if across <= DC_THRESHOLD:
-            continue
+        a, pa, b, pb, across = known
         values = [Value(a, pa.volts, "V"), Value(b, pb.volts, "V"), Value("DC across", across, "V")]
         tail = ""
         if part.value is not None:

@@ -119,15 +119,10 @@ def _check_coil_return(build, ctx, dev, pin_net, coil):
 def crystal_dc(build, ctx):
     nets = build.nets
     for part in build.parts.values():
-        if part.kind != "crystal" or len(part.ends) != 2:
+        known = nets.across(part) if part.kind == "crystal" else None
+        if known is None or known[4] <= DC_THRESHOLD:
             continue
-        a, b = part.ends
-        pa, pb = nets.dc(a), nets.dc(b)
-        if pa is None or pb is None:
-            continue
-        across = abs(pa.volts - pb.volts)
-        if across <= DC_THRESHOLD:
-            continue
+        a, pa, b, pb, across = known
         ctx.report(f"{part.name} has {across:.3g} V DC across it: {a} at {pa.volts:g} V ({pa.why}) and "
                    f"{b} at {pb.volts:g} V ({pb.why}); no series capacitor blocks it",
                    part.at("ends"), [_volts(a, pa), _volts(b, pb), Value("DC across crystal", across, "V")],
@@ -283,13 +278,10 @@ def speaker_coupling(build, ctx):
 def cap_voltage(build, ctx):
     nets = build.nets
     for part in build.parts.values():
-        if part.kind != "capacitor" or len(part.ends) != 2:
+        known = nets.across(part) if part.kind == "capacitor" else None
+        if known is None:
             continue
-        a, b = part.ends
-        pa, pb = nets.dc(a), nets.dc(b)
-        if pa is None or pb is None:
-            continue
-        dc = abs(pa.volts - pb.volts)
+        a, pa, b, pb, dc = known
         peak = part.ac_peak.si if part.ac_peak else 0.0
         working = dc + peak
         if part.voltage_rating is None:

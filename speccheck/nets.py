@@ -125,5 +125,16 @@ class NetGraph:
     def dc(self, net: str | None) -> Potential | None:
         return self.potentials.get(net) if net else None
 
+    def across(self, part) -> tuple | None:
+        """(net a, Potential a, net b, Potential b, |difference| in V) for a two-ended part whose
+        nets both have a known DC potential, else None."""
+        if len(part.ends) != 2:
+            return None
+        a, b = part.ends
+        pa, pb = self.dc(a), self.dc(b)
+        if pa is None or pb is None:
+            return None
+        return a, pa, b, pb, abs(pa.volts - pb.volts)
+
     def parts_on(self, net: str) -> list:
         return self.members.get(net, [])

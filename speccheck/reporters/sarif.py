@@ -30,25 +30,17 @@ def _name(rule_id: str) -> str:
     return "".join(word.capitalize() for word in rule_id.replace(".", "-").split("-") if word)
 
 
-def _help_text(rule) -> str:
-    parts = [rule.explanation, f"Fix: {rule.fix}"]
+def _help(rule, markdown: bool = False) -> str:
+    """The rule's help, as plain text or as Markdown (the same words either way)."""
+    bold = (lambda t: f"**{t}**") if markdown else (lambda t: t)
+    code = (lambda t: f"`{t}`") if markdown else (lambda t: t)
+    parts = [rule.explanation, f"{bold('Fix:')} {rule.fix}"]
     if rule.verify:
-        parts.append(f"Verify on the bench: {rule.verify}")
-    parts.append(f"Source of the numbers: {rule.source}")
+        parts.append(f"{bold('Verify on the bench:')} {rule.verify}")
+    parts.append(f"{bold('Source of the numbers:')} {rule.source}")
     if rule.settings:
-        parts.append("Settings (project file, rules.settings): "
-                     + ", ".join(f"{k} = {v!r}" for k, v in rule.settings.items()))
-    return "\n\n".join(parts)
-
-
-def _help_markdown(rule) -> str:
-    parts = [rule.explanation, f"**Fix:** {rule.fix}"]
-    if rule.verify:
-        parts.append(f"**Verify on the bench:** {rule.verify}")
-    parts.append(f"**Source of the numbers:** {rule.source}")
-    if rule.settings:
-        parts.append("**Settings** (project file, `rules.settings`): "
-                     + ", ".join(f"`{k}` = `{v!r}`" for k, v in rule.settings.items()))
+        parts.append(f"{bold('Settings')} (project file, {code('rules.settings')}): "
+                     + ", ".join(f"{code(k)} = {code(repr(v))}" for k, v in rule.settings.items()))
     return "\n\n".join(parts)
 
 
@@ -61,7 +53,7 @@ def descriptor(rule) -> dict:
     return {"id": rule.id, "name": _name(rule.id),
             "shortDescription": {"text": rule.title},
             "fullDescription": {"text": rule.explanation or rule.title},
-            "help": {"text": _help_text(rule), "markdown": _help_markdown(rule)},
+            "help": {"text": _help(rule), "markdown": _help(rule, markdown=True)},
             "defaultConfiguration": {"level": rule.level},
             "properties": props}
 
