@@ -11,6 +11,7 @@ unknown rather than guessed.
 from __future__ import annotations
 
 import heapq
+import weakref
 from dataclasses import dataclass
 
 ZERO_DROP = {"inductor", "fuse", "switch", "speaker", "connector", "transformer"}
@@ -34,7 +35,9 @@ def split_pin(net: str) -> tuple[str, str] | None:
 
 class NetGraph:
     def __init__(self, build):
-        self.build = build
+        # A proxy, not the build itself: the build caches this graph, and a reference cycle
+        # would leave every checked build for the cyclic garbage collector to find.
+        self.build = weakref.proxy(build)
         self.links: dict[str, list] = {}  # net -> [(part, other net, cost)]
         self.members: dict[str, list] = {}  # net -> [part]
         for part in build.parts.values():
