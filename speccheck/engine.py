@@ -43,8 +43,12 @@ class Context:
 
     def report(self, message: str, at: Location, values=(), fix: str | None = None, level: str | None = None,
                stage: str = "") -> Finding:
+        if fix is None:
+            # A note a rule lowers itself to says what it could not check; the rule's fix (for
+            # the mistake it looks for) would read as advice about something not found.
+            fix = "" if level == "note" and self.rule.level != "note" else self.rule.fix
         found = Finding(self.rule.id, self.settings.level_for(self.rule.id, level or self.rule.level), message,
-                        at or Location(self.result.path), list(values), fix or self.rule.fix, stage)
+                        at or Location(self.result.path), list(values), fix, stage)
         self.result.findings.append(found)
         return found
 
@@ -101,6 +105,13 @@ def finish(result: FileResult, settings: Settings):
     for f in result.findings:
         f.level = settings.level_for(f.rule, f.level)
     result.findings.sort(key=Finding.sort_key)
+    unique, said = [], set()
+    for f in result.findings:  # two stages may see the same slip (schema and units): say it once
+        key = (f.rule, f.location.line, f.location.col, f.message)
+        if key not in said:
+            said.add(key)
+            unique.append(f)
+    result.findings = unique
     seen: dict = {}
     files: dict = {}
     for f in result.findings:
@@ -134,8 +145,7 @@ def warm_up():
 
 def check_loaded(loaded: loader.Loaded, settings: Settings) -> FileResult:
     result = FileResult(loaded.path, list(loaded.findings))
-    if loaded.build is not None:
-        result.build_name = loaded.build.build.name if loaded.build.build else ""
+    result.build_name = loaded.name
     if loaded.can_check:
         run_rules(loaded.build, result, settings)
         result.checked = True

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 
 from speccheck import units
@@ -35,7 +36,10 @@ class Value:
         return units.fmt(self.value, self.unit)
 
     def as_dict(self) -> dict:
-        return {"name": self.name, "value": self.value, "unit": self.unit, "text": self.text}
+        value = self.value
+        if isinstance(value, float) and not math.isfinite(value):
+            value = None  # JSON has no infinity; the text says it
+        return {"name": self.name, "value": value, "unit": self.unit, "text": self.text}
 
 
 @dataclass(slots=True)

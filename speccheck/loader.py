@@ -51,6 +51,16 @@ _INPUT_RULES = {
                           "zero; zero or a negative number there would divide by zero or flip a sign in the "
                           "arithmetic.",
                           "Give the real, positive value."),
+    "input.shorted-part": ("error", "A part with both ends on the same net",
+                           "A two-ended part whose two ends connect to the same net does nothing: it is shorted "
+                           "out. In a plan it is nearly always a typing slip in 'ends'.",
+                           "Write the two different nets the part's ends connect to."),
+    "input.rail-loop": ("error", "Rails that feed each other",
+                        "A rail made by a regulator that is itself powered from that rail (directly or through "
+                        "other regulators) has no source; the current budget and the regulator rules cannot "
+                        "follow it back to the supply.",
+                        "Name in 'from' the device that really makes the rail, and power that device from a rail "
+                        "nearer the supply."),
     "input.reference": ("error", "A name refers to nothing",
                         "Parts, devices, profiles, rails and IF paths are referred to by name. A name that is "
                         "not declared is usually a typing slip, and the rule that needs it cannot run.",
@@ -74,7 +84,17 @@ class Loaded:
 
     @property
     def can_check(self) -> bool:
-        return self.build is not None and not any(f.rule == "input.schema" for f in self.findings)
+        """Rules run only on a file with no input error: on a broken one they would guess, or
+        call a value that was given but refused 'not given'."""
+        return self.build is not None and not any(f.rule.startswith("input.") and f.level == "error"
+                                                  for f in self.findings)
+
+    @property
+    def name(self) -> str:
+        """The build's name, even when the file did not get as far as a model."""
+        info = self.doc.data.get("build") if self.doc is not None and isinstance(self.doc.data, dict) else None
+        name = info.get("name") if isinstance(info, dict) else None
+        return name if isinstance(name, str) else ""
 
 
 class _Context:
@@ -104,8 +124,12 @@ class _Context:
             self.report("input.unit", f"{schema.dotted(path)}: {exc}", path)
             return None
         if dim in POSITIVE_DIMS and (si < 0 or (si == 0 and name not in ZERO_ALLOWED)):
-            self.report("input.value-range", f"{schema.dotted(path)} is {raw}: a {dim.replace('_', ' ')} "
+            self.report("input.value-range", f"{schema.dotted(path)} is {raw}: {units.article(dim)} "
                         f"here must be greater than zero", path)
+            return None
+        why = units.implausible(si, dim)
+        if why:
+            self.report("input.value-range", f"{schema.dotted(path)} is {raw}, which {why}", path)
             return None
         return model.Q(si, dim, str(raw).strip(), self, path)
 
@@ -251,7 +275,7 @@ def load_text(text: str, file: str, base_dir: Path | None = None) -> Loaded:
     findings: list = []
     doc, ok = _parse_file(text, file, "build", findings)
     result = Loaded(file, None, findings, doc, text)
-    if doc.data is None or not isinstance(doc.data, dict) or any(f.rule == "input.yaml-syntax" for f in findings):
+    if not ok:  # a structure the schema refused: building a model on it would only guess
         return result
     ctx = _Context(file, doc, findings)
     build = _build_obj(model.Build, doc.data, (), ctx, file=file)
@@ -317,6 +341,13 @@ def _resolve(build: model.Build, ctx: _Context):
                     missing("device", pin_of[0], part, "ends", build.devices)
                 elif dev.profile and pin_of[1] not in dev.profile.pins:
                     missing(f"pin of {dev.name} ({dev.profile.name})", pin_of[1], part, "ends", dev.profile.pins)
+        for pair_name in ("ends", "primary", "secondary"):
+            pair = getattr(part, pair_name)
+            if len(pair) == 2 and pair[0] == pair[1]:
+                ctx.findings.append(Finding("input.shorted-part", "error",
+                                            f"both {pair_name} of {part.name} connect to {pair[0]}: the part is "
+                                            f"shorted out", part.at(pair_name),
+                                            fix=_INPUT_RULES["input.shorted-part"][3], stage="input"))
         if part.positive and part.positive not in part.ends:
             ctx.findings.append(Finding("input.reference", "error",
                                         f"{part.name}.positive is '{part.positive}', which is not one of its ends "
@@ -335,6 +366,7 @@ def _resolve(build: model.Build, ctx: _Context):
     for rail in build.rails.values():
         if rail.source not in (None, "supply") and rail.source not in build.devices:
             missing("device", rail.source, rail, "source", build.devices)
+    _rail_loops(build, ctx)
     paths = {name for st in build.chain for name in st.paths}
     for sig in build.signals:
         if sig.path and paths and sig.path not in paths:
@@ -358,6 +390,26 @@ def _resolve(build: model.Build, ctx: _Context):
                     missing("part", ref, stage.oscillator, "load_caps", build.parts)
         for path in stage.paths.values():
             _check_part(build, path, "filter", missing)
+
+
+def _rail_loops(build: model.Build, ctx: _Context):
+    """A rail whose chain of 'from' regulators leads back to itself."""
+    for start in build.rails.values():
+        seen, rail = [], start
+        while rail is not None and rail.source not in (None, "supply"):
+            dev = build.devices.get(rail.source)
+            if dev is None or not dev.rail:
+                break
+            seen.append(f"{rail.name} from {dev.name} on {dev.rail}")
+            if dev.rail == start.name:
+                ctx.findings.append(Finding("input.rail-loop", "error",
+                                            f"rail {start.name} feeds itself: {'; '.join(seen)}",
+                                            start.at("source"), fix=_INPUT_RULES["input.rail-loop"][3],
+                                            stage="input"))
+                break
+            rail = build.rails.get(dev.rail)
+            if len(seen) > len(build.rails):
+                break
 
 
 def _check_part(build, holder, field_name, missing):

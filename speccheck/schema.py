@@ -77,6 +77,21 @@ def _dimension(schema: dict) -> str | None:
     return None
 
 
+def shown(value) -> str:
+    """A value as the user wrote it in YAML, not as Python spells it."""
+    if value is None:
+        return "an empty value"
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, dict):
+        return "a mapping"
+    if isinstance(value, str):
+        return f"'{value[:60]}'"
+    return f"{value:g}" if isinstance(value, float) else str(value)
+
+
 def explain(error) -> list[tuple[tuple, str, bool]]:
     """One jsonschema error -> [(path, message, at_key)]; at_key points the finding at the key."""
     from speccheck import units
@@ -96,9 +111,10 @@ def explain(error) -> list[tuple[tuple, str, bool]]:
         return [(path, f"missing key '{missing}'{_where(path)}", False)]
     if kind == "enum":
         choices = ", ".join(str(c) for c in error.validator_value)
-        return [(path, f"'{inst}' is not allowed here; use one of: {choices}{_suggest(inst, error.validator_value)}", False)]
+        hint = _suggest(inst, error.validator_value) if isinstance(inst, str) else ""
+        return [(path, f"{shown(inst)} is not allowed here; use one of: {choices}{hint}", False)]
     if kind == "const":
-        return [(path, f"{dotted(path)} must be {error.validator_value!r}, got {inst!r}", False)]
+        return [(path, f"{dotted(path)} must be {shown(error.validator_value)}, got {shown(inst)}", False)]
     if kind == "type":
         dim = _dimension(schema)
         if dim:
@@ -108,11 +124,11 @@ def explain(error) -> list[tuple[tuple, str, bool]]:
                 return [(path, f"{dotted(path)}: {exc}", False)]
         want = error.validator_value
         want = " or ".join(want) if isinstance(want, list) else want
-        shown = "a list" if isinstance(inst, list) else "a mapping" if isinstance(inst, dict) else repr(inst)
-        return [(path, f"{dotted(path) or 'the file'} should be {'an' if want[0] in 'aeiou' else 'a'} {want}, got {shown}", False)]
+        return [(path, f"{dotted(path) or 'the file'} should be {'an' if want[0] in 'aeiou' else 'a'} {want}, "
+                       f"got {shown(inst)}", False)]
     if kind == "pattern":
         what = schema.get("description", "a name of letters, digits and _ - + .").split(":")[0]
-        return [(path, f"'{inst}' is not a valid name here: expected {what}", False)]
+        return [(path, f"{shown(inst)} is not a valid name here: expected {what}", False)]
     if kind == "propertyNames":
         return [(path, f"'{inst}' is not a valid name{_where(path[:-1] if path else path)}", True)]
     if kind in ("minItems", "maxItems"):

@@ -38,6 +38,17 @@ DIMENSIONS: dict[str, tuple[str, str, str]] = {
     "gain": ("dB", "dB", "10 dB"),
 }
 
+# Bounds no receive-side bench build comes near: past them a value is a slip of the finger
+# (a wrong prefix, a stray exponent), and arithmetic on it would only print nonsense.
+# Magnitudes in SI units; temperatures in °C, levels in dBm, gains in dB.
+PLAUSIBLE: dict[str, tuple[float, float]] = {
+    "frequency": (0.0, 1e12), "capacitance": (0.0, 100.0), "inductance": (0.0, 1e3),
+    "resistance": (0.0, 1e13), "voltage": (-1e6, 1e6), "current": (0.0, 1e5), "power": (0.0, 1e7),
+    "apparent_power": (0.0, 1e7), "time": (0.0, 1e7), "temperature": (-273.15, 1e4),
+    "thermal_resistance": (0.0, 1e4), "length": (0.0, 1e4), "inductance_factor": (0.0, 1e-3),
+    "i2t": (0.0, 1e9), "fraction": (0.0, 10.0), "level": (-300.0, 100.0), "gain": (-200.0, 200.0),
+}
+
 ARTICLE = {"inductance": "an inductance", "apparent_power": "an apparent power", "i2t": "an I²t value",
            "inductance_factor": "an inductance factor (AL)", "fraction": "a plain ratio"}
 
@@ -52,6 +63,16 @@ _PER_TURN = re.compile(r"\s*/\s*(turn|t)(\^2|\*\*2)\s*$")
 
 class UnitError(ValueError):
     """A value that cannot stand for the quantity the field wants; the text says why."""
+
+
+def implausible(value: float, dim: str) -> str | None:
+    """Why a value lies outside what any build could mean, or None."""
+    low, high = PLAUSIBLE[dim]
+    if dim == "temperature" and value < low:
+        return "is below absolute zero"
+    if abs(value) > max(abs(low), high) or (dim in ("level", "gain") and not low <= value <= high):
+        return f"is far beyond any bench build (limit {fmt(high, DIMENSIONS[dim][1])})"
+    return None
 
 
 def article(dim: str) -> str:
@@ -148,7 +169,9 @@ def _parse(text: object, dim: str) -> float:
     if dim not in DIMENSIONS:
         raise KeyError(dim)
     example = DIMENSIONS[dim][2]
-    if isinstance(text, bool) or text is None:
+    if isinstance(text, bool) or text is None or isinstance(text, (list, dict)):
+        raise UnitError(f"expected {article(dim)} such as '{example}'")
+    if not isinstance(text, (str, int, float)):
         raise UnitError(f"expected {article(dim)} such as '{example}'")
     if isinstance(text, (int, float)):
         if dim != "fraction":
@@ -199,8 +222,11 @@ def fmt(value: float, unit: str, digits: int | None = None) -> str:
     10.24 MHz, and a frequency plan is about such offsets); every other quantity gets 4
     significant digits.
     """
-    if value is None or not math.isfinite(value):
-        return f"{value} {unit}".strip()
+    if value is None:
+        return unit
+    if not math.isfinite(value):
+        shown = "not a number" if math.isnan(value) else ("∞" if value > 0 else "-∞")
+        return f"{shown} {unit}".strip()
     if unit in _NO_PREFIX or value == 0:
         return f"{value:.{digits or 4}g} {unit}".strip()
     mag = abs(value)

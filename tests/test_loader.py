@@ -209,3 +209,30 @@ def test_undeclared_negative_rail_is_a_reference_error():
     bad = of(check(text), "input.reference")
     assert bad and bad[0].message.startswith("rail 'VEE' is not declared")
     assert bad[0].location.path == "devices.U2.negative_rail"
+
+
+def test_part_with_both_ends_on_one_net_is_refused(clean_text):
+    from conftest import edited
+
+    text = edited(clean_text, "ends: [U1.osc_base, V6]", "ends: [V6, V6]")
+    bad = of(check(text), "input.shorted-part")
+    assert bad and bad[0].message == "both ends of X1 connect to V6: the part is shorted out"
+    assert bad[0].location.line == line_of(text, "ends: [V6, V6]")
+
+
+def test_rail_that_feeds_itself_is_refused(clean_text):
+    from conftest import edited
+
+    text = edited(clean_text, "V12: {voltage: 12 V, from: supply}", "V12: {voltage: 12 V, from: U3}")
+    bad = of(check(text), "input.rail-loop")
+    assert bad and bad[0].message.startswith("rail V12 feeds itself: V12 from U3 on V12")
+
+
+@pytest.mark.parametrize("value,why", [("-300 degC", "below absolute zero"), ("1e300 kHz", "far beyond")])
+def test_impossible_values_are_refused(clean_text, value, why):
+    from conftest import edited
+
+    field = "ambient_max: 40 degC" if "degC" in value else "deviation: 5 kHz"
+    text = edited(clean_text, field, field.split(":")[0] + ": " + value)
+    bad = of(check(text), "input.value-range")
+    assert bad and why in bad[0].message

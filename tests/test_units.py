@@ -40,3 +40,13 @@ def test_frequency_field_refuses(text):
 def test_refuses_long_text():
     with pytest.raises(units.UnitError, match="longer than"):
         units.parse("1" * 100 + " Hz", "frequency")
+
+
+def test_infinite_values_read_as_infinity_and_are_null_in_json():
+    import json
+
+    from speccheck.findings import Value
+
+    v = Value("return loss", float("inf"), "dB")
+    assert v.text == "∞ dB"
+    assert json.loads(json.dumps(v.as_dict()))["value"] is None

@@ -26,12 +26,8 @@ class RunInfo:
 
 
 def value_dict(v) -> dict:
-    """A Value as JSON-safe data: a non-finite number (inf, nan) becomes its text, since JSON has none."""
-    out = v.as_dict()
-    x = out.get("value")
-    if isinstance(x, float) and (x != x or x in (float("inf"), float("-inf"))):
-        out["value"] = str(x)
-    return out
+    """A Value as JSON-safe data (Value.as_dict writes a non-finite number as null; its text says it)."""
+    return v.as_dict()
 
 
 def totals(results) -> dict:
