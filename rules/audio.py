@@ -176,3 +176,53 @@ def speaker_dc(build, ctx):
         ctx.report(f"{part.name} has {fmt(across, 'V')} DC across it, {a} at {pa.volts:g} V ({pa.why}) and {b} at "
                    f"{pb.volts:g} V{tail}", part.at("ends"), values,
                    stage=(build.stage_of_part(part.name).label if build.stage_of_part(part.name) else "audio-amp"))
+
+
+def _input_nets(dev) -> list:
+    if dev is None or dev.profile is None:
+        return []
+    return [f"{dev.name}.{pin.name}" for pin in dev.profile.pins.values() if pin.role == "input"]
+
+
+@rule("audio.input-bypass", level="warning",
+      title="Small RF bypass capacitor at the audio amplifier input",
+      explanation="""
+      A receiver is full of RF: the IF, the local oscillator and their harmonics travel along the
+      audio wiring. An audio power amplifier's input stage rectifies whatever RF reaches it, and
+      the result is hum, buzz, whistles or instability that no tuning cures. A small capacitor
+      from the amplifier input to ground (a few hundred picofarads to a few nanofarads) shorts
+      the RF while leaving the audio untouched: 470 pF against a 10 kohm source turns over near
+      34 kHz, far above any voice or music.
+      """,
+      fix="Fit about 470 pF to 1 nF from the amplifier input pin to ground, close to the pin, and name it in "
+          "the audio-amp stage's input_bypass.",
+      source="common practice (audio amplifier IC application circuits in radio receivers)",
+      verify="With the receiver tuned to a strong carrier and the volume down, listen and look at the speaker "
+             "output on a scope: hum or a buzz that changes with the RF level means RF reaches the amplifier.",
+      settings={"smallest": 100e-12, "largest": 10e-9})
+def input_bypass(build, ctx):
+    nets = build.nets
+    for stage in build.stages("audio-amp"):
+        dev = build.device(stage.device)
+        if stage.input_bypass is None:
+            ctx.report(f"the {stage.label} stage names no input_bypass: nothing keeps RF out of "
+                       f"{dev.name if dev else 'the amplifier'}'s input", stage.at("kind"), stage=stage.label)
+            continue
+        cap = build.part(stage.input_bypass)
+        if cap is None:
+            continue  # input.reference names it
+        if cap.kind != "capacitor" or cap.value is None:
+            ctx.report(f"input_bypass {cap.name} is a {cap.kind}{'' if cap.value else ' with no value'}; an RF bypass "
+                       f"is a small capacitor", stage.at("input_bypass"), level="note", stage=stage.label)
+            continue
+        ctx.publish("audio", stage.label, f"input bypass {cap.name}", cap.value.si, "F")
+        on_input = [e for e in cap.ends if e in _input_nets(dev)]
+        to_ground = [e for e in cap.ends if nets.is_ground(e)]
+        if dev is not None and (not on_input or not to_ground):
+            ctx.report(f"input_bypass {cap.name} does not sit between an input pin of {dev.name} and ground "
+                       f"(its ends: {', '.join(cap.ends)})", cap.at("ends"), level="note", stage=stage.label)
+        lo, hi = ctx.setting("smallest"), ctx.setting("largest")
+        if not lo <= cap.value.si <= hi:
+            ctx.report(f"input_bypass {cap.name} is {cap.value.text}: outside {fmt(lo, 'F')} to {fmt(hi, 'F')}, "
+                       f"{'too small to short the RF' if cap.value.si < lo else 'large enough to cut the treble'}",
+                       cap.at("value"), [Value("bypass", cap.value.si, "F")], stage=stage.label)

@@ -12,6 +12,7 @@ setting that speccheck does not know is an error naming it at file:line:col, nev
 from __future__ import annotations
 
 import difflib
+import math
 import os
 from functools import lru_cache
 import re
@@ -228,6 +229,24 @@ def _type_ok(value, default) -> bool:
     return True
 
 
+# Bounds of rule settings: every default is a positive number; shares are fractions of one;
+# search orders are bounded so that a project file cannot make a check run for hours.
+_SHARE_WORDS = ("share", "derating", "tolerance")
+_MOST = {"order": 15, "harmonic_order": 200, "max_listed": 500}
+
+
+def _range_problem(name: str, value) -> str | None:
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return None
+    if not math.isfinite(value) or value <= 0:
+        return "must be a number greater than 0"
+    if any(word in name for word in _SHARE_WORDS) and value > 1:
+        return "is a share and must be at most 1"
+    if name in _MOST and value > _MOST[name]:
+        return f"must be at most {_MOST[name]}"
+    return None
+
+
 def _kind(value) -> str:
     if isinstance(value, bool):
         return "true or false"
@@ -295,6 +314,9 @@ def load_project(path) -> Settings:
                 default = found.settings[name]
                 reader.error(where + (name,), f"{rule_id}.{name} should be {_kind(default)} like its default "
                              f"{default!r}, got {value!r}")
+            elif _range_problem(name, value):
+                reader.error(where + (name,), f"{rule_id}.{name} is {value!r}, but it "
+                             f"{_range_problem(name, value)}")
     if reader.errors:
         raise ConfigError(reader.sorted())
 

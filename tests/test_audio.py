@@ -132,3 +132,24 @@ def test_speaker_straight_on_a_half_supply_output(clean_text):
 
 def test_capacitor_coupled_speaker_has_no_dc(clean_text):
     assert of(check(clean_text), "audio.speaker-dc") == []
+
+
+# ---- audio.input-bypass (values: common practice, a few hundred pF to a few nF) -------------------------
+
+def test_input_bypass_present_and_in_range_is_quiet(clean_text):
+    assert of(check(clean_text), "audio.input-bypass") == []
+
+
+def test_missing_input_bypass_is_a_warning_at_the_stage(clean_text):
+    text = edited(clean_text, "    input_bypass: C22\n", "")
+    found = of(check(text), "audio.input-bypass")
+    assert [f.level for f in found] == ["warning"]
+    assert found[0].message.startswith("the audio-amp stage names no input_bypass")
+    assert found[0].location.line == line_of(text, "- stage: audio-amp")
+
+
+def test_input_bypass_too_large_cuts_the_treble(clean_text):
+    text = edited(clean_text, "C22: {kind: capacitor, value: 470 pF", "C22: {kind: capacitor, value: 47 nF")
+    found = of(check(text), "audio.input-bypass")
+    assert found and "large enough to cut the treble" in found[0].message
+    assert found[0].location.line == line_of(text, "C22: {kind: capacitor")

@@ -1,5 +1,6 @@
 """The project file: where it is found, what it may say, how it is validated, and precedence."""
 
+from pathlib import Path
 import json
 
 import jsonschema
@@ -225,3 +226,19 @@ def test_glob_dialect(pattern, path, hit):
 
 def test_defaults_want_everything():
     assert Settings().wants("anything.yaml")
+
+
+def test_setting_out_of_range_is_refused_at_its_position(tmp_path):
+    from click.testing import CliRunner
+
+    from speccheck.cli import main
+
+    (tmp_path / "plan.yaml").write_text((Path(__file__).parent.parent / "examples" / "vhf-monitor-455k.yaml")
+                                        .read_text("utf-8"))
+    (tmp_path / "speccheck-project.yaml").write_text(
+        "speccheck_project: 1\nrules:\n  settings:\n    wiring.cap-voltage: {derating: 1.5}\n"
+        "    freqplan.mixer-spurs: {order: 1000}\n")
+    res = CliRunner().invoke(main, ["check", str(tmp_path)])
+    assert res.exit_code == 2
+    assert "speccheck-project.yaml:4:" in res.output and "is a share and must be at most 1" in res.output
+    assert "speccheck-project.yaml:5:" in res.output and "must be at most 15" in res.output
