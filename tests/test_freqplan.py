@@ -376,7 +376,11 @@ def test_if_harmonic_on_the_tuned_frequency_is_a_birdie(clean_text):
     text = edited(text, "frequency: 10.245 MHz", "frequency: 10.010 MHz")
     found = of(check(text), "freqplan.mixer-spurs")
     assert [f.level for f in found] == ["warning"]
-    assert "IF harmonic 23 at 10.4665" in found[0].message
+    # the LO is pulled by its load: D = C1m / (2 (C0 + CL)) (crystal pulling, issue check value form);
+    # X1: C1m 15 fF, C0 4 pF, specified 20 pF, oscillator load 33 pF || 33 pF + 4 pF stray = 20.5 pF
+    shift = 15e-15 / (2 * (4e-12 + 20.5e-12)) - 15e-15 / (2 * (4e-12 + 20e-12))
+    f_if = 10.465e6 - 10.010e6 * (1 + shift)
+    assert f"IF harmonic 23 at {23 * f_if / 1e6:.6g}" in found[0].message
     assert found[0].location.line == line_of(text, "oscillator: {crystal: X1")
 
 
@@ -428,7 +432,9 @@ def test_broadcast_deviation_exceeds_the_linear_range():
     text = path.read_text("utf-8")
     found = of(engine.check_file(path), "freqplan.tank-range")
     assert [f.level for f in found] == ["warning"]
-    assert "less than the 151.4 kHz that local FM station swings" in found[0].message
+    # 2 x (75 kHz deviation + drift): source drift 500 Hz + crystal 20 ppm of 10.245 MHz (plain arithmetic)
+    need = 2 * (75e3 + 500 + 20e-6 * 10.245e6)
+    assert f"less than the {need / 1e3:.4g} kHz that local FM station swings" in found[0].message
     assert found[0].location.line == line_of(text, "R5: {kind: resistor")
 
 
