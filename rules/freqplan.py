@@ -384,8 +384,9 @@ def conversion(build, ctx):
             counted = [f"{p} (counted as {v})" for p, v in c.assumed]
             if c is plan.conversions[0] and build.source is not None and build.source.drift is None:
                 counted.append("source.drift (counted as 0 Hz)")
+            only_source = not c.assumed  # then the note is about the source section, so point there
             ctx.report(f"{c.owner}: the worst-case IF leaves out what is not given: {', '.join(counted)}",
-                       c.lo_at or osc.loc, level="note", stage=stage.label,
+                       build.source.loc if only_source else (c.lo_at or osc.loc), level="note", stage=stage.label,
                        fix="Give the crystal tolerance and the source drift so the worst case is real.")
         if osc.injection in ("low", "high") and osc.injection != c.side:
             image = rf.image_frequency(c.f_in, c.lo)

@@ -544,8 +544,8 @@ def _thermal(build, ctx, dev, power: float, what: str, stage: str, values: list)
       level="error",
       title="Dissipation, junction temperature and heat sink of amplifiers and regulators",
       explanation="""
-      A class-B or class-AB output stage dissipates most not at full output but at about 64 %
-      of it (an output amplitude of 2·V_CC/π). Each device of a push-pull pair on ±V_CC into
+      A class-B or class-AB output stage dissipates most not at full output but at an output
+      amplitude of 2·V_CC/π, about 64 % of the full swing (about 40 % of the full power). Each device of a push-pull pair on ±V_CC into
       R_L then dissipates V_CC²/(π²·R_L). A single-ended stage on one supply V_s with a
       coupling capacitor works on ±V_s/2, so the package dissipates V_s²/(2π²·R_L) (12 V into
       8 Ω: 0.91 W). A bridge-tied load puts two such stages in antiphase across the speaker:

@@ -266,8 +266,11 @@ def _read(path: Path, findings: list, file: str, at: Location | None = None) -> 
     try:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
-        findings.append(Finding("input.unreadable", "error", f"{path} is not UTF-8 text (byte {exc.start})",
-                                at or Location(file), stage="input"))
+        line = raw.count(b"\n", 0, exc.start) + 1
+        col = exc.start - (raw.rfind(b"\n", 0, exc.start) + 1) + 1
+        findings.append(Finding("input.unreadable", "error", f"{path} is not UTF-8 text: byte "
+                                f"0x{raw[exc.start]:02x} at line {line}, col {col}",
+                                at or Location(file, line, col), stage="input"))
         return None
 
 

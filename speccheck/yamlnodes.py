@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 MAX_BYTES = 1_000_000  # a hand-written build plan is a few kB; refuse anything absurd
 MAX_DEPTH = 32
 MAX_INT_DIGITS = 30
-MAX_BRACKETS = 5000  # the C composer recurses per level and overflows the C stack near 50 000
+MAX_BRACKETS = 15000  # the C composer recurses per level: fine at 20 000 deep, overflows near 50 000
 _COMPACT_DASHES = re.compile(r"(?:^|:[ \t])[ \t]*(?:[-?:][ \t]+){%d,}" % (MAX_DEPTH + 1), re.MULTILINE)
 
 Path = tuple  # of str | int

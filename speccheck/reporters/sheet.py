@@ -17,7 +17,8 @@ def grouped(result) -> dict:
 
 
 def as_text(result) -> str:
-    lines = [f"Design sheet: {result.build_name or result.path} ({result.path})"]
+    lines = [f"Design sheet: {result.build_name} ({result.path})" if result.build_name
+             else f"Design sheet: {result.path}"]
     for caution in result.cautions:
         lines.append(f"  ! {caution}")
     for section, owners in grouped(result).items():
