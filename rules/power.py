@@ -167,6 +167,9 @@ def ambient(build) -> float | None:
     return info.ambient_max.si if info and info.ambient_max else None
 
 
+RESERVOIR_MIN = 10e-6  # F; a capacitor this large on a rectifier output is its reservoir
+
+
 def supply_fuse(build):
     """The supply's fuse part, when supply.fuse names a part of kind fuse."""
     part = build.part(build.supply.fuse) if build.supply else None
@@ -662,6 +665,23 @@ def regulator_dropout(build, ctx):
 
 # ---- fuse sizing ----------------------------------------------------------------------------
 
+def carries_rectifier_pulses(build, fuse) -> bool:
+    """A fuse on the rectifier side of a capacitor-input supply (in the secondary, or between
+    the rectifier and the reservoir) carries the charging pulses, not a smooth DC: one of its
+    nets has a rectifier diode on it and no reservoir capacitor."""
+    if build.supply is None or build.supply.kind != "mains-transformer":
+        return False
+    nets = build.nets
+    for net in fuse.ends:
+        on_net = nets.parts_on(net)
+        has_diode = any(p.kind == "diode" for p in on_net)
+        has_reservoir = any(p.kind == "capacitor" and p.value is not None and p.value.si >= RESERVOIR_MIN
+                            for p in on_net)
+        if has_diode and not has_reservoir:
+            return True
+    return False
+
+
 def fuse_choice(build, ctx, normal: float) -> dict:
     """The fuse the normal current asks for: derated for continuous use and rerated for the ambient."""
     share = setting_of(ctx, "power.fuse-size", "derating")
@@ -691,8 +711,10 @@ def fuse_choice(build, ctx, normal: float) -> dict:
       """,
       fix="Fit the preferred rating shown (the next R10 value above the derated current).",
       source="UL 248-14; IEC 60127-2; R10 series: IEC 60127-1 Annex A / ISO 3; 75 % continuous-use "
-             "derating: common practice; temperature rerating slope: from memory",
-      settings={"derating": 0.75, "rerate_per_degc": 0.005, "rerate_above": 25.0, "oversize_factor": 2.0})
+             "derating: common practice; temperature rerating slope: from memory; RMS of the charging "
+             "pulses of a capacitor-input rectifier about 1.8 times the DC (1.5 to 2.5): common practice",
+      settings={"derating": 0.75, "rerate_per_degc": 0.005, "rerate_above": 25.0, "oversize_factor": 2.0,
+                "pulse_form_factor": 1.8})
 def fuse_size(build, ctx):
     supply = build.supply
     if supply is None or not supply.fuse:
@@ -710,8 +732,12 @@ def fuse_size(build, ctx):
         ctx.report(f"{part.name} cannot be sized: the build's current budget is unknown (no device on the supply "
                    f"rail states a quiescent current)", part.loc, level="note", stage="power")
         return
-    c = fuse_choice(build, ctx, normal)
     ctx.publish("fuse", part.name, "normal current (budget at full output)", normal, "A")
+    if carries_rectifier_pulses(build, part):
+        form = setting_of(ctx, "power.fuse-size", "pulse_form_factor")
+        normal *= form  # the fuse heats on the RMS of the charging pulses
+        ctx.publish("fuse", part.name, "RMS of the rectifier charging pulses", normal, "A")
+    c = fuse_choice(build, ctx, normal)
     ctx.publish("fuse", part.name, "continuous-use share of rating", c["share"] * 100, "%")
     if c["ambient"] is not None:
         ctx.publish("fuse", part.name, f"temperature rerating at {fmt(c['ambient'], '°C')}", c["rerate"] * 100, "%")

@@ -23,6 +23,7 @@ import pytest
 from conftest import EXAMPLES, check, edited, line_of, of
 from scipy import integrate, optimize
 
+from speccheck import engine
 from speccheck.config import Settings
 from speccheck.rules import power
 
@@ -583,3 +584,17 @@ def test_any_line_left_out_gives_findings_not_tracebacks(name):
         result = check("".join(lines[:i] + lines[i + 1:]))
         crashed = [f.message for f in result.findings if f.stage == "internal"]
         assert crashed == [], f"line {i + 1} left out: {crashed}"
+
+
+def test_fuse_on_the_rectifier_side_is_sized_on_the_pulse_rms():
+    # a capacitor-input rectifier draws its current in pulses whose RMS is about 1.8 x the DC
+    # (1.5 to 2.5 by conduction angle: common practice); F1 sits between the bridge and the reservoir
+    result = engine.check_file(EXAMPLES / "mains-bench-unit.yaml")
+    sheet = {(e.owner, e.value.name): e.value.value for e in result.sheet if e.section == "fuse"}
+    dc = sheet[("F1", "normal current (budget at full output)")]
+    assert sheet[("F1", "RMS of the rectifier charging pulses")] == pytest.approx(1.8 * dc)
+
+
+def test_fuse_of_a_dc_adapter_carries_smooth_dc(clean_text):
+    result = check(clean_text)
+    assert not [e for e in result.sheet if e.value.name == "RMS of the rectifier charging pulses"]
