@@ -226,3 +226,38 @@ def input_bypass(build, ctx):
             ctx.report(f"input_bypass {cap.name} is {cap.value.text}: outside {fmt(lo, 'F')} to {fmt(hi, 'F')}, "
                        f"{'too small to short the RF' if cap.value.si < lo else 'large enough to cut the treble'}",
                        cap.at("value"), [Value("bypass", cap.value.si, "F")], stage=stage.label)
+
+
+@rule("audio.speaker-power", level="warning",
+      title="Speaker power rating against what the amplifier can deliver",
+      explanation="""
+      At full volume a class-B or class-AB amplifier can drive its load up to the clipping limit:
+      on one supply with a coupling capacitor the speaker sees a sine of peak V_s/2, so the
+      power reaches V_s²/(8·R_L) (12 V into 8 ohm: 2.25 W); a bridge-tied load doubles the swing
+      and gives four times that. Driven past its rating, a speaker's voice coil overheats, its
+      former warps and the coil rubs or opens. Listening levels are usually far lower, but a
+      squelch tail or a feedback howl at full volume is not.
+      """,
+      fix="Fit a speaker rated at least the power shown, or limit the amplifier's gain or supply.",
+      source="class-B output power: Boylestad & Nashelsky, Electronic Devices and Circuit Theory, ch. 12 "
+             "(P_o(max) = V_CC²/(2·R_L), with V_CC = V_s/2 on one supply)",
+      verify="At full volume with a tone, measure the RMS voltage across the speaker: V²/R must stay below its "
+             "rating.")
+def speaker_power(build, ctx):
+    from speccheck.rules.power import amp_point, class_b_full_output
+
+    for stage in build.stages("audio-amp"):
+        dev, load = build.device(stage.device), build.part(stage.load)
+        if dev is None or load is None or load.kind != "speaker" or load.power_rating is None:
+            continue
+        point, _ = amp_point(build, dev)
+        if point is None:
+            continue  # power.heat says what is missing
+        full = class_b_full_output(point.topology, point.v_supply, point.r_load, point.v_negative)["p_out"]
+        ctx.publish("audio", stage.label, f"most power into {load.name} (ideal full sine)", full, "W")
+        if load.power_rating.si < full:
+            ctx.report(f"{load.name} is rated {load.power_rating.text} but {dev.name} can deliver up to "
+                       f"{fmt(full, 'W')} into it ({point.topology} on {fmt(abs(point.v_supply), 'V')}): at full "
+                       f"volume the voice coil overheats", load.at("power_rating"),
+                       [Value("speaker rating", load.power_rating.si, "W"), Value("amplifier full output", full, "W")],
+                       stage=stage.label)

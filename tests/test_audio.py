@@ -120,8 +120,8 @@ def test_large_enough_coupling_is_fine():
 # ---- DC through the speaker ---------------------------------------------------------------------
 
 def test_speaker_straight_on_a_half_supply_output(clean_text):
-    text = edited(clean_text, "SPK1: {kind: speaker, value: 8 ohm, power_rating: 1 W, ends: [SPK, GND]}",
-                  "SPK1: {kind: speaker, value: 8 ohm, power_rating: 1 W, ends: [U2.out, GND]}")
+    text = edited(clean_text, "SPK1: {kind: speaker, value: 8 ohm, power_rating: 3 W, ends: [SPK, GND]}",
+                  "SPK1: {kind: speaker, value: 8 ohm, power_rating: 3 W, ends: [U2.out, GND]}")
     found = of(check(text), "audio.speaker-dc")
     assert [f.level for f in found] == ["error"]
     # half of the 12 V supply across 8 ohm: 0.75 A, 4.5 W (Ohm's law)
@@ -153,3 +153,18 @@ def test_input_bypass_too_large_cuts_the_treble(clean_text):
     found = of(check(text), "audio.input-bypass")
     assert found and "large enough to cut the treble" in found[0].message
     assert found[0].location.line == line_of(text, "C22: {kind: capacitor")
+
+
+# ---- audio.speaker-power (Boylestad & Nashelsky ch. 12: P_o(max) = V_CC^2 / (2 R_L)) -----------------
+
+def test_speaker_rated_above_the_amplifier_is_quiet(clean_text):
+    assert of(check(clean_text), "audio.speaker-power") == []
+
+
+def test_small_speaker_on_a_12_v_amplifier_is_a_warning(clean_text):
+    text = edited(clean_text, "value: 8 ohm, power_rating: 3 W", "value: 8 ohm, power_rating: 1 W")
+    found = of(check(text), "audio.speaker-power")
+    assert [f.level for f in found] == ["warning"]
+    p_max = (12.0 / 2) ** 2 / (2 * 8.0)  # one supply: V_CC = V_s / 2 -> 2.25 W
+    assert found[0].message.startswith(f"SPK1 is rated 1 W but U2 can deliver up to {p_max:.4g} W into it")
+    assert found[0].location.line == line_of(text, "SPK1: {kind: speaker")
