@@ -219,6 +219,7 @@ def sheet(path, fmt, config, no_config):
 
     from speccheck import engine
     from speccheck.reporters import sheet as sheet_reporter
+    from speccheck.reporters.text import finding_lines
 
     if not Path(path).exists():
         click.echo(f"speccheck: {path}: no such file", err=True)
@@ -228,7 +229,7 @@ def sheet(path, fmt, config, no_config):
     click.echo(sheet_reporter.render(result, fmt), nl=False)
     blocking = [f for f in result.findings if f.rule.startswith("input.")]
     for f in blocking:
-        click.echo(f"{f.location.file}:{f.location.line}:{f.location.col}: {f.level} {f.rule} {f.message}", err=True)
+        click.echo(finding_lines(f)[0], err=True)
     sys.exit(EXIT_TROUBLE if any(f.rule == "input.unreadable" for f in blocking) else
              EXIT_FINDINGS if blocking else EXIT_CLEAN)
 

@@ -55,7 +55,6 @@ ARTICLE = {"inductance": "an inductance", "apparent_power": "an apparent power",
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?"
 _SPLIT = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
 _UNIT_OK = re.compile(r"^[A-Za-z%][A-Za-z0-9_/*^. %]*$")
-_POWERS = re.compile(r"(\*\*|\^)\s*(-?\d+)")
 _REPLACE = (("µ", "u"), ("μ", "u"), ("Ω", "ohm"), ("°C/W", "K/W"), ("degC/W", "K/W"), ("C/W", "K/W"),
             ("°C", "degC"), ("²", "^2"), ("·", "*"))
 _PER_TURN = re.compile(r"\s*/\s*(turn|t)(\^2|\*\*2)\s*$")
@@ -118,14 +117,57 @@ def _factor(unit: str, dim: str) -> float:
         raise UnitError(f"expected {article(dim)}, got {{text}} ({what})") from None
 
 
+# A unit text is bounded as a whole before pint sees it (pint evaluates what it is given, and a
+# tower of powers such as "Hz**3**3**3" takes it minutes and gigabytes). The grammar: at most
+# MAX_FACTORS unit names, joined by '*', '/' or a space, each with at most one power of a whole
+# number between -MAX_POWER and MAX_POWER; no number inside a unit, no power of a power. With
+# the registry's largest unit scale (giga times hour, 3.6e12) every intermediate product then
+# stays below (3.6e12)**(MAX_FACTORS * MAX_POWER), about 1e151: finite, and reached without
+# any loop whose length the text decides.
+MAX_FACTORS = 4
+MAX_POWER = 3
+_UNIT_TOKENS = re.compile(r"\*\*|\^|[*/]|[A-Za-z%][A-Za-z_%]*|[+-]?\d+(?:\.\d*)?|\S")
+
+
+def _unit_shape_trouble(unit: str) -> str | None:
+    """Why a unit text is outside the bounded grammar above, or None."""
+    names, expect_name, after = 0, True, ""
+    for token in _UNIT_TOKENS.findall(unit):
+        if token[0].isalpha() or token[0] == "%":
+            names += 1
+            if names > MAX_FACTORS:
+                return f"'{unit}' has more than {MAX_FACTORS} units multiplied together"
+            expect_name, after = False, "name"
+        elif token in ("**", "^"):
+            if after == "power":
+                return f"'{unit}' raises a power to a power; write one power per unit"
+            if after != "name":
+                return f"'{unit}' is not a unit speccheck knows"
+            after = "op-power"
+        elif token in ("*", "/"):
+            if expect_name:
+                return f"'{unit}' is not a unit speccheck knows"
+            expect_name, after = True, "op"
+        elif after == "op-power" and re.fullmatch(r"[+-]?\d+", token):
+            if not 0 < abs(int(token)) <= MAX_POWER:
+                return f"power {token} in '{unit}' is not a unit of this trade"
+            after = "power"
+        else:
+            return f"'{unit}' is not a unit speccheck knows (a unit holds no number)" \
+                if token[0].isdigit() else f"'{unit}' is not a unit speccheck knows"
+    if expect_name or after == "op-power":
+        return f"'{unit}' is not a unit speccheck knows"
+    return None
+
+
 def _clean_unit(unit: str) -> str:
     for a, b in _REPLACE:
         unit = unit.replace(a, b)
     if not _UNIT_OK.match(unit):
         raise UnitError(f"'{unit}' is not a unit speccheck knows")
-    for _, power in _POWERS.findall(unit):
-        if abs(int(power)) > 3:
-            raise UnitError(f"power {power} in '{unit}' is not a unit of this trade")
+    trouble = _unit_shape_trouble(unit)
+    if trouble:
+        raise UnitError(trouble)
     return unit.replace("^", "**")
 
 
@@ -205,7 +247,10 @@ def _parse(text: object, dim: str) -> float:
     if dim == "temperature":
         reg = registry()
         return float(reg.Quantity(value, reg.Unit(unit)).to("degC").magnitude)
-    return value * factor
+    si = value * factor
+    if not math.isfinite(si):
+        raise UnitError(f"'{text.strip()}' is beyond any number speccheck can work with")
+    return si
 
 
 # ---- formatting ------------------------------------------------------------------------

@@ -9,14 +9,15 @@ waived findings stay, marked with their reason; then the design sheet's derived 
 from __future__ import annotations
 
 from speccheck.findings import LEVELS
+from speccheck.reporters.neutral import md_code, md_text
 
 _ESCAPE = {c: "\\" + c for c in "\\`*_[]<>|"}
 _PROSE = {c: e for c, e in _ESCAPE.items() if c != "`"}
 
 
 def md(text: str) -> str:
-    """Plain text made safe to show in Markdown (no accidental emphasis, links, tags or tables)."""
-    return "".join(_ESCAPE.get(ch, ch) for ch in str(text))
+    """Text that may come from a build file, made unable to change the document (neutral.md_text)."""
+    return md_text(text)
 
 
 def prose(text: str) -> str:
@@ -25,8 +26,7 @@ def prose(text: str) -> str:
 
 
 def code(text: str) -> str:
-    text = str(text).replace("`", "'")
-    return f"`{text}`"
+    return md_code(text)
 
 
 def _plural(n: int, word: str) -> str:

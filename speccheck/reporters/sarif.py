@@ -191,4 +191,6 @@ def report(results, settings, run=None) -> dict:
 
 
 def render(results, settings, run=None) -> str:
-    return json.dumps(report(results, settings, run), indent=2, ensure_ascii=False) + "\n"
+    from speccheck.reporters.neutral import json_text
+
+    return json_text(json.dumps(report(results, settings, run), indent=2, ensure_ascii=False)) + "\n"

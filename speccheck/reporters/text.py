@@ -5,6 +5,7 @@ from __future__ import annotations
 import click
 
 from speccheck.findings import LEVELS
+from speccheck.reporters.neutral import plain
 
 COLORS = {"error": "red", "warning": "yellow", "note": "cyan"}
 
@@ -20,14 +21,14 @@ def counts_line(counts: dict) -> str:
 def finding_lines(f, color: bool = False) -> list[str]:
     loc = f.location
     level = click.style(f.level, fg=COLORS[f.level], bold=True) if color else f.level
-    head = f"{loc.file}:{loc.line}:{loc.col}: {level} {f.rule} {f.message}"
+    head = f"{plain(loc.file)}:{loc.line}:{loc.col}: {level} {f.rule} {plain(f.message)}"
     if f.waived:
-        head += f" [waived: {f.waived}]"
+        head += f" [waived: {plain(f.waived)}]"
     lines = [head]
     if f.values:
-        lines.append("    numbers: " + "; ".join(f"{v.name} {v.text}" for v in f.values))
+        lines.append("    numbers: " + plain("; ".join(f"{v.name} {v.text}" for v in f.values)))
     if f.fix and not f.waived:
-        lines.append(f"    fix: {f.fix}")
+        lines.append(f"    fix: {plain(f.fix)}")
     return lines
 
 
@@ -50,12 +51,12 @@ def render(results, settings, color: bool = False, run=None) -> str:
     out: list[str] = []
     for result in results:
         if result.cautions:
-            out.append(f"{result.path}: SAFETY CAUTIONS for this build:")
-            out.extend(f"  ! {c}" for c in result.cautions)
+            out.append(f"{plain(result.path)}: SAFETY CAUTIONS for this build:")
+            out.extend(f"  ! {plain(c)}" for c in result.cautions)
         for f in result.findings:
             out.extend(finding_lines(f, color))
     if run is not None:
-        out.extend(f"{path}: note: skipped, not a build file (no 'build_spec:' key)" for path in run.skipped)
-        out.extend(f"{path}: note: skipped, excluded by the project file" for path in run.excluded)
+        out.extend(f"{plain(path)}: note: skipped, not a build file (no 'build_spec:' key)" for path in run.skipped)
+        out.extend(f"{plain(path)}: note: skipped, excluded by the project file" for path in run.excluded)
     out.append(tail_line(results, run))
     return "\n".join(out) + "\n"
