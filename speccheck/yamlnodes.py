@@ -81,6 +81,42 @@ class Document:
         node = self.key_nodes.get(tuple(path))
         return _mark(node) if node is not None else self.mark(path)
 
+    def value_span(self, path: Path) -> Span | None:
+        """Where the value at path sits in the text (character offsets) and how it is written."""
+        node = self.value_nodes.get(tuple(path))
+        return _span(node) if node is not None else None
+
+    def key_span(self, path: Path) -> Span | None:
+        """Where the mapping key of path sits in the text and how it is written."""
+        node = self.key_nodes.get(tuple(path))
+        return _span(node) if node is not None else None
+
+
+@dataclass(frozen=True, slots=True)
+class Span:
+    """A node's place in the text: [start, end) as character offsets into the parsed string.
+
+    style: 'plain', "'", '"', '|', '>' for scalars; 'block' or 'flow' for mappings and
+    sequences. kind: 'scalar', 'mapping' or 'sequence'. The end of a block collection lies
+    where the next token starts (it may include trailing blank lines and comments).
+    """
+
+    start: int
+    end: int
+    style: str
+    kind: str
+    line: int  # 1-based line of the start
+    col: int  # 1-based column of the start
+
+
+def _span(node) -> Span:
+    s, e = node.start_mark, node.end_mark
+    if node.id == "scalar":
+        style = node.style or "plain"
+    else:
+        style = "flow" if node.flow_style else "block"
+    return Span(s.index, e.index, style, node.id, s.line + 1, s.column + 1)
+
 
 def _mark(node) -> Mark:
     s, e = node.start_mark, node.end_mark
