@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 
 from speccheck import rf, units
 from speccheck.findings import Value
+from speccheck.formulas import harmonics, shapes
 from speccheck.registry import rule
 
 
@@ -44,10 +45,15 @@ class Band:
     low: float
     high: float
     what: str
+    responses: list = field(default_factory=list)  # (centre, Shape) of each filter in cascade
 
     @property
     def center(self) -> float:
         return (self.low + self.high) / 2
+
+    def attenuation(self, f: float) -> float:
+        """Attenuation in dB at f of the filters that make this band, in cascade."""
+        return sum(shape.attenuation(f - c) for c, shape in self.responses)
 
     def holds(self, f: float) -> bool:
         return self.low <= f <= self.high
@@ -61,6 +67,13 @@ class PathBand:
     path: object
     part: object
     stage: object
+    shape: shapes.Shape | None = None
+
+    def attenuation(self, f: float) -> float:
+        """The path's attenuation in dB at frequency f (its response shape about its centre)."""
+        if self.shape is None or self.center is None:
+            return 0.0
+        return self.shape.attenuation(f - self.center)
 
     @property
     def low(self):
@@ -137,23 +150,62 @@ def owner(build, stage) -> str:
     return f"{stage.label} {same.index(stage) + 1}"
 
 
+def response_shape(width: float, *holders, default: str = shapes.DEFAULT_CLASS) -> shapes.Shape:
+    """The response shape of a filter of this width from what its holders state (the first that
+    states a key wins: an IF path over its filter part): bandwidth_at, response (the class),
+    stopband with stopband_at, or shape_factor. What is not stated comes from the class's
+    typical shape (speccheck.formulas.shapes.TYPICAL)."""
+    def pick(name):
+        for h in holders:
+            value = getattr(h, name, None) if h is not None else None
+            if value is not None:
+                return value
+        return None
+
+    at, cls = pick("bandwidth_at"), pick("response") or default
+    typical = shapes.TYPICAL[cls]
+    at_db = at.si if at is not None and at.si > 0 else typical.at_db
+    if cls == "gaussian":
+        return shapes.gaussian(width, at_db, typical=at is None)
+    stop, factor, stop_at = pick("stopband"), pick("shape_factor"), pick("stopband_at")
+    if stop is not None or factor:
+        stop_db = stop_at.si if stop_at is not None else (typical.stop_db or 40.0)
+        stop_width = stop.si if stop is not None else factor * width
+        try:
+            return shapes.from_stopband(width, at_db, stop_width, stop_db,
+                                        what=f"{khz(width)} at {at_db:g} dB, {khz(stop_width)} at {stop_db:g} dB")
+        except ValueError:
+            pass  # a stopband no wider than the passband: the class's typical shape stands in
+    return shapes.from_class(cls, width, at_db)
+
+
+def source_shape(src) -> shapes.Shape | None:
+    """The upstream bandwidth's shape: an instrument's resolution filter is Gaussian unless stated."""
+    if src is None or src.bandwidth is None:
+        return None
+    default = "gaussian" if src.kind == "instrument-if" else shapes.DEFAULT_CLASS
+    return response_shape(src.bandwidth.si, src, default=default)
+
+
 def _source_band(src) -> Band | None:
     if src is None:
         return None
     bands = []
     if src.bandwidth is not None and src.frequency is not None:
         f, bw = src.frequency.si, src.bandwidth.si
-        bands.append(Band(f - bw / 2, f + bw / 2, f"the upstream bandwidth ({khz(bw)} around {hz(f)})"))
+        bands.append(Band(f - bw / 2, f + bw / 2, f"the upstream bandwidth ({khz(bw)} around {hz(f)})",
+                          [(f, source_shape(src))]))
     pre = src.preselector
     if pre is not None and pre.center is not None and pre.bandwidth is not None:
         c, bw = pre.center.si, pre.bandwidth.si
-        bands.append(Band(c - bw / 2, c + bw / 2, f"the preselector ({khz(bw)} around {hz(c)})"))
+        bands.append(Band(c - bw / 2, c + bw / 2, f"the preselector ({khz(bw)} around {hz(c)})",
+                          [(c, response_shape(bw, pre, default="lc"))]))
     if not bands:
         return None
     if len(bands) == 1:
         return bands[0]
     low, high = max(b.low for b in bands), min(b.high for b in bands)
-    return Band(low, max(low, high), " and ".join(b.what for b in bands))
+    return Band(low, max(low, high), " and ".join(b.what for b in bands), [r for b in bands for r in b.responses])
 
 
 def _value(build, ref):
@@ -251,7 +303,8 @@ def _paths(build, stage, default_center) -> dict:
             width = path.bandwidth.si
         if center is None:
             center = default_center
-        out[name] = PathBand(name, center, width, path, part, stage)
+        shape = response_shape(width, path, part) if width else None
+        out[name] = PathBand(name, center, width, path, part, stage, shape)
     return out
 
 
@@ -307,7 +360,9 @@ def frequency_plan(build) -> Plan:
             bands = [p for p in used_paths(build, point.paths) if p.low is not None]
             if bands:
                 names = ", ".join(p.name for p in bands)
-                ahead = Band(min(p.low for p in bands), max(p.high for p in bands), f"the IF path ({names})")
+                widest = max(bands, key=lambda p: p.width)  # the path that lets most through
+                ahead = Band(min(p.low for p in bands), max(p.high for p in bands), f"the IF path ({names})",
+                             [(widest.center, widest.shape)] if widest.shape else [])
     plan.at["final"] = (f, unc)
     _PLANS[build] = plan
     return plan
@@ -635,73 +690,167 @@ def _spur_name(m: int, k: int, s: int) -> str:
     return f"{ms} − {ns} = IF" if s > 0 else f"{ns} − {ms} = IF"
 
 
+@dataclass
+class Response:
+    """One spurious response or self-made carrier of a conversion, for one IF path."""
+
+    name: str
+    f: float  # the input frequency it answers to (or where the harmonic lies)
+    offset: float  # from the wanted input
+    level: float | None  # estimated level at the build's input, as a wanted signal giving the same IF, dBm
+    how: str  # how that level was estimated
+    harmonic: bool  # a harmonic the build makes itself (a birdie), not a response to an outside signal
+
+
+def _spur_level_settings(ctx) -> dict:
+    return {name: _setting(ctx, name) for name in ("limiter_level", "isolation", "asymmetry", "per_order")}
+
+
+def spur_responses(c: Conversion, pb: PathBand, order: int, s: dict, strongest: float | None) -> list:
+    """The responses of conversion c that land in IF path pb: mixer products |m·fs ± n·fLO| up to
+    `order`, and the IF and LO harmonics that fall inside the passband ahead of the mixer (all
+    of them, up to the input frequency, whatever the order), each with an estimated level."""
+    band = c.ahead
+    duty = 0.5 - s["asymmetry"]
+    out = []
+    for m, k, sign, fs in rf.spur_inputs(c.lo, pb.center, order):
+        if m == 1 and k == -1:
+            continue  # the wanted response and the image
+        half = pb.width / (2 * m)
+        if fs + half < band.low or fs - half > band.high:
+            continue
+        level = how = None
+        if strongest is not None:
+            # the LO switches the mixer: its k-th harmonic weighs in as a rectangular wave's would;
+            # each order of the signal above the first costs per_order dB
+            lo_db = harmonics.pulse_harmonic_db(abs(k), duty) if k else 0.0
+            level = strongest - band.attenuation(fs) + lo_db - (m - 1) * s["per_order"]
+            how = (f"a {strongest:g} dBm signal there, {band.attenuation(fs):.0f} dB down ahead of the mixer, "
+                   f"LO harmonic {abs(k)} at {lo_db:.0f} dB, {(m - 1) * s['per_order']:.0f} dB for signal order {m}")
+        out.append(Response("spur " + _spur_name(m, k, sign), fs, fs - c.f_in, level, how or "", False))
+    for n in range(1, order + 1):
+        if pb.low <= n * c.lo <= pb.high:
+            out.append(Response(f"LO harmonic {n} inside the IF passband", n * c.lo, 0.0, None, "", True))
+    top = band.high
+    for what, base in (("IF", c.f_if), ("LO", c.lo)):
+        for n in range(2, harmonics.harmonics_reaching(base, top) + 1):
+            h = n * base
+            if not band.holds(h):
+                continue
+            level, how = None, ""
+            if what == "IF":
+                # the limiter's output is near a rectangular wave: odd harmonics at 1/n, even ones
+                # from its asymmetry; it reaches the input through the board's isolation
+                h_db = harmonics.pulse_harmonic_db(n, duty)
+                through = pb.attenuation(abs(h - c.lo))
+                level = s["limiter_level"] + h_db - s["isolation"] - through
+                how = (f"limiter {s['limiter_level']:g} dBm, harmonic {n} at {h_db:.0f} dB, {s['isolation']:g} dB "
+                       f"isolation to the input, {through:.0f} dB down in the {pb.name} path")
+            out.append(Response(f"{what} harmonic {n}", h, h - c.f_in, level, how, True))
+    return out
+
+
 @rule("freqplan.mixer-spurs", verify='Sweep a strong generator across the input band and note each frequency where the squelch opens or the RSSI rises: each one is a spurious response.',
       level="warning",
-      title="Mixer spurious response or harmonic close to the wanted signal",
+      title="Mixer spurious response or harmonic that can be heard",
       explanation="""
       A real mixer is not an ideal multiplier: harmonics of the input and of the LO mix too, so an
       input f_s gives an output wherever |m f_s ± n f_LO| falls in the IF passband. speccheck
-      searches every m and n up to the order set by the setting order (default 5), keeps the inputs
-      that lie inside the passband ahead of the mixer (upstream bandwidth, preselector, earlier IF
-      filter), leaves out the wanted response and the image, and lists the rest on the design
-      sheet. It also lists harmonics of the LO and of the IF (a hard-limited IF is rich in them, up
-      to the setting harmonic_order) that fall inside that input passband: radiated back into the
-      input they become self-made carriers ("birdies").
+      searches every m and n up to the setting order (default 5) for the IF path each signal
+      travels, keeps the inputs that lie inside the passband ahead of the mixer, leaves out the
+      wanted response and the image, and lists the rest on the design sheet. It also lists every
+      harmonic of the IF and of the LO that falls inside that input passband, up to the input
+      frequency whatever the order (the 65th harmonic of a 455 kHz IF lies 25 kHz below
+      29.6 MHz): radiated back into the input they become self-made carriers ("birdies").
 
-      A response within a few channel widths of the wanted signal (the setting close_factor times
-      the IF path's bandwidth, default 5) is reported: a strong neighbour there, or the build's own
-      harmonic, comes out in the IF. Further away the listing is for information.
+      Each response gets an estimated level, as the wanted-signal level at the input that would
+      give the same IF. A limiter's output is close to a square wave: its odd harmonics fall only
+      as 1/n (Fourier series of a rectangular wave), and an asymmetry of its duty cycle (setting
+      asymmetry, default 0.02, i.e. 48 %) adds even ones about 24 dB down; it leaves the limiter
+      at the setting limiter_level (default 0 dBm) and reaches the input through the board's
+      isolation (setting isolation, default 60 dB), then the IF path's own response at the
+      offset. A mixer spur takes the strongest signal (source.level_max) at its input, less what
+      the filters ahead of the mixer take off, the LO harmonic's weight (the LO switches the
+      mixer like a rectangular wave) and the setting per_order (default 20 dB) for each order of
+      the signal above the first. The defaults are from memory, for a compact unshielded board
+      and a small IF chip: state your own where you know better.
+
+      A warning comes only where a response lies within the setting close (default 50 kHz,
+      two 25 kHz channels; the window does not grow with the path) of the wanted signal and its
+      level comes within audible_margin (default 10 dB) of the weakest wanted signal
+      (source.level_min, else -110 dBm): there it opens the squelch or whistles in the audio.
+      An IF or LO harmonic that is close but too weak to hear is a note with its level.
       """,
       fix="Move the LO (other injection side or another IF), narrow the passband ahead of the mixer, or shield "
           "and decouple the limiter and oscillator from the input.",
-      source="common practice (mixer spur charts); harmonic order of a limiter from memory",
-      settings={"order": 5, "close_factor": 5.0, "harmonic_order": 25, "max_listed": 24})
+      source="Fourier series of a rectangular wave (Oppenheim & Willsky, Signals and Systems); mixer spur "
+             "arithmetic: common practice (spur charts); limiter level, asymmetry, isolation and per-order "
+             "suppression: from memory",
+      settings={"order": 5, "close": 50e3, "max_listed": 24, "limiter_level": 0.0, "isolation": 60.0,
+                "asymmetry": 0.02, "per_order": 20.0, "audible_margin": 10.0, "weakest": -110.0})
 def mixer_spurs(build, ctx):
     order = max(1, min(_setting(ctx, "order", int), 15))
-    close_factor = _setting(ctx, "close_factor")
-    h_order = max(2, min(_setting(ctx, "harmonic_order", int), 200))
+    close = max(0.0, _setting(ctx, "close"))
     max_listed = max(0, _setting(ctx, "max_listed", int))
+    s = _spur_level_settings(ctx)
+    s["asymmetry"] = min(max(s["asymmetry"], 0.0), 0.49)
+    src = build.source
+    strongest = src.level_max.si if src is not None and src.level_max is not None else None
+    weakest = src.level_min.si if src is not None and src.level_min is not None else _setting(ctx, "weakest")
+    audible = weakest - _setting(ctx, "audible_margin")
     for c in frequency_plan(build).conversions:
         band = c.ahead
-        if c.lo is None or not c.f_if or band is None or c.filter is None:
+        if c.lo is None or not c.f_if or c.filter is None:
             continue
+        if band is None:  # nothing declared ahead: look around the wanted input only
+            band = Band(c.f_in - close, c.f_in + close, "the close window")
+            c = Conversion(**{**c.__dict__, "ahead": band})
         paths = [p for p in used_paths(build, c.filter.paths) if p.width is not None and p.center is not None]
-        if not paths:
-            continue
-        found = {}  # (name) -> (f_s, offset, close)
+        found = []
         for pb in paths:
-            window = close_factor * pb.width
-            for m, k, s, fs in rf.spur_inputs(c.lo, pb.center, order):
-                if m == 1 and k == -1:
-                    continue  # the wanted response and the image
-                half = pb.width / (2 * m)
-                if fs + half < band.low or fs - half > band.high:
-                    continue
-                name = "spur " + _spur_name(m, k, s) + (f" ({pb.name})" if len(paths) > 1 else "")
-                found.setdefault(name, (fs, fs - c.f_in, abs(fs - c.f_in) <= window, m + abs(k)))
-            for n in range(1, order + 1):
-                if pb.low <= n * c.lo <= pb.high:
-                    found.setdefault(f"LO harmonic {n} inside the IF passband", (n * c.lo, 0.0, True, n))
-            for n in range(2, h_order + 1):
-                for what, base in (("LO", c.lo), ("IF", c.f_if)):
-                    h = n * base
-                    if band.holds(h):
-                        found.setdefault(f"{what} harmonic {n}", (h, h - c.f_in, abs(h - c.f_in) <= window, n))
-        listed = sorted(found.items(), key=lambda kv: abs(kv[1][1]))
-        for name, (f, offset, _, _) in listed[:max_listed]:
-            ctx.publish("spurs", c.owner, name, f, "Hz")
+            tag = f" ({pb.name})" if len(paths) > 1 else ""
+            found += [(r, pb, tag) for r in spur_responses(c, pb, order, s, strongest)]
+        found.sort(key=lambda t: abs(t[0].offset))
+        seen = set()
+        listed = []
+        for r, pb, tag in found:
+            if (r.name + tag) not in seen:
+                seen.add(r.name + tag)
+                listed.append((r, pb, tag))
+        for r, _, tag in listed[:max_listed]:
+            ctx.publish("spurs", c.owner, r.name + tag, r.f, "Hz")
+            if r.level is not None:
+                ctx.publish("spurs", c.owner, f"{r.name}{tag} estimated level", round(r.level, 1), "dBm")
         if len(listed) > max_listed:
             ctx.publish("spurs", c.owner, "more responses not listed", len(listed) - max_listed)
-        close = [(name, f, off) for name, (f, off, near, _) in listed if near]
-        if close:
-            shown = "; ".join(f"{name} at {hz(f)} ({'+' if off >= 0 else '−'}{khz(abs(off))})"
-                              for name, f, off in close[:4])
-            more = f" and {len(close) - 4} more" if len(close) > 4 else ""
-            osc = c.stage.oscillator
-            ctx.report(f"{c.owner}: {len(close)} spurious response{'s' if len(close) > 1 else ''} close to the "
-                       f"wanted {hz(c.f_in)} (LO {hz(c.lo)}): {shown}{more}", osc.at("injection") if osc else
-                       c.stage.loc, [Value("LO", c.lo, "Hz"), Value(close[0][0], close[0][1], "Hz")],
+        near = [t for t in listed if abs(t[0].offset) <= close]
+        heard = [t for t in near if t[0].level is not None and t[0].level >= audible]
+        quiet = [t for t in near if t not in heard and t[0].harmonic]
+        osc = c.stage.oscillator
+        where = osc.at("injection") if osc else c.stage.loc
+        for group, level in ((heard, "warning"), (quiet, "note")):
+            if not group:
+                continue
+            shown = "; ".join(_response_text(r, tag) for r, _, tag in group[:4])
+            more = f" and {len(group) - 4} more" if len(group) > 4 else ""
+            r0 = group[0][0]
+            values = [Value("LO", c.lo, "Hz"), Value(r0.name, r0.f, "Hz"), Value("offset", r0.offset, "Hz")]
+            if r0.level is not None:
+                values += [Value("estimated level", r0.level, "dBm"), Value("weakest wanted", weakest, "dBm")]
+            if level == "warning":
+                head = (f"{c.owner}: {len(group)} response{'s' if len(group) > 1 else ''} within {khz(close)} of the "
+                        f"wanted {hz(c.f_in)} (LO {hz(c.lo)}) strong enough to hear (within "
+                        f"{_setting(ctx, 'audible_margin'):g} dB of the weakest wanted {weakest:g} dBm): ")
+            else:
+                head = (f"{c.owner}: {'a harmonic' if len(group) == 1 else f'{len(group)} harmonics'} of the build's "
+                        f"own IF or LO within {khz(close)} of the wanted {hz(c.f_in)}, estimated too weak to hear: ")
+            ctx.report(head + shown + more + (f" ({r0.how})" if r0.how else ""), where, values, level=level,
                        stage=c.stage.label)
+
+
+def _response_text(r: Response, tag: str) -> str:
+    level = f", about {r.level:.0f} dBm" if r.level is not None else ", level not estimated"
+    return f"{r.name}{tag} at {hz(r.f)} ({'+' if r.offset >= 0 else '−'}{khz(abs(r.offset))}{level})"
 
 
 # ---- 6. quadrature tank -------------------------------------------------------------------

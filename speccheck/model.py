@@ -106,6 +106,7 @@ class Signal(Located):
     audio_max: Q = qty("frequency")
     path: str = plain(None)
     service: str = plain(None)
+    channel_spacing: Q = qty("frequency")
     note: str = plain(None)
 
 
@@ -113,6 +114,8 @@ class Signal(Located):
 class Preselector(Located):
     center: Q = qty("frequency")
     bandwidth: Q = qty("frequency")
+    bandwidth_at: Q = qty("gain")
+    response: str = plain(None)
 
 
 @dataclass(eq=False)
@@ -125,6 +128,11 @@ class Source(Located):
     bandwidth: Q = qty("frequency")
     drift: Q = qty("frequency")
     preselector: Preselector = sub(Preselector)
+    bandwidth_at: Q = qty("gain")
+    response: str = plain(None)
+    stopband: Q = qty("frequency")
+    stopband_at: Q = qty("gain")
+    shape_factor: float = plain(None)
 
 
 # ---- supply and rails ------------------------------------------------------------------
@@ -281,6 +289,10 @@ class Part(Located):
     center: Q = qty("frequency")
     bandwidth: Q = qty("frequency")
     bandwidth_at: Q = qty("gain")
+    response: str = plain(None)
+    stopband: Q = qty("frequency")
+    stopband_at: Q = qty("gain")
+    shape_factor: float = plain(None)
     impedance: Q = qty("resistance")
     primary: list = plain([])
     secondary: list = plain([])
@@ -321,6 +333,11 @@ class IfPath(Located):
     filter: str = plain(None)
     center: Q = qty("frequency")
     bandwidth: Q = qty("frequency")
+    bandwidth_at: Q = qty("gain")
+    response: str = plain(None)
+    stopband: Q = qty("frequency")
+    stopband_at: Q = qty("gain")
+    shape_factor: float = plain(None)
     note: str = plain(None)
 
 

@@ -161,7 +161,7 @@ def test_clean_plan_design_sheet_lists_the_frequency_plan(clean_text):
     assert margin.unit == "Hz" and margin.value > 0
     spurs = [k for k in sheet if k[0] == "spurs"]
     assert any("2·fs − 2·fLO" in k[2] for k in spurs)
-    assert all(sheet[k].unit == "Hz" for k in spurs)
+    assert all(sheet[k].unit == ("dBm" if k[2].endswith("estimated level") else "Hz") for k in spurs)
     assert sheet[("discriminator", "discriminator", "tank resonance f0")].value == pytest.approx(
         1 / (2 * math.pi * math.sqrt(1e-3 * 120e-12)))
     for name in ("loaded Q", "linear range (f0/Q)", "tuning range low", "tuning range high"):
@@ -388,14 +388,46 @@ def test_clean_plan_spurs_are_listed_but_not_close(clean_text):
     result = check(clean_text)
     assert of(result, "freqplan.mixer-spurs") == []
     # the half-IF response 2 fs - 2 fLO = IF lies at fLO + IF/2, 227.5 kHz below the wanted 10.7 MHz
-    half_if = [e for e in result.sheet if e.section == "spurs" and "2·fs − 2·fLO" in e.value.name]
+    half_if = [e for e in result.sheet if e.section == "spurs" and "2·fs − 2·fLO" in e.value.name
+               and e.value.unit == "Hz"]
     assert len(half_if) == 1 and abs(half_if[0].value.value - (10.7e6 - 455e3 / 2)) < 200
 
 
 def test_close_window_is_a_setting(clean_text):
-    settings = Settings(rule_settings={"freqplan.mixer-spurs": {"close_factor": 12}})
+    settings = Settings(rule_settings={"freqplan.mixer-spurs": {"close": 250e3}})
     found = of(check(clean_text, settings=settings), "freqplan.mixer-spurs")
-    assert len(found) == 1 and "2·fs − 2·fLO = IF" in found[0].message
+    # with the window widened to 250 kHz the half-IF spur (227.5 kHz off) is in it, and a -30 dBm
+    # neighbour there is estimated well above the -100 dBm weakest signal: a warning; the IF
+    # harmonics 23 and 24 (about 230 kHz either side) are in it too, but far down the narrow
+    # filter's skirt: a note with their levels
+    assert [f.level for f in found] == ["warning", "note"]
+    assert "2·fs − 2·fLO = IF" in found[0].message
+    assert "IF harmonic 24" in found[1].message and "dBm" in found[1].message
+
+
+def test_close_window_does_not_grow_with_a_wide_path(clean_text):
+    # a 180 kHz path used to widen the window to 900 kHz; it stays at 50 kHz
+    text = edited(clean_text, "    path: narrow\n", "    path: wide\n")
+    assert of(check(text), "freqplan.mixer-spurs") == []
+
+
+def test_if_harmonic_far_above_the_old_order_is_found_with_its_level(clean_text):
+    # the case: 29.6 MHz in, 455 kHz IF low side: LO 29.145 MHz; 65 x 455 kHz = 29.575 MHz lies
+    # 25 kHz below the wanted signal (plain arithmetic); the old search stopped at harmonic 25
+    text = edited(clean_text, "  frequency: 10.7 MHz\n", "  frequency: 29.6 MHz\n")
+    text = edited(text, "frequency: 10.245 MHz", "frequency: 29.145 MHz")
+    text = edited(text, "    path: narrow\n", "    path: wide\n")
+    found = of(check(text), "freqplan.mixer-spurs")
+    assert [f.level for f in found] == ["warning"]
+    assert "IF harmonic 65" in found[0].message
+    # level: 0 dBm limiter; harmonic 65 of a 48 % rectangular wave |sin(65 pi 0.48)| / (65 sin(0.48 pi))
+    # (Fourier series of a pulse train; a perfect square wave would give 1/65, -36.3 dB); 60 dB
+    # isolation; next to nothing off the wide path's 180 kHz top; above -100 - 10 dBm
+    h = 20 * math.log10(abs(math.sin(65 * math.pi * 0.48)) / (65 * math.sin(0.48 * math.pi)))
+    assert f"about {0 + h - 60:.0f} dBm" in found[0].message
+    # on the narrow path the same harmonic is 25 kHz off a ±10 kHz filter: a note, not a warning
+    narrow = of(check(edited(text, "    path: wide\n", "    path: narrow\n")), "freqplan.mixer-spurs")
+    assert [f.level for f in narrow] == ["note"] and "IF harmonic 65" in narrow[0].message
 
 
 # ---- freqplan.tank-tuning / tank-range ------------------------------------------------------------------

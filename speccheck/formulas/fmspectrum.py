@@ -59,7 +59,7 @@ def share_within(beta: float, highest: int) -> float:
 
 def carson_share(deviation: float, f_mod: float) -> float:
     """Share of the power inside Carson's band 2(Δf + f_m): the lines |n|·f_m <= Δf + f_m."""
-    highest = int(math.floor((deviation + f_mod) / f_mod + 1e-9))
+    highest = math.floor((deviation + f_mod) / f_mod + 1e-9)
     return share_within(deviation / f_mod, highest)
 
 
