@@ -286,3 +286,55 @@ def starter(layout, list_layouts, output, force):
         _trouble(f"{output}: cannot write: {exc.strerror}")
     click.echo(f"speccheck: wrote the {layout} starter to {output}; check it with `speccheck check {output}`",
                err=True)
+
+
+@main.command()
+@click.argument("path", type=click.Path(dir_okay=False))
+@click.option("--output", "-o", "folder", type=click.Path(file_okay=False), required=True,
+              help="The folder to write the decks into (made if missing).")
+@click.option("--force", is_flag=True, help="Replace deck files that already exist.")
+@_project_options
+def spice(path, folder, force, config, no_config):
+    """Write SPICE decks of the reviewed sub-circuits, for ngspice in batch mode.
+
+    One deck per sub-circuit the design sheet has numbers for: the input network, the
+    quadrature tank, the audio RC stages and the amplifier's output side, the supply
+    switch-on. Each deck's .measure lines reproduce the sheet's values; run one with
+    `ngspice -b DECK`.
+    """
+    from pathlib import Path
+
+    from speccheck import engine, loader
+    from speccheck import spice as spice_mod
+    from speccheck.files import FileTrouble, write_atomic
+
+    if not Path(path).exists():
+        _trouble(f"{path}: no such file")
+    settings = _settings([path], config, no_config)
+    loaded = loader.load(path)
+    result = engine.check_loaded(loaded, settings)
+    blocking = [f for f in result.findings if f.rule.startswith("input.")]
+    for f in blocking:
+        click.echo(f"{f.location.file}:{f.location.line}:{f.location.col}: {f.level} {f.rule} {f.message}", err=True)
+    if not loaded.can_check:
+        click.echo(f"speccheck: {path}: no decks written: the plan has input errors", err=True)
+        sys.exit(EXIT_TROUBLE if any(f.rule == "input.unreadable" for f in blocking) else EXIT_FINDINGS)
+    decks = spice_mod.decks(loaded.build, result.sheet)
+    if not decks:
+        _trouble(f"{path}: the design sheet has no sub-circuit to simulate")
+    target = Path(folder)
+    paths = [spice_mod.deck_path(target, path, d) for d in decks]
+    clash = [p for p in paths if p.exists() or p.is_symlink()]
+    if clash and not force:
+        _trouble(f"{clash[0]} exists; add --force to replace the decks")
+    try:
+        target.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        _trouble(f"{folder}: cannot make the folder: {exc.strerror}")
+    for deck, deck_file in zip(decks, paths):
+        try:
+            write_atomic(deck_file, deck.text(result.build_name, str(path)), force=force)
+        except FileTrouble as exc:
+            _trouble(f"{deck_file}: {exc}")
+    click.echo(f"speccheck: wrote {len(decks)} deck{'' if len(decks) == 1 else 's'} to {folder}: "
+               f"{', '.join(p.name for p in paths)}; run one with `ngspice -b DECK`", err=True)
