@@ -24,6 +24,7 @@ from speccheck import __version__
 
 KIND = "speccheck-baseline"
 VERSION = 1
+LIMIT = 50_000_000  # about 200 000 findings: far past any repository, short of exhausting memory
 
 
 class BaselineError(Exception):
@@ -50,12 +51,13 @@ def dumps(results, settings) -> str:
 
 def load(path) -> set[str]:
     """-> the fingerprints in a baseline file (raises BaselineError with a plain message)."""
+    from speccheck import files
+
     try:
-        with open(path, encoding="utf-8") as fh:
-            data = json.load(fh)
-    except OSError as exc:
-        raise BaselineError(f"{path}: cannot read the baseline: {exc.strerror}") from None
-    except (UnicodeDecodeError, json.JSONDecodeError) as exc:
+        data = json.loads(files.read_bytes_bounded(path, LIMIT).decode("utf-8"))
+    except files.FileTrouble as exc:
+        raise BaselineError(f"{path}: the baseline {exc}") from None
+    except (UnicodeDecodeError, json.JSONDecodeError, RecursionError) as exc:
         raise BaselineError(f"{path}: not a speccheck baseline (not JSON: {exc})") from None
     if not isinstance(data, dict) or data.get("baseline") != KIND:
         raise BaselineError(f"{path}: not a speccheck baseline (no \"baseline\": \"{KIND}\" key); "

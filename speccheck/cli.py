@@ -17,6 +17,12 @@ EXIT_CLEAN, EXIT_FINDINGS, EXIT_TROUBLE = 0, 1, 2
 REPORT_FORMATS = ("text", "json", "sarif", "markdown")
 
 
+def _plain(text) -> str:
+    from speccheck.reporters.neutral import plain
+
+    return plain(text)
+
+
 def _trouble(message: str):
     click.echo(f"speccheck: {message}", err=True)
     sys.exit(EXIT_TROUBLE)
@@ -38,22 +44,42 @@ def _gather(paths, settings, build_files_only: bool):
     """-> (build files to check, RunInfo); exits 2 for a path that does not exist."""
     from speccheck import discover
     from speccheck.reporters import RunInfo
+    from speccheck.reporters.neutral import plain
 
-    files, skipped, missing = discover.expand(paths, named_must_be_build=build_files_only)
-    for path in missing:
-        click.echo(f"speccheck: {path}: no such file or folder", err=True)
-    if missing:
+    found = discover.expand(paths, named_must_be_build=build_files_only)
+    for path in found.missing:
+        click.echo(f"speccheck: {plain(path)}: no such file or folder", err=True)
+    if found.missing:
         sys.exit(EXIT_TROUBLE)
-    run = RunInfo(skipped=[str(p) for p in skipped], config=settings.source)
+    run = RunInfo(skipped=[str(p) for p in found.skipped], config=settings.source,
+                  set_aside=[(str(p), why) for p, why in found.set_aside])
     wanted = []
-    for f in files:
+    for f in found.files:
         if settings.wants(f):
             wanted.append(f)
         else:
             run.excluded.append(str(f))
-    if not wanted and not run.excluded and not (build_files_only and skipped):
+    if not wanted and not run.excluded and not run.set_aside and not build_files_only:
         _trouble("no build files found (a build file has a 'build_spec:' key)")
     return wanted, run
+
+
+def _write(output: str, text: str, force: bool, protected, what: str):
+    """Write a report, baseline or starter atomically; never onto a file the run reads."""
+    from speccheck import files
+    from speccheck.reporters.neutral import plain
+
+    for other in protected:
+        if other and files.same_file(output, other):
+            _trouble(f"{plain(output)}: refusing to write the {what} onto {plain(other)}, which this run reads")
+    try:
+        files.write_atomic(output, text, force=force)
+    except files.FileTrouble as exc:
+        _trouble(f"{plain(output)} {exc}")
+
+
+def _force_option(fn):
+    return click.option("--force", is_flag=True, help="Replace the output file if it exists.")(fn)
 
 
 def _jobs_option(fn):
@@ -93,8 +119,9 @@ def main():
 @click.option("--build-files-only", is_flag=True,
               help="Skip named files that are not build files (no 'build_spec:' key), as in folders; "
                    "for hooks that pass every changed YAML file.")
+@_force_option
 @_jobs_option
-def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, build_files_only, jobs):
+def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, build_files_only, force, jobs):
     """Check build plans (files, or folders holding them).
 
     Exit 0 when nothing at the fail level remains, 1 when something does, 2 when speccheck
@@ -106,6 +133,7 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
     settings = _settings(paths, config, no_config, fail_level, skip)
     files, run = _gather(paths, settings, build_files_only)
     known = None
+    baseline = baseline or settings.baseline or None
     if baseline:
         from speccheck import baseline as baseline_mod
 
@@ -122,14 +150,11 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
     color = fmt == "text" and output is None and sys.stdout.isatty()
     text = reporters.render(fmt, results, settings, color=color, run=run)
     if output:
-        try:
-            with open(output, "w", encoding="utf-8") as fh:
-                fh.write(text)
-        except OSError as exc:
-            _trouble(f"{output}: cannot write the report: {exc.strerror}")
+        from speccheck.reporters.neutral import plain
         from speccheck.reporters.text import tail_line
 
-        click.echo(f"{tail_line(results, run)}; report written to {output}", err=True)
+        _write(output, text, force, [*files, settings.source, baseline], "report")
+        click.echo(f"{tail_line(results, run)}; report written to {plain(output)}", err=True)
     else:
         click.echo(text, nl=False)
     if any(f.rule == "input.unreadable" for r in results for f in r.findings):
@@ -140,11 +165,12 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
 
 @main.command("baseline")
 @click.argument("paths", nargs=-1, required=True, type=click.Path())
-@click.option("--output", "-o", type=click.Path(dir_okay=False, writable=True), required=True,
-              help="The baseline file to write (JSON).")
+@click.option("--output", "-o", type=click.Path(dir_okay=False), default=None,
+              help="The baseline file to write (JSON) [default: the one the project file names].")
 @_project_options
+@_force_option
 @_jobs_option
-def baseline_cmd(paths, output, config, no_config, jobs):
+def baseline_cmd(paths, output, config, no_config, force, jobs):
     """Record the current findings, so that later checks report only new ones.
 
     A club adopting speccheck on an existing repository writes a baseline once and commits
@@ -157,15 +183,14 @@ def baseline_cmd(paths, output, config, no_config, jobs):
     settings = _settings(paths, config, no_config)
     files, _run = _gather(paths, settings, False)
     results = discover.check_files(files, settings, jobs)
+    output = output or settings.baseline
+    if not output:
+        _trouble("name the baseline file with -o FILE (or 'baseline:' in the project file)")
     text = baseline_mod.dumps(results, settings)
-    try:
-        with open(output, "w", encoding="utf-8") as fh:
-            fh.write(text)
-    except OSError as exc:
-        _trouble(f"{output}: cannot write the baseline: {exc.strerror}")
+    _write(output, text, force, [*files, settings.source], "baseline")
     count = sum(len(r.findings) for r in results)
     click.echo(f"speccheck: wrote {count} finding{'' if count == 1 else 's'} from {len(results)} "
-               f"file{'' if len(results) == 1 else 's'} to {output}", err=True)
+               f"file{'' if len(results) == 1 else 's'} to {_plain(output)}", err=True)
     if any(f.rule == "input.unreadable" for r in results for f in r.findings):
         sys.exit(EXIT_TROUBLE)
 
@@ -256,8 +281,6 @@ def schema(kind):
 @click.option("--force", is_flag=True, help="Overwrite the output file if it exists.")
 def starter(layout, list_layouts, output, force):
     """Write a commented starter build file that checks clean as written."""
-    from pathlib import Path
-
     from speccheck import starters
 
     if list_layouts or not layout:
@@ -277,15 +300,9 @@ def starter(layout, list_layouts, output, force):
     if output is None:
         click.echo(text, nl=False)
         return
-    target = Path(output)
-    if target.exists() and not force:
-        _trouble(f"{output} exists; add --force to overwrite it")
-    try:
-        target.write_text(text, encoding="utf-8")
-    except OSError as exc:
-        _trouble(f"{output}: cannot write: {exc.strerror}")
-    click.echo(f"speccheck: wrote the {layout} starter to {output}; check it with `speccheck check {output}`",
-               err=True)
+    _write(output, text, force, [], "starter")
+    click.echo(f"speccheck: wrote the {layout} starter to {_plain(output)}; check it with "
+               f"`speccheck check {_plain(output)}`", err=True)
 
 
 @main.command()
@@ -307,15 +324,16 @@ def spice(path, folder, force, config, no_config):
     from speccheck import engine, loader
     from speccheck import spice as spice_mod
     from speccheck.files import FileTrouble, write_atomic
+    from speccheck.reporters.text import finding_lines
 
     if not Path(path).exists():
         _trouble(f"{path}: no such file")
     settings = _settings([path], config, no_config)
-    loaded = loader.load(path)
+    loaded = loader.load(path, settings.root or None)
     result = engine.check_loaded(loaded, settings)
     blocking = [f for f in result.findings if f.rule.startswith("input.")]
     for f in blocking:
-        click.echo(f"{f.location.file}:{f.location.line}:{f.location.col}: {f.level} {f.rule} {f.message}", err=True)
+        click.echo(finding_lines(f)[0], err=True)
     if not loaded.can_check:
         click.echo(f"speccheck: {path}: no decks written: the plan has input errors", err=True)
         sys.exit(EXIT_TROUBLE if any(f.rule == "input.unreadable" for f in blocking) else EXIT_FINDINGS)
@@ -335,6 +353,6 @@ def spice(path, folder, force, config, no_config):
         try:
             write_atomic(deck_file, deck.text(result.build_name, str(path)), force=force)
         except FileTrouble as exc:
-            _trouble(f"{deck_file}: {exc}")
+            _trouble(f"{_plain(deck_file)} {exc}")
     click.echo(f"speccheck: wrote {len(decks)} deck{'' if len(decks) == 1 else 's'} to {folder}: "
                f"{', '.join(p.name for p in paths)}; run one with `ngspice -b DECK`", err=True)

@@ -21,6 +21,7 @@ from pathlib import Path
 
 PROJECT_FILE = "speccheck-project.yaml"
 PROJECT_SCHEMA = "project-v1.json"
+PROJECT_FILE_LIMIT = 100_000  # a project file is a screenful
 FAMILY_ONLY_PROTECTED = ("input", "review")  # always on when `only` is used; input can never be skipped
 
 
@@ -34,6 +35,7 @@ class Settings:
     exclude: list = field(default_factory=list)
     source: str = ""  # the project file these came from, if any
     root: str = ""  # the project's root folder (project file's folder, else repository root); "" = cwd
+    baseline: str = ""  # the baseline the project file names (a path), if any
 
     def enabled(self, rule_id: str) -> bool:
         family = rule_id.split(".", 1)[0] + "."
@@ -264,10 +266,12 @@ def load_project(path) -> Settings:
     from speccheck import registry, yamlnodes
 
     file = str(path)
+    from speccheck import files
+
     try:
-        text = Path(path).read_bytes().decode("utf-8-sig")
-    except OSError as exc:
-        raise ConfigError([f"{file}: cannot read the project file: {exc.strerror}"]) from None
+        text = files.read_bytes_bounded(path, PROJECT_FILE_LIMIT).decode("utf-8-sig")
+    except files.FileTrouble as exc:
+        raise ConfigError([f"{file}: the project file {exc}"]) from None
     except UnicodeDecodeError as exc:
         raise ConfigError([f"{file}: the project file is not UTF-8 text (byte {exc.start})"]) from None
     doc = yamlnodes.parse(text)
@@ -322,6 +326,14 @@ def load_project(path) -> Settings:
 
     if "fail_level" in data:
         settings.fail_level = data["fail_level"]
+    if data.get("baseline"):
+        from speccheck import files as files_mod
+
+        target, why = files_mod.confined(data["baseline"], settings.root, settings.root)
+        if target is None:
+            reader.error(("baseline",), f"baseline '{data['baseline']}' {why}")
+            raise ConfigError(reader.sorted())
+        settings.baseline = str(target)
     only = section.get("only") or []
     if only:
         wanted = {rid for name in only for rid in _expand(name, rules)}

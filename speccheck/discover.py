@@ -6,19 +6,24 @@ from __future__ import annotations
 
 import os
 import re
+from dataclasses import dataclass, field
 from pathlib import Path
 
+from speccheck import files
+
 EXTENSIONS = (".yaml", ".yml")
-_VERSION_KEY = re.compile(r"^build_spec\s*:", re.MULTILINE)
+_VERSION_KEY = re.compile(rb"^build_spec\s*:", re.MULTILINE)
 SKIP_DIRS = {".git", ".hg", ".svn", "node_modules", "__pycache__", ".venv", "venv", ".tox"}
-QUIET = {"speccheck-project.yaml"}  # our own project file is YAML too, but no news in a folder walk
+# YAML that is plainly not a build plan and no news in a report: our own project file, and the
+# configuration of the commit-hook framework that runs us. Passed over without a note.
+QUIET = {"speccheck-project.yaml", ".pre-commit-config.yaml", ".pre-commit-hooks.yaml"}
+HEAD = 65536
 
 
 def is_build_file(path: Path) -> bool:
     try:
-        with open(path, "rb") as fh:
-            head = fh.read(65536).decode("utf-8", "ignore")
-    except OSError:
+        head = files.read_head(path, HEAD)
+    except files.FileTrouble:
         return False
     return bool(_VERSION_KEY.search(head))
 
@@ -27,12 +32,37 @@ def _key(path: Path) -> str:
     return Path(os.path.normpath(path)).as_posix()
 
 
-def expand(paths, named_must_be_build: bool = False) -> tuple[list[Path], list[Path], list[str]]:
-    """-> (build files sorted by path, YAML files skipped, paths that do not exist).
+@dataclass
+class Found:
+    files: list = field(default_factory=list)  # build files to check, sorted by path
+    skipped: list = field(default_factory=list)  # YAML files that are not build files
+    set_aside: list = field(default_factory=list)  # (path, why) never opened: not regular, or a link out
+    missing: list = field(default_factory=list)  # named paths that do not exist
 
-    With named_must_be_build (the pre-commit hook's case, which passes every changed YAML file),
-    a named file without the `build_spec` key is skipped like one found in a folder."""
-    files, skipped, missing = [], [], []
+
+def _sort_out(candidate: Path, tree: Path | None, found: Found, must_be_build: bool):
+    """Put one YAML file where it belongs; look at its type before opening it."""
+    if tree is not None and candidate.is_symlink() and not files.inside(candidate, tree):
+        found.set_aside.append((candidate, "a link that leads out of the checked folder"))
+        return
+    why = files.not_regular(candidate)
+    if why:
+        found.set_aside.append((candidate, why))
+        return
+    if must_be_build and not is_build_file(candidate):
+        found.skipped.append(candidate)
+    else:
+        found.files.append(candidate)
+
+
+def expand(paths, named_must_be_build: bool = False) -> Found:
+    """The files a check of these paths covers.
+
+    Named files are checked whatever they hold (the loader reports what is wrong with them),
+    unless named_must_be_build (the pre-commit hook's case, which passes every changed YAML
+    file): then they are sorted like files met in a folder. In a folder walk, a file that is not
+    a regular file, or a link leading out of the walked folder, is set aside unopened."""
+    found = Found()
     for raw in paths:
         path = Path(raw)
         if path.is_dir():
@@ -40,16 +70,26 @@ def expand(paths, named_must_be_build: bool = False) -> tuple[list[Path], list[P
                 dirs[:] = sorted(d for d in dirs if d not in SKIP_DIRS)
                 for name in sorted(names):
                     if name.endswith(EXTENSIONS) and name not in QUIET:
-                        candidate = Path(root) / name
-                        (files if is_build_file(candidate) else skipped).append(candidate)
-        elif path.exists():
-            if named_must_be_build and not is_build_file(path):
-                skipped.append(path)
+                        _sort_out(Path(root) / name, path, found, True)
+        elif path.exists() or path.is_symlink():
+            if named_must_be_build:
+                if path.name not in QUIET:
+                    _sort_out(path, _tree_of(path), found, True)
             else:
-                files.append(path)
+                found.files.append(path)
         else:
-            missing.append(str(raw))
-    return _unique(files), _unique(skipped), missing
+            found.missing.append(str(raw))
+    found.files, found.skipped = _unique(found.files), _unique(found.skipped)
+    found.set_aside = sorted(set(found.set_aside), key=lambda pair: _key(pair[0]))
+    return found
+
+
+def _tree_of(path: Path) -> Path:
+    """For a file a hook names: the repository holding it, else its own folder."""
+    from speccheck.config import repo_root
+
+    here = Path(os.path.abspath(path)).parent
+    return repo_root(here) or here
 
 
 def _unique(paths) -> list[Path]:

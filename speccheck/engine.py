@@ -157,7 +157,8 @@ def check_loaded(loaded: loader.Loaded, settings: Settings) -> FileResult:
 
 
 def check_file(path: str | Path, settings: Settings | None = None) -> FileResult:
-    return check_loaded(loader.load(path), settings or Settings())
+    settings = settings or Settings()
+    return check_loaded(loader.load(path, settings.root or None), settings)
 
 
 def check_text(text: str, file: str = "<text>", settings: Settings | None = None) -> FileResult:

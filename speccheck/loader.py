@@ -9,12 +9,14 @@ its file:line:col. Nothing here raises for bad input.
 from __future__ import annotations
 
 import dataclasses
+import os
+import re
 from dataclasses import dataclass, field
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
 
-from speccheck import model, schema, units, yamlnodes
+from speccheck import files, model, schema, units, yamlnodes
 from speccheck.findings import Finding, Location
 from speccheck.registry import define
 
@@ -32,7 +34,9 @@ _INPUT_RULES = {
                             "Remove or rename one of the two keys."),
     "input.not-accepted": ("error", "A YAML feature a build file does not accept",
                            "Anchors, aliases and merge keys make a plan hard to read in a diff and can be used to "
-                           "blow up the size of a document; a build file spells every value out.",
+                           "blow up the size of a document; a build file spells every value out. Tags other than "
+                           "YAML's core ones (a language's object tags, binary data) belong to other programs' "
+                           "files, not to a build plan.",
                            "Write the value out where it is used."),
     "input.schema": ("error", "The file does not follow the build format",
                      "Every build file follows format 1, published as a JSON Schema (`speccheck schema`). "
@@ -61,6 +65,15 @@ _INPUT_RULES = {
                         "follow it back to the supply.",
                         "Name in 'from' the device that really makes the rail, and power that device from a rail "
                         "nearer the supply."),
+    "input.parts-file": ("error", "A parts file that cannot be used",
+                         "A build names its parts files relative to itself, inside the project folder (the "
+                         "folder of the project file, else the repository, else the build file's own folder), "
+                         "and each parts file starts with the line 'parts_spec: 1'. An absolute path, a path "
+                         "that climbs out with '..' or through a link, or a file without that line is refused "
+                         "before any of it is read into a report: a review posted on a shared repository must "
+                         "never show what lies outside it.",
+                         "Keep the parts file inside the project, name it relative to the build file, and give "
+                         "it the line 'parts_spec: 1'."),
     "input.reference": ("error", "A name refers to nothing",
                         "Parts, devices, profiles, rails and IF paths are referred to by name. A name that is "
                         "not declared is usually a typing slip, and the rule that needs it cannot run.",
@@ -220,7 +233,8 @@ def _parse_file(text: str, file: str, kind: str, findings: list):
     doc = yamlnodes.parse(text)
     ctx = _Context(file, doc, findings)
     for p in doc.problems:
-        rule = {"duplicate-key": "input.duplicate-key", "alias": "input.not-accepted"}.get(p.kind, "input.yaml-syntax")
+        rule = {"duplicate-key": "input.duplicate-key", "alias": "input.not-accepted",
+                "tag": "input.not-accepted"}.get(p.kind, "input.yaml-syntax")
         findings.append(Finding(rule, "error", p.message,
                                 Location(file, p.mark.line, p.mark.col, schema.dotted(p.path), p.mark.end_line,
                                          p.mark.end_col), fix=_INPUT_RULES[rule][3], stage="input"))
@@ -250,31 +264,37 @@ def builtin_profiles() -> dict:
     return _profiles_from(doc.data, "<built-in profiles>", doc, findings, builtin=True)
 
 
-def _read(path: Path, findings: list, file: str, at: Location | None = None) -> str | None:
+def _read(path: Path, findings: list, file: str, at: Location | None = None, shown: str | None = None,
+          marker: re.Pattern | None = None) -> str | None:
+    """The file's text, or None with an input finding. `shown` names the file in messages (a parts
+    file by its entry as written); with `marker`, a file without that line is refused unread."""
+    name = shown or "the file"  # the finding points at the file already; no path of the machine in it
     try:
-        raw = path.read_bytes()
-    except OSError as exc:
-        loc = at or Location(file)
-        findings.append(Finding("input.unreadable", "error", f"cannot read {path}: {exc.strerror}", loc,
-                                stage="input"))
+        raw = files.read_bytes_bounded(path, yamlnodes.MAX_BYTES)
+    except files.FileTrouble as exc:
+        rule = "input.parts-file" if marker is not None else "input.unreadable"
+        findings.append(Finding(rule, "error", f"{name} {exc}", at or Location(file), stage="input"))
         return None
-    if len(raw) > yamlnodes.MAX_BYTES:
-        findings.append(Finding("input.unreadable", "error", f"{path} is larger than "
-                                f"{yamlnodes.MAX_BYTES // 1000} kB; a build plan never is", at or Location(file),
-                                stage="input"))
+    if marker is not None and not marker.search(raw):
+        findings.append(Finding("input.parts-file", "error", f"{name} is not a parts file (it has no line "
+                                "'parts_spec: 1'); nothing of it was read", at or Location(file), stage="input",
+                                fix=_INPUT_RULES["input.parts-file"][3]))
         return None
     try:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
         line = raw.count(b"\n", 0, exc.start) + 1
         col = exc.start - (raw.rfind(b"\n", 0, exc.start) + 1) + 1
-        findings.append(Finding("input.unreadable", "error", f"{path} is not UTF-8 text: byte "
+        findings.append(Finding("input.unreadable", "error", f"{name} is not UTF-8 text: byte "
                                 f"0x{raw[exc.start]:02x} at line {line}, col {col}",
                                 at or Location(file, line, col), stage="input"))
         return None
 
 
-def load_text(text: str, file: str, base_dir: Path | None = None) -> Loaded:
+_PARTS_MARKER = re.compile(rb"^parts_spec[ \t]*:[ \t]*1[ \t]*(?:#[^\n]*)?\r?$", re.MULTILINE)
+
+
+def load_text(text: str, file: str, base_dir: Path | None = None, root: str | Path | None = None) -> Loaded:
     findings: list = []
     doc, ok = _parse_file(text, file, "build", findings)
     result = Loaded(file, None, findings, doc, text)
@@ -282,28 +302,49 @@ def load_text(text: str, file: str, base_dir: Path | None = None) -> Loaded:
         return result
     ctx = _Context(file, doc, findings)
     build = _build_obj(model.Build, doc.data, (), ctx, file=file)
-    build.profiles = _all_profiles(build, doc, file, findings, base_dir)
+    build.profiles = _all_profiles(build, doc, file, findings, base_dir, root)
     _resolve(build, ctx)
     result.build = build
     return result
 
 
-def load(path: str | Path) -> Loaded:
+def load(path: str | Path, root: str | Path | None = None) -> Loaded:
+    """Read and load one build file. `root` is the project folder its parts files must stay in
+    (the project file's folder or the repository root); without it, the repository holding the
+    file, else the file's own folder."""
     path = Path(path)
     findings: list = []
     text = _read(path, findings, str(path))
     if text is None:
         return Loaded(str(path), None, findings)
-    return load_text(text, str(path), path.parent)
+    return load_text(text, str(path), path.parent, root)
 
 
-def _all_profiles(build, doc, file: str, findings: list, base_dir: Path | None) -> dict:
+def parts_root(base_dir: Path | None, root: str | Path | None) -> Path:
+    """The folder parts files must stay in."""
+    if root:
+        return Path(root)
+    from speccheck.config import repo_root
+
+    here = Path(os.path.abspath(base_dir or "."))
+    return repo_root(here) or here
+
+
+def _all_profiles(build, doc, file: str, findings: list, base_dir: Path | None, root) -> dict:
     profiles = dict(builtin_profiles())
+    if build.parts_files:
+        root = parts_root(base_dir, root)
     for i, name in enumerate(build.parts_files):
         at = Location(file, *_line_col(doc, ("parts_files", i)), path=f"parts_files[{i}]")
-        target = (base_dir or Path(".")) / name
+        shown = f"parts_files[{i}] {_quoted(name)}"
         more: list = []
-        text = _read(target, more, file, at)
+        target, why = files.confined(str(name), base_dir or Path("."), root)
+        if target is None:
+            more.append(Finding("input.parts-file", "error", f"{shown} {why}", at, stage="input",
+                                fix=_INPUT_RULES["input.parts-file"][3]))
+            findings.extend(more)
+            continue
+        text = _read(target, more, file, at, shown, _PARTS_MARKER)
         if text is not None:
             pdoc, ok = _parse_file(text, str(target), "parts", more)
             if ok and isinstance(pdoc.data, dict):
@@ -311,6 +352,10 @@ def _all_profiles(build, doc, file: str, findings: list, base_dir: Path | None) 
         findings.extend(more)
     profiles.update(build.profiles)  # declared in the build file itself: wins
     return profiles
+
+
+def _quoted(name) -> str:
+    return "'" + str(name)[:80] + ("...'" if len(str(name)) > 80 else "'")
 
 
 def _line_col(doc, path):
@@ -370,6 +415,7 @@ def _resolve(build: model.Build, ctx: _Context):
         if rail.source not in (None, "supply") and rail.source not in build.devices:
             missing("device", rail.source, rail, "source", build.devices)
     _rail_loops(build, ctx)
+    _meaningless_voltages(build, ctx)
     paths = {name for st in build.chain for name in st.paths}
     for sig in build.signals:
         if sig.path and paths and sig.path not in paths:
@@ -413,6 +459,19 @@ def _rail_loops(build: model.Build, ctx: _Context):
             rail = build.rails.get(dev.rail)
             if len(seen) > len(build.rails):
                 break
+
+
+def _meaningless_voltages(build: model.Build, ctx: _Context):
+    """A supply states the voltage it delivers to the build: 0 V delivers nothing, and a negative
+    figure is the other side of a split supply, which is declared as a rail of its own."""
+    supply = build.supply
+    if supply is None or supply.voltage is None or supply.voltage.si > 0:
+        return
+    why = "powers nothing" if supply.voltage.si == 0 else (
+        "is not what a supply delivers: give its positive output here, and declare a negative side as a rail "
+        "(from: supply)")
+    ctx.report("input.value-range", f"supply.voltage is {supply.voltage.text}: a supply of {supply.voltage.text} "
+               f"{why}", supply.doc_path + ("voltage",))
 
 
 def _check_part(build, holder, field_name, missing):

@@ -21,8 +21,9 @@ def parts_file_schema() -> dict:
     """A parts file beside a build holds only device profiles; it reuses the build's $defs."""
     build = build_schema()
     return {"$schema": build["$schema"], "type": "object", "additionalProperties": False,
-            "required": ["profiles"], "properties": {"profiles": build["properties"]["profiles"],
-                                                     "note": {"type": "string"}},
+            "required": ["parts_spec", "profiles"],
+            "properties": {"parts_spec": {"const": 1, "description": "marks the file as a parts file"},
+                           "profiles": build["properties"]["profiles"], "note": {"type": "string"}},
             "$defs": build["$defs"]}
 
 

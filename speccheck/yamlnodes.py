@@ -31,7 +31,7 @@ class Mark:
 
 @dataclass(slots=True)
 class Problem:
-    kind: str  # "syntax", "duplicate-key", "alias", "limit", "encoding"
+    kind: str  # "syntax", "duplicate-key", "alias", "tag", "limit", "encoding"
     message: str
     mark: Mark
     path: Path = ()
@@ -219,7 +219,25 @@ def _tagged(node, doc: Document, path: Path):
     return text
 
 
+# YAML 1.2.2, section 10.3 (core schema): the only tags a build file may carry. Any other tag
+# ('!!python/object/apply:...', '!!binary', a local '!thing') is refused where it stands.
+CORE_TAGS = frozenset("tag:yaml.org,2002:" + t for t in ("str", "int", "float", "bool", "null", "seq", "map"))
+
+
+def _foreign_tag(node, doc: Document, path: Path) -> bool:
+    tag = node.ctag.suffix
+    if tag in CORE_TAGS:
+        return False
+    shown = tag.replace("tag:yaml.org,2002:", "!!")
+    doc.problems.append(Problem("tag", f"the YAML tag '{shown[:60]}' is not accepted in a build file; only plain "
+                                "values, lists and mappings are", _mark(node), path))
+    return True
+
+
 def _convert(node, doc: Document, path: Path, depth: int, seen: set):
+    if node.ctag.suffix not in CORE_TAGS and _foreign_tag(node, doc, path):
+        doc.value_nodes[path] = node
+        return None
     if depth > MAX_DEPTH:
         doc.problems.append(Problem("limit", f"nesting deeper than {MAX_DEPTH} levels", _mark(node), path))
         return None

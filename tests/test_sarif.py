@@ -77,7 +77,8 @@ def test_results_carry_rule_level_location_and_numbers(plans):
     loc = result["locations"][0]["physicalLocation"]
     assert loc["artifactLocation"]["uri"] == "builds/beginner.yaml"
     assert loc["artifactLocation"]["uriBaseId"] == "%SRCROOT%"
-    assert run["originalUriBaseIds"]["%SRCROOT%"]["uri"] == Path.cwd().as_uri() + "/"
+    assert "originalUriBaseIds" not in run  # optional; an absolute path of this machine has no place in the log
+    assert str(Path.cwd()) not in json.dumps(doc)
     line = line_of(text, "L2: {kind: inductor")
     col = text.splitlines()[line - 1].index("[U1.quad, GND]") + 1
     assert loc["region"] == {"startLine": line, "startColumn": col, "endLine": line,
@@ -150,7 +151,8 @@ def test_unreadable_file_and_files_outside_the_working_folder(tmp_path, monkeypa
     run = doc["runs"][0]
     assert run["invocations"][0]["executionSuccessful"] is False
     uri = run["results"][0]["locations"][0]["physicalLocation"]["artifactLocation"]
-    assert uri == {"uri": bad.as_uri(), "index": 0}
+    assert uri == {"uri": "../bad.yaml", "uriBaseId": "%SRCROOT%", "index": 0}
+    assert str(tmp_path) not in json.dumps(doc)
 
 
 def test_sarif_to_a_file_says_the_totals_on_stderr(plans, tmp_path):

@@ -16,6 +16,7 @@ class RunInfo:
 
     skipped: list = field(default_factory=list)  # YAML files in folders that are not build files
     excluded: list = field(default_factory=list)  # build files the project file's globs leave out
+    set_aside: list = field(default_factory=list)  # (path, why): not regular files, links out of the tree
     hidden: dict = field(default_factory=dict)  # file path -> findings hidden by the baseline
     baseline: str = ""  # the baseline file, if one was used
     config: str = ""  # the project file, if one was used

@@ -41,7 +41,8 @@ def report(results, settings, run=None) -> dict:
             "fail_level": settings.fail_level, "project_file": run.config or None,
             "baseline": run.baseline or None, "totals": counted,
             "files": [file_dict(r, run.hidden.get(r.path, 0)) for r in results],
-            "skipped": [str(p) for p in run.skipped], "excluded": [str(p) for p in run.excluded]}
+            "skipped": [str(p) for p in run.skipped], "excluded": [str(p) for p in run.excluded],
+            "set_aside": [{"path": str(p), "reason": why} for p, why in run.set_aside]}
 
 
 def render(results, settings, run=None) -> str:

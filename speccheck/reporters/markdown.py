@@ -194,10 +194,11 @@ def render(results, settings, run=None) -> str:
     clean = [r for r in results if r.checked and not r.findings]
     if clean:
         lines += ["", "Clean: " + ", ".join(code(r.path) for r in clean) + "."]
-    if run.skipped or run.excluded:
+    if run.skipped or run.excluded or run.set_aside:
         lines.append("")
         lines += [f"- note: {code(p)} skipped, not a build file (no `build_spec:` key)" for p in run.skipped]
         lines += [f"- note: {code(p)} skipped, excluded by the project file" for p in run.excluded]
+        lines += [f"- note: {code(p)} skipped, {md(why)}" for p, why in run.set_aside]
     for r in results:
         lines.extend(file_block(r, rules, run.hidden.get(r.path, 0)))
     return "\n".join(lines) + "\n"

@@ -59,20 +59,23 @@ def descriptor(rule) -> dict:
 
 
 def artifact_location(file: str) -> dict:
-    """uri relative to the working folder (with the base id), or an absolute file uri outside it."""
+    """uri relative to the working folder, with the base id the consumer resolves (the checkout).
+
+    No absolute path of the machine that ran the check goes into the log: a file outside the
+    working folder is reached with '../' steps, and the optional originalUriBaseIds is left out,
+    so the consumer supplies the base itself."""
     if file.startswith("<"):
         return {"uri": quote(file.strip("<>"))}
-    absolute = Path(os.path.abspath(file))
     try:
-        rel = absolute.relative_to(Path.cwd())
-    except ValueError:
-        return {"uri": absolute.as_uri()}
-    return {"uri": quote(rel.as_posix(), safe="/"), "uriBaseId": BASE_ID}
+        rel = os.path.relpath(os.path.abspath(file), os.getcwd())
+    except ValueError:  # another drive: there is no relative path
+        rel = Path(file).name
+    return {"uri": quote(Path(rel).as_posix(), safe="/"), "uriBaseId": BASE_ID}
 
 
-def _folder_uri(folder: Path) -> str:
-    uri = folder.as_uri()
-    return uri if uri.endswith("/") else uri + "/"
+def _shown(path) -> str:
+    """A path for a message: as the artifact uri has it, never absolute."""
+    return str(path) if str(path).startswith("<") else artifact_location(str(path))["uri"]
 
 
 def region(loc) -> dict:
@@ -165,24 +168,27 @@ def report(results, settings, run=None) -> dict:
     for r in results:
         for text in r.cautions:
             out_results.append(caution_result(r, text, index, artifacts))
-            notes.append(_note(f"Safety caution for {r.path}: {text}", "warning", r.path))
+            notes.append(_note(f"Safety caution for {_shown(r.path)}: {text}", "warning", r.path))
         out_results.extend(result_of(f, index, artifacts, bool(run.baseline)) for f in r.findings)
-    notes += [_note(f"{p}: skipped, not a build file (no 'build_spec:' key)", file=str(p)) for p in run.skipped]
-    notes += [_note(f"{p}: skipped, excluded by the project file", file=str(p)) for p in run.excluded]
+    notes += [_note(f"{_shown(p)}: skipped, not a build file (no 'build_spec:' key)", file=str(p))
+              for p in run.skipped]
+    notes += [_note(f"{_shown(p)}: skipped, excluded by the project file", file=str(p)) for p in run.excluded]
+    notes += [_note(f"{_shown(p)}: skipped, {why}", file=str(p)) for p, why in run.set_aside]
     if run.baseline:
-        notes.append(_note(f"{run.hidden_total} findings hidden by the baseline {run.baseline}"))
+        notes.append(_note(f"{run.hidden_total} findings hidden by the baseline {_shown(run.baseline)}"))
     unreadable = any(f.rule == "input.unreadable" for r in results for f in r.findings)
     invocation = {"executionSuccessful": not unreadable, "toolExecutionNotifications": notes}
     overrides = _overrides(settings, rules, index)
     if overrides:
         invocation["ruleConfigurationOverrides"] = overrides
-    invocation["properties"] = {"failLevel": settings.fail_level, "projectFile": run.config or None,
-                                "baseline": run.baseline or None, "hiddenByBaseline": run.hidden_total}
+    invocation["properties"] = {"failLevel": settings.fail_level,
+                                "projectFile": _shown(run.config) if run.config else None,
+                                "baseline": _shown(run.baseline) if run.baseline else None,
+                                "hiddenByBaseline": run.hidden_total}
     sarif_run = {
         "tool": {"driver": {"name": "speccheck", "version": __version__, "semanticVersion": __version__,
                             "rules": [descriptor(r) for r in rules]}},
         "invocations": [invocation],
-        "originalUriBaseIds": {BASE_ID: {"uri": _folder_uri(Path.cwd())}},
         "artifacts": artifact_list,
         "columnKind": "unicodeCodePoints",
         "results": out_results,
