@@ -420,7 +420,71 @@ def _rc_lowpass(build, sheet: _Sheet, stage) -> Deck | None:
     if stage.kind == "de-emphasis":
         deck.lines.append(".measure ac time_constant param='1/(6.28318530718*corner)'")
         sheet.check(deck, "time_constant", "audio", who, "de-emphasis time constant")
+    if shared:
+        _as_wired(build, deck, names, res, cap, inp or "filter input", out, corner)
     return deck
+
+
+PASSIVE = {"resistor": "R", "potentiometer": "R", "speaker": "R", "capacitor": "C", "inductor": "L"}
+
+
+def load_on(build, net: str, skip: set) -> list:
+    """The passive parts that load `net`: every resistor, pot (its whole track), speaker,
+    capacitor or inductor reachable from it through nets that are neither a rail (AC ground)
+    nor a device pin (open: its input impedance is not known), less the parts that carry no
+    current (one end on a net nothing else reaches)."""
+    nets = build.nets
+    found: dict = {}
+    todo, seen = [net], {net}
+    while todo:
+        here = todo.pop()
+        for part in nets.parts_on(here):
+            other = part.other_end(here)
+            if part.name in skip or part.kind not in PASSIVE or part.value is None or other is None:
+                continue
+            found[part.name] = part
+            if other not in seen and other not in build.rails and "." not in other:
+                seen.add(other)
+                todo.append(other)
+    while True:  # drop parts that end on a net nothing else touches: no current flows in them
+        count: dict = {}
+        for part in found.values():
+            for end in part.ends:
+                count[end] = count.get(end, 0) + 1
+        dangling = [p for p in found.values()
+                    if any(count[e] == 1 and e != net and e not in build.rails for e in p.ends)]
+        if not dangling:
+            return list(found.values())
+        for p in dangling:
+            del found[p.name]
+
+
+def _as_wired(build, deck: Deck, names: Names, res, cap, inp: str, out: str, corner: float):
+    """A second copy of an RC stage with the parts that load its output, as the nets show them.
+    Its corner is where the output's phase has turned 45 degrees; the coupling capacitors of
+    the load add a little phase lead, so it is close to, not exactly, the -3 dB point."""
+    load = load_on(build, out, {res.name, cap.name})
+    if not load:
+        return
+
+    def node(net):
+        return "0" if net in names.grounds else names.net(f"wired {net}")
+    drive = names.element("V", "drive wired")
+    deck.lines += [(f"* as wired: the same RC with what loads {comment(out)} on the plan's nets "
+                   "(rails as AC ground, device pins open)"),
+                   f"{drive} {node(inp)} 0 DC 0 AC 1",
+                   f"{names.element('R', res.name + ' wired')} {node(inp)} {node(out)} {number(res.value.si)}",
+                   (f"{names.element('C', cap.name + ' wired')} {node(out)} {node(cap.other_end(out))} "
+                   f"{number(cap.value.si)}")]
+    for part in load:
+        deck.lines += [f"* {comment(_pretty(part))}",
+                       (f"{names.element(PASSIVE[part.kind], part.name + ' wired')} {node(part.ends[0])} "
+                       f"{node(part.ends[1])} {number(part.value.si)}")]
+    deck.lines += [f".save v({node(out)})",
+                   f".measure ac corner_as_wired when vp({node(out)})={number(-EIGHTH_TURN)} cross=1",
+                   f".measure ac passband_as_wired_db find vdb({node(out)}) at={number(corner / 10)}"]
+    deck.notes.append(f"as wired, {', '.join(p.name for p in load)} load the output: corner_as_wired shows "
+                      "where that moves the corner (not a design-sheet value)")
 
 
 def _audio_output(build, sheet: _Sheet, stage) -> Deck | None:
