@@ -1,3 +1,5 @@
-"""Rule families. Each module here is one family; the engine imports the ones listed."""
+"""Rule families. Each module (or package) here is one family; the engine imports the ones listed,
+in this order, and runs their rules in it. input and review are reported by the loader and the
+waiver pass, not run on the model."""
 
-FAMILIES = ["wiring", "freqplan", "rfpath", "power", "audio", "mains"]
+FAMILIES = ["input", "review", "wiring", "freqplan", "rfpath", "power", "audio", "mains"]

@@ -9,21 +9,11 @@ from __future__ import annotations
 import math
 
 from speccheck.findings import Value
+from speccheck.formulas.audio import high_pass_loss_db, rc_corner
 from speccheck.registry import rule
 from speccheck.units import fmt
 
 DC_THRESHOLD = 0.1  # V; below this a speaker counts as having no DC across it
-
-
-def rc_corner(ohms: float, farads: float) -> float:
-    """f_c = 1/(2π·R·C): the corner of a first-order RC (high-pass for a coupling capacitor
-    into its load, the turnover of a series R–C network)."""
-    return 1.0 / (2 * math.pi * ohms * farads)
-
-
-def high_pass_loss_db(f: float, corner: float) -> float:
-    """Loss of a first-order high-pass at f: 10·log10(1 + (f_c/f)²) dB."""
-    return 10 * math.log10(1 + (corner / f) ** 2)
 
 
 def _output_nets(dev) -> list:
@@ -244,7 +234,8 @@ def input_bypass(build, ctx):
       verify="At full volume with a tone, measure the RMS voltage across the speaker: V²/R must stay below its "
              "rating.")
 def speaker_power(build, ctx):
-    from speccheck.rules.power import amp_point, class_b_full_output
+    from speccheck.budget import amp_point
+    from speccheck.formulas.amplifiers import class_b_full_output
 
     for stage in build.stages("audio-amp"):
         dev, load = build.device(stage.device), build.part(stage.load)

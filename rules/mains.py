@@ -12,7 +12,9 @@ import math
 
 from speccheck.findings import Value
 from speccheck.registry import rule
-from speccheck.rules.power import ambient, r10_up, rerate, setting_of
+from speccheck.budget import ambient
+from speccheck.formulas.fuses import rerate
+from speccheck.formulas.preferred import r10_up
 from speccheck.units import fmt
 
 HAZARD_RULE = "mains.hazard"
@@ -47,7 +49,7 @@ def is_mains(build) -> bool:
 
 
 def limits(ctx) -> tuple[float, float]:
-    return setting_of(ctx, HAZARD_RULE, "limit_ac_rms"), setting_of(ctx, HAZARD_RULE, "limit_dc")
+    return ctx.setting("limit_ac_rms", of=HAZARD_RULE), ctx.setting("limit_dc", of=HAZARD_RULE)
 
 
 def transformer(build):
@@ -209,10 +211,10 @@ def _primary_choice(build, ctx, m, xf):
     if xf is None or xf.rating is None or m.voltage is None or m.voltage.si <= 0:
         return None
     primary = xf.rating.si / m.voltage.si
-    share = setting_of(ctx, "power.fuse-size", "derating")
-    factor = rerate(ambient(build), setting_of(ctx, "power.fuse-size", "rerate_per_degc"),
-                    setting_of(ctx, "power.fuse-size", "rerate_above"))
-    allowance = setting_of(ctx, "mains.primary-fuse", "inrush_allowance")
+    share = ctx.setting("derating", of="power.fuse-size")
+    factor = rerate(ambient(build), ctx.setting("rerate_per_degc", of="power.fuse-size"),
+                    ctx.setting("rerate_above", of="power.fuse-size"))
+    allowance = ctx.setting("inrush_allowance", of="mains.primary-fuse")
     least = max(primary / (share * factor), primary * allowance / factor)
     choice = {"primary": primary, "least": least, "preferred": r10_up(least), "rerate": factor}
     ctx.publish("mains", xf.name, "primary current at full load (VA / V mains)", primary, "A")

@@ -4,17 +4,18 @@ The match is computed at the frequency that arrives at the stage (from the frequ
 walk): the impedance the source sees through the declared network, its return loss and
 VSWR, the ideal L-network with the nearest preferred values, toroid turns for a declared
 core, and what a plain shunt termination would give up instead. All formulas live in
-speccheck.rf.
+speccheck/formulas/.
 """
 
 from __future__ import annotations
 
 import math
 
-from speccheck import rf, units
+from speccheck import units
+from speccheck.chain import frequency_plan, owner
 from speccheck.findings import Value
+from speccheck.formulas import matching, preferred, resonators
 from speccheck.registry import rule
-from speccheck.rules.freqplan import frequency_plan, owner
 
 
 def _setting(ctx, name: str, cast=float):
@@ -48,7 +49,7 @@ def _publish_picks(ctx, who: str, what: str, ideal: float, unit: str) -> str:
     """Publish the nearest E12 and E24 values to an ideal one; return them as words."""
     shown = []
     for name in ("E12", "E24"):
-        pick, err = rf.nearest_preferred(ideal, rf.SERIES[name])
+        pick, err = preferred.nearest_preferred(ideal, preferred.SERIES[name])
         ctx.publish("input-match", who, f"{what}, nearest {name}", pick, unit)
         ctx.publish("input-match", who, f"{what}, {name} error", round(err * 100, 2), "%")
         shown.append(f"{name} {_fmt(pick, unit)} {err * 100:+.1f} %")
@@ -99,14 +100,14 @@ def input_match(build, ctx):
         ctx.publish("input-match", who, "working frequency", f, "Hz")
         ctx.publish("input-match", who, "source resistance", rs, "Ω")
         ctx.publish("input-match", who, "load resistance", rl, "Ω")
-        cost = rf.termination_cost_db(rs, rl)
+        cost = matching.termination_cost_db(rs, rl)
         if rl > rs:
-            ctx.publish("input-match", who, "shunt termination resistor instead", rf.termination_resistor(rs, rl), "Ω")
+            ctx.publish("input-match", who, "shunt termination resistor instead", matching.termination_resistor(rs, rl), "Ω")
             ctx.publish("input-match", who, "signal lost with a shunt termination", round(cost, 2), "dB")
         topo = stage.topology
         parts = [build.part(ref) for ref in stage.parts]
         coil, cap, res = _pick("inductor", parts), _pick("capacitor", parts), _pick("resistor", parts)
-        ideal = rf.l_network(rs, rl, f) if rl != rs else None
+        ideal = matching.l_network(rs, rl, f) if rl != rs else None
         if ideal is not None:
             ctx.publish("input-match", who, "L-network Q", round(ideal["q"], 3))
             ctx.publish("input-match", who, "ideal series L", ideal["inductance"], "H")
@@ -115,7 +116,7 @@ def input_match(build, ctx):
             picks_c = _publish_picks(ctx, who, "shunt C", ideal["capacitance"], "F")
             if coil is not None and coil.core is not None and coil.core.al is not None:
                 ctx.publish("input-match", who, f"turns for the ideal L on {coil.name}'s core",
-                            round(rf.toroid_turns(ideal["inductance"], coil.core.al.si), 1))
+                            round(resonators.toroid_turns(ideal["inductance"], coil.core.al.si), 1))
             suggestion = (f"series {_fmt(ideal['inductance'], 'H')} ({picks_l}), shunt "
                           f"{_fmt(ideal['capacitance'], 'F')} ({picks_c}) across the {ideal['shunt_on']} side")
         else:
@@ -134,15 +135,15 @@ def input_match(build, ctx):
                            f"shape cannot match them", where,
                            [Value("source", rs, "Ω"), Value("load", rl, "Ω")], stage=stage.label,
                            fix="Turn the network round: the shunt C goes across the higher resistance.")
-            zin = (rf.zin_series_l_shunt_c if topo == "series-l-shunt-c" else rf.zin_shunt_c_series_l)(
+            zin = (matching.zin_series_l_shunt_c if topo == "series-l-shunt-c" else matching.zin_shunt_c_series_l)(
                 f, coil.value.si, cap.value.si, rl)
         elif topo == "termination":
             if res is None or res.value is None:
                 ctx.report(f"{stage.label}: a termination needs its resistor with a value in "
                            f"chain[{stage.index}].parts", where, level="note", stage=stage.label)
                 continue
-            zin = complex(rf.parallel(res.value.si, rl))
-            share = (zin.real / rl) * (1 - abs(rf.reflection(zin, rs)) ** 2)
+            zin = complex(resonators.parallel(res.value.si, rl))
+            share = (zin.real / rl) * (1 - abs(matching.reflection(zin, rs)) ** 2)
             lost = -10 * math.log10(share) if share > 0 else math.inf
             ctx.publish("input-match", who, "signal lost in the termination", round(lost, 2), "dB")
             if rl > rs and ideal is not None:
@@ -155,7 +156,7 @@ def input_match(build, ctx):
             zin = complex(rl)
         else:
             continue  # a transformer or an undeclared shape: no data to compute
-        rloss, ratio = rf.return_loss_db(zin, rs), rf.vswr(zin, rs)
+        rloss, ratio = matching.return_loss_db(zin, rs), matching.vswr(zin, rs)
         ctx.publish("input-match", who, "impedance seen by the source (real)", zin.real, "Ω")
         ctx.publish("input-match", who, "impedance seen by the source (imaginary)", zin.imag, "Ω")
         ctx.publish("input-match", who, "return loss", round(rloss, 2) if math.isfinite(rloss) else rloss, "dB")
@@ -166,7 +167,7 @@ def input_match(build, ctx):
                        f"j{abs(zin.imag):.1f} Ω through the {topo} input: return loss {rloss:.1f} dB (VSWR "
                        f"{ratio:.2f}), under {min_rl:g} dB; ideal for {_fmt(rl, 'Ω')}: {suggestion}", where,
                        [Value("return loss", round(rloss, 2), "dB"), Value("VSWR", round(ratio, 3)),
-                        Value("mismatch loss", round(rf.mismatch_loss_db(zin, rs), 2), "dB")], stage=stage.label)
+                        Value("mismatch loss", round(matching.mismatch_loss_db(zin, rs), 2), "dB")], stage=stage.label)
 
 
 @rule("rfpath.coil-turns", verify='Measure the wound coil with an LC meter, or resonate it with a known capacitor and a dip meter, before fitting it.',
@@ -191,11 +192,11 @@ def coil_turns(build, ctx):
         stage = build.stage_of_part(part.name)
         label = stage.label if stage else "parts"
         if part.value is not None:
-            need = rf.toroid_turns(part.value.si, al)
+            need = resonators.toroid_turns(part.value.si, al)
             ctx.publish("coils", part.name, "turns for the declared value", round(need, 1))
         if part.turns is None:
             continue
-        got = rf.toroid_inductance(part.turns, al)
+        got = resonators.toroid_inductance(part.turns, al)
         ctx.publish("coils", part.name, f"inductance of {part.turns} turns", got, "H")
         if part.value is None:
             continue

@@ -38,8 +38,11 @@ class Context:
     def __init__(self, result: FileResult, rule: registry.Rule, settings: Settings, build):
         self.result, self.rule, self.settings, self.build = result, rule, settings, build
 
-    def setting(self, name: str):
-        return self.settings.rule_settings.get(self.rule.id, {}).get(name, self.rule.settings[name])
+    def setting(self, name: str, of: str | None = None):
+        """A setting of this rule, or of rule `of` (the fuse rules share power.fuse-size's):
+        the project file's value first, then the rule's default."""
+        rule = self.rule if of is None else registry.RULES[of]
+        return self.settings.rule_settings.get(rule.id, {}).get(name, rule.settings[name])
 
     def report(self, message: str, at: Location, values=(), fix: str | None = None, level: str | None = None,
                stage: str = "") -> Finding:

@@ -1,4 +1,5 @@
-"""From a file on disk to a typed, unit-converted `Build`, and the input.* findings.
+"""From a file on disk to a typed, unit-converted `Build`, and the input.* findings
+(the input family itself is defined in rules/input.py).
 
 The narrow interface: `load(path) -> Loaded`. It reads text, asks yamlnodes for plain data
 with positions, validates against the published schema, converts every quantity through
@@ -16,75 +17,20 @@ from functools import lru_cache
 from importlib import resources
 from pathlib import Path
 
-from speccheck import files, model, schema, units, yamlnodes
+from speccheck import files, model, registry, schema, units, yamlnodes
 from speccheck.findings import Finding, Location
-from speccheck.registry import define
-
-# ---- the input family: problems with the file itself -----------------------------------
-
-_INPUT_RULES = {
-    "input.unreadable": ("error", "The file cannot be read",
-                         "speccheck could not read the file as UTF-8 text.", "Save the file as UTF-8 text."),
-    "input.yaml-syntax": ("error", "The file is not valid YAML",
-                          "The YAML could not be parsed at the position shown, so nothing else was checked.",
-                          "Fix the YAML at the position shown; indentation and unclosed brackets are the usual cause."),
-    "input.duplicate-key": ("error", "A key appears twice in the same mapping",
-                            "YAML keeps only one of two equal keys, so half of what you wrote would be lost "
-                            "without a word. speccheck refuses the file instead.",
-                            "Remove or rename one of the two keys."),
-    "input.not-accepted": ("error", "A YAML feature a build file does not accept",
-                           "Anchors, aliases and merge keys make a plan hard to read in a diff and can be used to "
-                           "blow up the size of a document; a build file spells every value out. Tags other than "
-                           "YAML's core ones (a language's object tags, binary data) belong to other programs' "
-                           "files, not to a build plan.",
-                           "Write the value out where it is used."),
-    "input.schema": ("error", "The file does not follow the build format",
-                     "Every build file follows format 1, published as a JSON Schema (`speccheck schema`). "
-                     "A key that is unknown, missing, or of the wrong kind is reported at its position. "
-                     "Rules do not run on a file with such errors, because they would guess.",
-                     "Correct the key or value shown; `speccheck schema` prints the format, and an editor with "
-                     "YAML schema support completes keys for you."),
-    "input.unit": ("error", "A value has the wrong unit or no unit",
-                   "Every physical value carries its unit, and each field expects one kind of quantity: a "
-                   "frequency in Hz, a capacitance in F, a level in dBm. A value in the wrong dimension "
-                   "(an inductance where a frequency belongs) is a typing slip that would make every number "
-                   "derived from it wrong.",
-                   "Write the value with the unit the field expects, e.g. '455 kHz', '100 nF', '-60 dBm'."),
-    "input.value-range": ("error", "A value is physically meaningless",
-                          "A frequency, capacitance, inductance, resistance or current must be greater than "
-                          "zero; zero or a negative number there would divide by zero or flip a sign in the "
-                          "arithmetic.",
-                          "Give the real, positive value."),
-    "input.shorted-part": ("error", "A part with both ends on the same net",
-                           "A two-ended part whose two ends connect to the same net does nothing: it is shorted "
-                           "out. In a plan it is nearly always a typing slip in 'ends'.",
-                           "Write the two different nets the part's ends connect to."),
-    "input.rail-loop": ("error", "Rails that feed each other",
-                        "A rail made by a regulator that is itself powered from that rail (directly or through "
-                        "other regulators) has no source; the current budget and the regulator rules cannot "
-                        "follow it back to the supply.",
-                        "Name in 'from' the device that really makes the rail, and power that device from a rail "
-                        "nearer the supply."),
-    "input.parts-file": ("error", "A parts file that cannot be used",
-                         "A build names its parts files relative to itself, inside the project folder (the "
-                         "folder of the project file, else the repository, else the build file's own folder), "
-                         "and each parts file starts with the line 'parts_spec: 1'. An absolute path, a path "
-                         "that climbs out with '..' or through a link, or a file without that line is refused "
-                         "before any of it is read into a report: a review posted on a shared repository must "
-                         "never show what lies outside it.",
-                         "Keep the parts file inside the project, name it relative to the build file, and give "
-                         "it the line 'parts_spec: 1'."),
-    "input.reference": ("error", "A name refers to nothing",
-                        "Parts, devices, profiles, rails and IF paths are referred to by name. A name that is "
-                        "not declared is usually a typing slip, and the rule that needs it cannot run.",
-                        "Declare the part, device, profile or rail, or correct the name."),
-}
-for _id, (_level, _title, _why, _fix) in _INPUT_RULES.items():
-    define(_id, level=_level, title=_title, explanation=_why, fix=_fix, source="speccheck build format 1")
 
 ZERO_ALLOWED = {"drift", "stray", "extra_capacitance", "theta_cs", "tolerance", "ac_peak", "forward_voltage"}
 POSITIVE_DIMS = {"frequency", "capacitance", "inductance", "resistance", "current", "power", "apparent_power",
                  "time", "length", "inductance_factor", "thermal_resistance", "i2t", "fraction"}
+
+
+def _level(rule_id: str) -> str:
+    return registry.RULES[rule_id].level if rule_id in registry.RULES else registry.load_rules()[rule_id].level
+
+
+def _fix(rule_id: str) -> str:
+    return registry.RULES[rule_id].fix if rule_id in registry.RULES else registry.load_rules()[rule_id].fix
 
 
 @dataclass
@@ -126,8 +72,8 @@ class _Context:
         return found
 
     def report(self, rule: str, message: str, path, at_key: bool = False):
-        level = _INPUT_RULES[rule][0]
-        self.findings.append(Finding(rule, level, message, self.loc(path, at_key), fix=_INPUT_RULES[rule][3],
+        level = _level(rule)
+        self.findings.append(Finding(rule, level, message, self.loc(path, at_key), fix=_fix(rule),
                                      stage="input"))
 
     def quantity(self, raw, dim: str, path, name: str):
@@ -237,7 +183,7 @@ def _parse_file(text: str, file: str, kind: str, findings: list):
                 "tag": "input.not-accepted"}.get(p.kind, "input.yaml-syntax")
         findings.append(Finding(rule, "error", p.message,
                                 Location(file, p.mark.line, p.mark.col, schema.dotted(p.path), p.mark.end_line,
-                                         p.mark.end_col), fix=_INPUT_RULES[rule][3], stage="input"))
+                                         p.mark.end_col), fix=_fix(rule), stage="input"))
     if any(f.rule == "input.yaml-syntax" for f in findings):
         return doc, False
     if not isinstance(doc.data, dict):
@@ -278,7 +224,7 @@ def _read(path: Path, findings: list, file: str, at: Location | None = None, sho
     if marker is not None and not marker.search(raw):
         findings.append(Finding("input.parts-file", "error", f"{name} is not a parts file (it has no line "
                                 "'parts_spec: 1'); nothing of it was read", at or Location(file), stage="input",
-                                fix=_INPUT_RULES["input.parts-file"][3]))
+                                fix=_fix("input.parts-file")))
         return None
     try:
         return raw.decode("utf-8-sig")
@@ -341,7 +287,7 @@ def _all_profiles(build, doc, file: str, findings: list, base_dir: Path | None, 
         target, why = files.confined(str(name), base_dir or Path("."), root)
         if target is None:
             more.append(Finding("input.parts-file", "error", f"{shown} {why}", at, stage="input",
-                                fix=_INPUT_RULES["input.parts-file"][3]))
+                                fix=_fix("input.parts-file")))
             findings.extend(more)
             continue
         text = _read(target, more, file, at, shown, _PARTS_MARKER)
@@ -370,7 +316,7 @@ def _resolve(build: model.Build, ctx: _Context):
         close = schema._suggest(name, known)
         loc = obj.at(field_name)
         ctx.findings.append(Finding("input.reference", "error", f"{what} '{name}' is not declared{close}", loc,
-                                    fix=_INPUT_RULES["input.reference"][3], stage="input"))
+                                    fix=_fix("input.reference"), stage="input"))
 
     for dev in build.devices.values():
         dev.profile = build.profiles.get(dev.profile_name)
@@ -395,7 +341,7 @@ def _resolve(build: model.Build, ctx: _Context):
                 ctx.findings.append(Finding("input.shorted-part", "error",
                                             f"both {pair_name} of {part.name} connect to {pair[0]}: the part is "
                                             f"shorted out", part.at(pair_name),
-                                            fix=_INPUT_RULES["input.shorted-part"][3], stage="input"))
+                                            fix=_fix("input.shorted-part"), stage="input"))
         if part.positive and part.positive not in part.ends:
             ctx.findings.append(Finding("input.reference", "error",
                                         f"{part.name}.positive is '{part.positive}', which is not one of its ends "
@@ -453,7 +399,7 @@ def _rail_loops(build: model.Build, ctx: _Context):
             if dev.rail == start.name:
                 ctx.findings.append(Finding("input.rail-loop", "error",
                                             f"rail {start.name} feeds itself: {'; '.join(seen)}",
-                                            start.at("source"), fix=_INPUT_RULES["input.rail-loop"][3],
+                                            start.at("source"), fix=_fix("input.rail-loop"),
                                             stage="input"))
                 break
             rail = build.rails.get(dev.rail)

@@ -90,15 +90,12 @@ def _import_families():
 def load_rules() -> dict[str, Rule]:
     global _LOADED
     if not _LOADED:
-        import speccheck.loader  # noqa: F401  (defines the input.* family)
-        import speccheck.waivers  # noqa: F401  (defines the review.* family)
-
         families = _import_families()
         for name in families.FAMILIES:
             importlib.import_module(f"speccheck.rules.{name}")
         # Rules run (and fill the design sheet) family by family in the order FAMILIES lists,
         # whatever imported a family module first (a test, a reporter).
-        order = {name: i for i, name in enumerate(["input", "review", *families.FAMILIES])}
+        order = {name: i for i, name in enumerate(families.FAMILIES)}
         ranked = sorted(RULES.values(), key=lambda r: order.get(r.family, len(order)))
         RULES.clear()
         RULES.update((r.id, r) for r in ranked)

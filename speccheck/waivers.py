@@ -1,4 +1,5 @@
-"""Waivers written in the build file, and the review.* family that keeps them honest.
+"""Waivers written in the build file, and the review.* findings that keep them honest
+(the review family itself is defined in rules/review.py).
 
 A waiver is a YAML comment of this shape, on the line a finding points at or on a comment
 line just above it (a run of comment lines directly above counts; a blank line ends it):
@@ -23,63 +24,13 @@ from __future__ import annotations
 import re
 
 from speccheck.findings import Finding, Location
-from speccheck.registry import define
+from speccheck import registry
 
 _ID = r"[a-z][a-z0-9-]*\.[a-z0-9][a-z0-9-]*"
 WAIVER = re.compile(rf"^waive\s+(?P<ids>{_ID}(?:\s*,\s*{_ID})*)(?P<rest>.*)$", re.IGNORECASE | re.DOTALL)
 REASON = re.compile(r"^because\b[\s:,-]*(?P<reason>.*)$", re.IGNORECASE | re.DOTALL)
 NOT_WAIVABLE = ("input", "review")
 STAGE = "review"
-_OWN: dict = {}
-
-_OWN["review.waiver-reason"] = define("review.waiver-reason", level="warning",
-       title="A waiver without a reason",
-       explanation="""
-       A waiver tells every later reader that a finding was looked at and accepted on purpose.
-       Without the reason, nobody can tell a considered decision from a finding that was only
-       silenced, and nobody can tell when the reason stops holding. speccheck therefore does not
-       honour a waiver without a reason: the finding it names stays open.
-       """,
-       fix="Write the reason after the word 'because': `# waive RULE-ID because REASON` (why it is acceptable here).",
-       source="speccheck waiver syntax",
-       verify="Re-run the check: the finding shows as waived with your reason, and this finding is gone.")
-
-_OWN["review.waiver-unused"] = define("review.waiver-unused", level="warning",
-       title="A waiver that matches no finding",
-       explanation="""
-       The waiver names a rule that found nothing on the line below it (or on its own line).
-       Usually the plan was corrected and the waiver was left behind, or the waiver sits above
-       the wrong line. A stale waiver would quietly cover a new problem later, so it is reported.
-       """,
-       fix="Delete the waiver if the finding is gone, or move it onto (or directly above) the line the "
-           "finding points at.",
-       source="speccheck waiver syntax",
-       verify="Re-run the check without the waiver: if nothing of that rule appears there, the waiver was stale.")
-
-_OWN["review.waiver-unknown-rule"] = define("review.waiver-unknown-rule", level="warning",
-       title="A waiver names no rule that can be waived",
-       explanation="""
-       The rule id in the waiver is not one speccheck knows (often a typing slip), or it names an
-       input or review finding, which cannot be waived: input findings mean the plan could not be
-       read, and review findings are about the waivers themselves.
-       """,
-       fix="Correct the rule id (`speccheck rules` lists them), or fix the input problem instead of waiving it.",
-       source="speccheck waiver syntax",
-       verify="`speccheck explain RULE-ID` prints the rule when the id is right.")
-
-define("review.safety-caution", level="note",
-       title="Safety cautions for this build",
-       explanation="""
-       Some builds can hurt someone: mains voltage, high voltage, heat, fire. For those speccheck
-       shows the usual cautions before anything else. They are reminders, not findings about the
-       plan, and they never change the exit code. speccheck is a review aid, not an approval:
-       local electrical codes and licensed practice decide.
-       """,
-       fix="Read the cautions; have mains wiring checked by someone qualified before it is powered.",
-       source="common practice",
-       verify="Before power is applied: unplug, discharge, and check the earth bond and the primary fuse.")
-
-
 class Waiver:
     __slots__ = ("line", "col", "end_col", "ids", "reason", "problem", "target", "covers", "used")
 
@@ -159,7 +110,7 @@ def _inside(path: str, holder: str) -> bool:
 
 
 def _report(result, settings, rule_id, message, w: Waiver, path=""):
-    own = _OWN[rule_id]
+    own = registry.get(rule_id)
     result.findings.append(Finding(rule_id, settings.level_for(rule_id, own.level), message,
                                    Location(result.path, w.line, w.col, path, w.line, w.end_col),
                                    stage=STAGE, fix=own.fix))
@@ -170,8 +121,6 @@ def apply(result, loaded, settings):
     doc = getattr(loaded, "doc", None)
     if doc is None or not doc.comments:
         return None
-    from speccheck import registry
-
     rules = registry.load_rules()
     waivers = collect(loaded.text or "", doc.comments)
     if not waivers:

@@ -10,7 +10,8 @@ import math
 import pytest
 from conftest import EXAMPLES, check, edited, line_of, of
 
-from speccheck import engine, rf
+from speccheck import engine
+from speccheck.formulas import audio, bandwidth, mixing, resonators
 from speccheck.config import Settings
 
 # ---- necessary bandwidth and emission designators -------------------------------------------
@@ -18,28 +19,28 @@ from speccheck.config import Settings
 
 def test_sm1138_narrowband_fm():
     # ITU-R SM.1138 / Radio Regulations Appendix 1: 5 kHz deviation, 3 kHz audio -> 16 kHz, 16K0F3E
-    assert rf.necessary_bandwidth("fm", 5e3, 3e3) == pytest.approx(16e3)
-    assert rf.emission_designator(16e3, "fm", "voice") == "16K0F3E"
+    assert bandwidth.necessary_bandwidth("fm", 5e3, 3e3) == pytest.approx(16e3)
+    assert bandwidth.emission_designator(16e3, "fm", "voice") == "16K0F3E"
 
 
 def test_sm1138_broadcast_fm():
     # ITU-R SM.1138: 75 kHz deviation (47 CFR 73.1570; ITU-R BS.450-3), 15 kHz audio -> 180 kHz, 180KF3E
-    bn = rf.necessary_bandwidth("fm", 75e3, 15e3)
+    bn = bandwidth.necessary_bandwidth("fm", 75e3, 15e3)
     assert bn == pytest.approx(180e3)
-    assert rf.emission_designator(bn, "fm", "broadcast") == "180KF3E"
+    assert bandwidth.emission_designator(bn, "fm", "broadcast") == "180KF3E"
 
 
 def test_carson_rule_matches_sm1138_for_fm():
     # Carson's rule B = 2 (deviation + audio): 2 (75 + 15) kHz = 180 kHz, the SM.1138 value above
-    assert rf.carson_bandwidth(75e3, 15e3) == pytest.approx(180e3)
-    assert rf.carson_bandwidth(5e3, 3e3) == pytest.approx(16e3)
+    assert bandwidth.carson_bandwidth(75e3, 15e3) == pytest.approx(180e3)
+    assert bandwidth.carson_bandwidth(5e3, 3e3) == pytest.approx(16e3)
 
 
 @pytest.mark.parametrize("hz, code", [
     (2.4e3, "2K40"), (12.5e3, "12K5"), (180.5e3, "181K"),   # Radio Regulations Appendix 1 (issue check values)
 ])
 def test_designator_spelling_rr_appendix_1(hz, code):
-    assert rf.bandwidth_code(hz) == code
+    assert bandwidth.bandwidth_code(hz) == code
 
 
 @pytest.mark.parametrize("hz, code", [
@@ -48,12 +49,12 @@ def test_designator_spelling_rr_appendix_1(hz, code):
     (180.7e3, "181K"), (1.25e6, "1M25"), (2e6, "2M00"), (10e6, "10M0"), (202e6, "202M"), (5.65e9, "5G65"),
 ])
 def test_designator_spelling_more_examples(hz, code):
-    assert rf.bandwidth_code(hz) == code
+    assert bandwidth.bandwidth_code(hz) == code
 
 
 def test_designator_rounding_carries_into_the_next_letter():
     # 999.5 Hz has three significant figures 1.00 kHz: written 1K00 (RR Appendix 1 rule: 1.00 to 999 per letter)
-    assert rf.bandwidth_code(999.5) == "1K00"
+    assert bandwidth.bandwidth_code(999.5) == "1K00"
 
 
 # ---- conversion arithmetic and image ----------------------------------------------------------
@@ -61,21 +62,21 @@ def test_designator_rounding_carries_into_the_next_letter():
 
 def test_image_textbook_tooley():
     # Tooley, Electronic Circuits: 455 kHz IF tuned to 1200 kHz -> LO 1655 kHz, image 2110 kHz
-    lo = rf.lo_for(1200e3, 455e3, "high")
+    lo = mixing.lo_for(1200e3, 455e3, "high")
     assert lo == pytest.approx(1655e3)
-    assert rf.image_frequency(1200e3, lo) == pytest.approx(2110e3)
+    assert mixing.image_frequency(1200e3, lo) == pytest.approx(2110e3)
 
 
 def test_low_side_lo_common_practice():
     # common practice: 21.4 MHz converted to 455 kHz, low side, needs a 20.945 MHz oscillator
-    assert rf.lo_for(21.4e6, 455e3, "low") == pytest.approx(20.945e6)
+    assert mixing.lo_for(21.4e6, 455e3, "low") == pytest.approx(20.945e6)
 
 
 def test_spur_inputs_solve_the_mixing_equation():
     # independent check: every yielded input satisfies |m fs + k fLO| = IF (the definition of a response),
     # and the wanted low-side response fs = fLO + fIF is among them (m = 1, k = -1)
     lo, fif = 10.245e6, 455e3
-    found = list(rf.spur_inputs(lo, fif, 5))
+    found = list(mixing.spur_inputs(lo, fif, 5))
     for m, k, s, fs in found:
         assert abs(m * fs + k * lo) == pytest.approx(fif)
     assert any(m == 1 and k == -1 and fs == pytest.approx(10.7e6) for m, k, s, fs in found)
@@ -89,36 +90,36 @@ def test_spur_inputs_solve_the_mixing_equation():
 
 def test_parallel_rlc_wikibooks():
     # Wikibooks, Practical Electronics / Parallel RLC: 10.7 MHz, 1 µH, 10 kΩ -> C 221.2 pF, Q 148.7, BW 71.9 kHz
-    c = rf.capacitance_for(10.7e6, 1e-6)
+    c = resonators.capacitance_for(10.7e6, 1e-6)
     assert c == pytest.approx(221.2e-12, rel=1e-3)
-    q = rf.parallel_q(10e3, 10.7e6, 1e-6)
+    q = resonators.parallel_q(10e3, 10.7e6, 1e-6)
     assert q == pytest.approx(148.7, rel=1e-3)
     assert 10.7e6 / q == pytest.approx(71.9e3, rel=1e-3)
-    assert rf.resonance(1e-6, 221.2e-12) == pytest.approx(10.7e6, rel=1e-3)
+    assert resonators.resonance(1e-6, 221.2e-12) == pytest.approx(10.7e6, rel=1e-3)
 
 
 def test_tank_1mh_120pf_near_455k_common_practice():
     # common practice: a 1 mH coil with 120 pF resonates near 455 kHz (within the few % a slug covers)
-    assert rf.resonance(1e-3, 120e-12) == pytest.approx(455e3, rel=0.02)
+    assert resonators.resonance(1e-3, 120e-12) == pytest.approx(455e3, rel=0.02)
 
 
 def test_crystal_pulling_check_values():
     # crystal pulling D = C1m / (2 (C0 + CL)): 20 fF, 5 pF -> 400.0 ppm at 20 pF, 434.8 ppm at 18 pF
-    assert rf.pulling(20e-15, 5e-12, 20e-12) * 1e6 == pytest.approx(400.0, abs=0.05)
-    assert rf.pulling(20e-15, 5e-12, 18e-12) * 1e6 == pytest.approx(434.8, abs=0.05)
-    assert rf.pulling_shift(20e-15, 5e-12, 18e-12, 20e-12) * 1e6 == pytest.approx(34.8, abs=0.05)
+    assert resonators.pulling(20e-15, 5e-12, 20e-12) * 1e6 == pytest.approx(400.0, abs=0.05)
+    assert resonators.pulling(20e-15, 5e-12, 18e-12) * 1e6 == pytest.approx(434.8, abs=0.05)
+    assert resonators.pulling_shift(20e-15, 5e-12, 18e-12, 20e-12) * 1e6 == pytest.approx(34.8, abs=0.05)
 
 
 def test_series_load_capacitance():
     # C_L = C1 C2 / (C1 + C2) + C_stray; two 33 pF in series are 16.5 pF (plain arithmetic), plus 4 pF stray
-    assert rf.series_load(33e-12, 33e-12, 4e-12) == pytest.approx(1 / (1 / 33e-12 + 1 / 33e-12) + 4e-12)
+    assert resonators.series_load(33e-12, 33e-12, 4e-12) == pytest.approx(1 / (1 / 33e-12 + 1 / 33e-12) + 4e-12)
 
 
 @pytest.mark.parametrize("tau, corner", [(50e-6, 3183.1), (75e-6, 2122.1)])
 def test_de_emphasis_corners(tau, corner):
     # ITU-R BS.450-3 / 47 CFR 73.317: 50 µs and 75 µs de-emphasis -> corners 3183.1 Hz and 2122.1 Hz
-    assert rf.rc_corner(tau) == pytest.approx(corner, abs=0.05)
-    assert rf.rc_time_constant(corner) == pytest.approx(tau, rel=1e-4)
+    assert audio.corner_from_tau(tau) == pytest.approx(corner, abs=0.05)
+    assert audio.rc_time_constant(corner) == pytest.approx(tau, rel=1e-4)
 
 
 @pytest.mark.parametrize("tau", [50e-6, 75e-6])
@@ -126,7 +127,7 @@ def test_rc_corner_against_scipy(tau):
     # scipy.signal.freqs of 1 / (s tau + 1) gives -3.01 dB at 1/tau rad/s, i.e. at our corner in Hz
     from scipy import signal
 
-    w, h = signal.freqs([1.0], [tau, 1.0], worN=[2 * math.pi * rf.rc_corner(tau)])
+    w, h = signal.freqs([1.0], [tau, 1.0], worN=[2 * math.pi * audio.corner_from_tau(tau)])
     assert 20 * math.log10(abs(h[0])) == pytest.approx(-3.0103, abs=1e-3)
 
 

@@ -25,7 +25,7 @@ from scipy import integrate, optimize
 
 from speccheck import engine
 from speccheck.config import Settings
-from speccheck.rules import power
+from speccheck.formulas import amplifiers, fuses, preferred, thermal
 
 HOT = (EXAMPLES / "power-hot-amplifier.yaml").read_text("utf-8")
 TOO_LARGE = (EXAMPLES / "power-fuse-too-large.yaml").read_text("utf-8")
@@ -63,18 +63,18 @@ def r10_from_the_list(x):
 
 def test_single_ended_and_bridge_dissipation_textbook():
     # Sedra & Smith (from memory): single-ended 12 V into 8 ohm -> 0.912 W, bridge-tied load 3.648 W
-    single, _ = power.class_b_dissipation("single-ended", 12.0, 8.0)
-    bridge, _ = power.class_b_dissipation("bridge", 12.0, 8.0)
+    single, _ = amplifiers.class_b_dissipation("single-ended", 12.0, 8.0)
+    bridge, _ = amplifiers.class_b_dissipation("bridge", 12.0, 8.0)
     assert single == pytest.approx(0.912, abs=5e-4)
     assert bridge == pytest.approx(3.648, abs=2e-3)
 
 
 def test_split_supply_boylestad_example_12_8():
     # Boylestad & Nashelsky Example 12.8: VCC 30 V, RL 16 ohm -> Po(max) 28.125 W, Pi 35.81 W, ~5.7 W per transistor
-    full = power.class_b_full_output("split-supply", 30.0, 16.0, -30.0)
+    full = amplifiers.class_b_full_output("split-supply", 30.0, 16.0, -30.0)
     assert full["p_out"] == pytest.approx(28.125, rel=1e-6)
     assert full["p_in"] == pytest.approx(35.81, abs=0.005)
-    _, per_device = power.class_b_dissipation("split-supply", 30.0, 16.0, -30.0)
+    _, per_device = amplifiers.class_b_dissipation("split-supply", 30.0, 16.0, -30.0)
     assert per_device == pytest.approx(5.7, abs=0.01)
 
 
@@ -96,32 +96,32 @@ def test_dissipation_maximum_cross_checked_numerically(topology):
 
     top = vs if topology != "single-ended" else vs / 2
     best = optimize.minimize_scalar(lambda a: -dissipation(a), bounds=(0, top), method="bounded")
-    total, _ = power.class_b_dissipation(topology, vs, rl, -vs)
+    total, _ = amplifiers.class_b_dissipation(topology, vs, rl, -vs)
     assert total == pytest.approx(-best.fun, rel=1e-4)
 
 
 def test_heat_sink_worked_example():
     # handbook heat-sink selection: P 5 W, θJC 3, θCS 1, Tj 150 °C, Ta 50 °C -> θSA <= 16 °C/W
-    assert power.heat_sink_needed(5.0, 150.0, 50.0, 3.0, 1.0) == pytest.approx(16.0)
-    assert power.junction_temperature(50.0, 5.0, 3.0 + 1.0 + 16.0) == pytest.approx(150.0)
+    assert thermal.heat_sink_needed(5.0, 150.0, 50.0, 3.0, 1.0) == pytest.approx(16.0)
+    assert thermal.junction_temperature(50.0, 5.0, 3.0 + 1.0 + 16.0) == pytest.approx(150.0)
 
 
 def test_regulator_dissipation():
     # (Vin - Vout) * I: 12 V to 6 V at 10 mA is 60 mW, plus 12 V x 5 mA of ground current (common practice)
-    assert power.regulator_dissipation(12.0, 6.0, 0.010, 0.005) == pytest.approx(0.06 + 0.06)
+    assert thermal.regulator_dissipation(12.0, 6.0, 0.010, 0.005) == pytest.approx(0.06 + 0.06)
 
 
 def test_r10_series_is_the_standard_list():
     # IEC 60127-1 Annex A / ISO 3: written out, 3.15 and 6.3 are not 10^(i/10)
-    assert list(power.R10) == R10_FROM_THE_STANDARD
+    assert list(preferred.R10) == R10_FROM_THE_STANDARD
     for x in [0.0374, 0.374, 1.09, 2.0, 3.0, 6.0, 7.99, 8.01, 0.0631, 12.0]:
-        assert power.r10_up(x) == pytest.approx(r10_from_the_list(x))
-    assert power.r10_up(2.5) == 2.5 and power.r10_up(0.4) == 0.4
+        assert preferred.r10_up(x) == pytest.approx(r10_from_the_list(x))
+    assert preferred.r10_up(2.5) == 2.5 and preferred.r10_up(0.4) == 0.4
 
 
 def test_inrush_check_value_and_scipy_cross_check():
     # 12 V onto 4700 µF through 0.1 ohm: 120 A peak, 3.384 A²s (I²t = V²C/(2R))
-    peak, tau, i2t = power.inrush(12.0, 4700e-6, 0.1)
+    peak, tau, i2t = fuses.inrush(12.0, 4700e-6, 0.1)
     assert peak == pytest.approx(120.0)
     assert i2t == pytest.approx(3.384)
     numeric = integrate.quad(lambda t: (12.0 / 0.1 * math.exp(-t / (0.1 * 4700e-6))) ** 2, 0, 50 * tau)[0]
@@ -131,14 +131,14 @@ def test_inrush_check_value_and_scipy_cross_check():
 def test_awg_table_handbook_values():
     # Handbook of Electronic Tables and Formulas, chassis wiring (26, 28 from memory)
     for gauge, amps in {18: 16, 20: 11, 22: 7, 24: 3.5, 30: 0.86, 26: 2.2, 28: 1.4}.items():
-        assert power.awg_ampacity(gauge) == (amps, gauge)
-    assert power.awg_ampacity(23) == (3.5, 24)  # odd gauge: the next thinner row
+        assert fuses.awg_ampacity(gauge) == (amps, gauge)
+    assert fuses.awg_ampacity(23) == (3.5, 24)  # odd gauge: the next thinner row
 
 
 def test_time_lag_gate_i2t():
     # IEC 60127-2 time-lag (from memory): not open before 10 ms at 10 x In -> (10 A)² x 10 ms for 1 A
-    assert power.fuse_gate_i2t("time-lag", 1.0) == pytest.approx(10.0 ** 2 * 0.010)
-    assert power.fuse_gate_i2t("quick-acting", 1.0) == pytest.approx(4.0 ** 2 * 0.003)
+    assert fuses.fuse_gate_i2t("time-lag", 1.0) == pytest.approx(10.0 ** 2 * 0.010)
+    assert fuses.fuse_gate_i2t("quick-acting", 1.0) == pytest.approx(4.0 ** 2 * 0.003)
 
 
 # ---- the clean plan ------------------------------------------------------------------------

@@ -7,14 +7,14 @@ import math
 import pytest
 from conftest import check, edited, line_of, of
 
-from speccheck import rf
+from speccheck.formulas import matching, preferred, resonators
 
 # ---- L-network ---------------------------------------------------------------------------------
 
 
 def test_l_network_bowick_example_4_1():
     # Bowick, RF Circuit Design, Example 4-1 (from memory): 100 Ω -> 1000 Ω at 100 MHz: Q 3, L 477.5 nH, C 4.77 pF
-    net = rf.l_network(100.0, 1000.0, 100e6)
+    net = matching.l_network(100.0, 1000.0, 100e6)
     assert net["q"] == pytest.approx(3.0)
     assert net["inductance"] == pytest.approx(477.5e-9, rel=1e-3)
     assert net["capacitance"] == pytest.approx(4.77e-12, rel=2e-3)
@@ -35,7 +35,7 @@ def _skrf_match(f, z0, inductance, capacitance, r_load):
 
 def test_l_network_bowick_values_match_in_scikit_rf():
     # scikit-rf cascade of the ideal network: return loss above 60 dB at the design frequency
-    net = rf.l_network(100.0, 1000.0, 100e6)
+    net = matching.l_network(100.0, 1000.0, 100e6)
     s11 = _skrf_match(100e6, 100.0, net["inductance"], net["capacitance"], 1000.0)
     assert -20 * math.log10(max(s11, 1e-30)) > 60
 
@@ -43,9 +43,9 @@ def test_l_network_bowick_values_match_in_scikit_rf():
 def test_return_loss_of_declared_network_matches_scikit_rf():
     # the clean plan's 3.9 µH / 56 pF into 1.5 kΩ from 50 Ω at 10.7 MHz, computed by scikit-rf
     s11 = _skrf_match(10.7e6, 50.0, 3.9e-6, 56e-12, 1500.0)
-    zin = rf.zin_series_l_shunt_c(10.7e6, 3.9e-6, 56e-12, 1500.0)
-    assert rf.return_loss_db(zin, 50.0) == pytest.approx(-20 * math.log10(s11), abs=1e-6)
-    assert rf.vswr(zin, 50.0) == pytest.approx((1 + s11) / (1 - s11), rel=1e-9)
+    zin = matching.zin_series_l_shunt_c(10.7e6, 3.9e-6, 56e-12, 1500.0)
+    assert matching.return_loss_db(zin, 50.0) == pytest.approx(-20 * math.log10(s11), abs=1e-6)
+    assert matching.vswr(zin, 50.0) == pytest.approx((1 + s11) / (1 - s11), rel=1e-9)
 
 
 def test_shunt_c_first_network_matches_scikit_rf():
@@ -53,20 +53,20 @@ def test_shunt_c_first_network_matches_scikit_rf():
     import skrf
     from skrf.media import DefinedGammaZ0
 
-    net = rf.l_network(1000.0, 100.0, 100e6)
+    net = matching.l_network(1000.0, 100.0, 100e6)
     assert net["shunt_on"] == "source"
     freq = skrf.Frequency(100e6, 100e6, 1, unit="Hz")
     line = DefinedGammaZ0(freq, z0=1000.0)
     gamma_load = (100.0 - 1000.0) / (100.0 + 1000.0)
     s11 = abs((line.shunt_capacitor(net["capacitance"]) ** line.inductor(net["inductance"])
                ** line.load(gamma_load)).s[0, 0, 0])
-    zin = rf.zin_shunt_c_series_l(100e6, net["inductance"], net["capacitance"], 100.0)
-    assert abs(rf.reflection(zin, 1000.0)) == pytest.approx(s11, abs=1e-9)
+    zin = matching.zin_shunt_c_series_l(100e6, net["inductance"], net["capacitance"], 100.0)
+    assert abs(matching.reflection(zin, 1000.0)) == pytest.approx(s11, abs=1e-9)
 
 
 def test_l_network_50_to_3k3_at_21m4_common_practice():
     # common practice: 50 Ω to 3.3 kΩ at 21.4 MHz is about 3 µH series and 18 pF shunt
-    net = rf.l_network(50.0, 3300.0, 21.4e6)
+    net = matching.l_network(50.0, 3300.0, 21.4e6)
     assert net["inductance"] == pytest.approx(3e-6, rel=0.03)
     assert net["capacitance"] == pytest.approx(18e-12, rel=0.03)
 
@@ -77,13 +77,13 @@ def test_termination_cost_matches_scikit_rf():
     import skrf
     from skrf.media import DefinedGammaZ0
 
-    rt = rf.termination_resistor(50.0, 1500.0)
+    rt = matching.termination_resistor(50.0, 1500.0)
     freq = skrf.Frequency(10.7e6, 10.7e6, 1, unit="Hz")
     line = DefinedGammaZ0(freq, z0=50.0)
     shunt = line.shunt_resistor(rt) if hasattr(line, "shunt_resistor") else line.shunt(line.resistor(rt) ** line.short())
     shunt.renormalize([50.0, 1500.0])
     gain_db = 10 * math.log10(abs(shunt.s[0, 1, 0]) ** 2)
-    assert rf.termination_cost_db(50.0, 1500.0) == pytest.approx(-gain_db, abs=1e-6)
+    assert matching.termination_cost_db(50.0, 1500.0) == pytest.approx(-gain_db, abs=1e-6)
     assert abs(shunt.s[0, 0, 0]) < 1e-9  # and it is matched: the source sees 50 Ω
 
 
@@ -96,8 +96,8 @@ IEC_60063_E24 = [1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0,
 
 def test_series_are_the_published_iec_60063_values():
     # IEC 60063, typed in from the standard's table
-    assert list(rf.E12) == IEC_60063_E12
-    assert list(rf.E24) == IEC_60063_E24
+    assert list(preferred.E12) == IEC_60063_E12
+    assert list(preferred.E24) == IEC_60063_E24
     # and they are NOT the rounded powers of ten (which give 2.6, 2.9, 3.2, 3.5, 3.8, 4.2, 4.6, 8.3)
     rounded = [round(10 ** (i / 24), 1) for i in range(24)]
     assert rounded != IEC_60063_E24
@@ -113,7 +113,7 @@ def test_series_are_the_published_iec_60063_values():
     (9.6, "E24", 10.0),
 ])
 def test_nearest_preferred_value(value, series, pick):
-    got, err = rf.nearest_preferred(value, rf.SERIES[series])
+    got, err = preferred.nearest_preferred(value, preferred.SERIES[series])
     assert got == pytest.approx(pick)
     assert err == pytest.approx(pick / value - 1)
 
@@ -122,13 +122,13 @@ def test_toroid_handbook_table_mix_2():
     # powdered-iron toroid handbook table: 0.5 in OD, mix 2: AL 49 µH per 100 turns = 4.9 nH/turn²; 50 turns -> 12.25 µH
     al = 49e-6 / 100 ** 2
     assert al == pytest.approx(4.9e-9)
-    assert rf.toroid_inductance(50, al) == pytest.approx(12.25e-6)
-    assert rf.toroid_turns(12.25e-6, al) == pytest.approx(50)
+    assert resonators.toroid_inductance(50, al) == pytest.approx(12.25e-6)
+    assert resonators.toroid_turns(12.25e-6, al) == pytest.approx(50)
 
 
 def test_toroid_25_turns_about_3uh_common_practice():
     # common practice: 25 turns on that 0.5 in mix-2 core gives about 3 µH (the 21.4 MHz match coil)
-    assert rf.toroid_inductance(25, 4.9e-9) == pytest.approx(3e-6, rel=0.03)
+    assert resonators.toroid_inductance(25, 4.9e-9) == pytest.approx(3e-6, rel=0.03)
 
 
 # ---- rfpath.input-match ------------------------------------------------------------------------------
@@ -141,7 +141,7 @@ def test_clean_plan_has_no_rfpath_warning_or_error(clean_text):
 
 def test_clean_plan_sheet_lists_match_values(clean_text):
     sheet = {(e.section, e.owner, e.value.name): e.value for e in check(clean_text).sheet}
-    ideal = rf.l_network(50.0, 1500.0, 10.7e6)  # checked against Bowick and scikit-rf above
+    ideal = matching.l_network(50.0, 1500.0, 10.7e6)  # checked against Bowick and scikit-rf above
     assert sheet[("input-match", "input-match", "ideal series L")].value == pytest.approx(ideal["inductance"])
     assert sheet[("input-match", "input-match", "ideal series L")].unit == "H"
     assert sheet[("input-match", "input-match", "ideal shunt C")].unit == "F"

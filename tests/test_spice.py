@@ -34,7 +34,7 @@ REASONS = {
     ("power-hot-amplifier", "i2t"): (
         "at-most-10%-below",
         ("the bench supply limits the inrush to 3 A; the sheet gives I*C*V, the upper bound of a "
-        "current-limited charge (rules/power.py), while the simulated charge ends on an "
+        "current-limited charge (rules/power/fuses.py), while the simulated charge ends on an "
         "exponential tail below the limit, so its I2t is a few per cent lower")),
 }
 

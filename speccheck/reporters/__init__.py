@@ -1,43 +1,18 @@
 """Reporters turn results into text. They read FileResults and rule metadata only.
 
+This module only dispatches to the format modules; what they share is in reporters/common.py,
+so that no format module imports the package it sits in.
+
 Every format shows the same findings: waived ones are kept and marked with their reason,
 findings hidden by a baseline are counted, and the safety cautions come first."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from speccheck.reporters.common import RunInfo, totals, value_dict
+
+__all__ = ["FORMATS", "RunInfo", "render", "totals", "value_dict"]
 
 FORMATS = ("text", "json", "sarif", "markdown")
-
-
-@dataclass
-class RunInfo:
-    """What a run knows beyond the per-file results."""
-
-    skipped: list = field(default_factory=list)  # YAML files in folders that are not build files
-    excluded: list = field(default_factory=list)  # build files the project file's globs leave out
-    set_aside: list = field(default_factory=list)  # (path, why): not regular files, links out of the tree
-    hidden: dict = field(default_factory=dict)  # file path -> findings hidden by the baseline
-    baseline: str = ""  # the baseline file, if one was used
-    config: str = ""  # the project file, if one was used
-
-    @property
-    def hidden_total(self) -> int:
-        return sum(self.hidden.values())
-
-
-def value_dict(v) -> dict:
-    """A Value as JSON-safe data (Value.as_dict writes a non-finite number as null; its text says it)."""
-    return v.as_dict()
-
-
-def totals(results) -> dict:
-    """Open findings by level (waived ones not included) and the waived count."""
-    out = {"error": 0, "warning": 0, "note": 0, "waived": 0}
-    for r in results:
-        for f in r.findings:
-            out["waived" if f.waived else f.level] += 1
-    return out
 
 
 def render(fmt: str, results, settings, color: bool = False, run: RunInfo | None = None) -> str:

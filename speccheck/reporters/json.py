@@ -5,7 +5,7 @@ from __future__ import annotations
 import json
 
 from speccheck import __version__
-from speccheck.reporters import value_dict
+from speccheck.reporters.common import value_dict
 
 REPORT_VERSION = 1
 
@@ -31,7 +31,7 @@ def file_dict(result, hidden: int = 0) -> dict:
 
 
 def report(results, settings, run=None) -> dict:
-    from speccheck.reporters import RunInfo, totals
+    from speccheck.reporters.common import RunInfo, totals
 
     run = run or RunInfo()
     counted = totals(results)

@@ -148,7 +148,7 @@ def _rank(level: str) -> int:
 
 def render(results, settings, run=None) -> str:
     from speccheck import registry
-    from speccheck.reporters import RunInfo, totals
+    from speccheck.reporters.common import RunInfo, totals
 
     run = run or RunInfo()
     rules = registry.load_rules()

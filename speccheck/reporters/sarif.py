@@ -87,7 +87,7 @@ def region(loc) -> dict:
 
 
 def _value_props(f) -> list:
-    from speccheck.reporters import value_dict
+    from speccheck.reporters.common import value_dict
 
     return [value_dict(v) for v in f.values]
 
@@ -153,7 +153,7 @@ def _overrides(settings, rules: list, index: dict) -> list:
 
 def report(results, settings, run=None) -> dict:
     from speccheck import registry
-    from speccheck.reporters import RunInfo
+    from speccheck.reporters.common import RunInfo
 
     run = run or RunInfo()
     rules = sorted(registry.load_rules().values(), key=lambda r: r.id)

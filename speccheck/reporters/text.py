@@ -33,7 +33,7 @@ def finding_lines(f, color: bool = False) -> list[str]:
 
 
 def tail_line(results, run) -> str:
-    from speccheck.reporters import totals
+    from speccheck.reporters.common import totals
 
     counts = totals(results)
     tail = f"speccheck: {_plural(len(results), 'file')} checked: {counts_line(counts)}"

@@ -1,0 +1,226 @@
+"""The power budget of a build: what each rail and the supply input must deliver.
+
+Computed once per build and cached (`budget`): quiescent currents, each audio amplifier's
+supply current at full output for its topology, what the regulators deliver and so draw from
+their own rails. The power, audio and mains rule families read it, and so can reporters; the
+arithmetic is in speccheck.formulas.
+"""
+
+from __future__ import annotations
+
+import weakref
+from dataclasses import dataclass, field
+
+from speccheck.formulas.amplifiers import class_b_full_output
+
+AMPLIFIER = "audio-power-amplifier"
+
+
+REGULATOR = "linear-regulator"
+
+
+DC_KINDS = ("battery", "dc-adapter", "bench")
+
+
+RESERVOIR_MIN = 10e-6  # F; a capacitor this large on a rectifier output is its reservoir
+
+
+def rail_volts(build, name: str | None) -> float | None:
+    rail = build.rails.get(name) if name else None
+    return rail.voltage.si if rail and rail.voltage else None
+
+
+def ambient(build) -> float | None:
+    info = build.build
+    return info.ambient_max.si if info and info.ambient_max else None
+
+
+def supply_fuse(build):
+    """The supply's fuse part, when supply.fuse names a part of kind fuse."""
+    part = build.part(build.supply.fuse) if build.supply else None
+    return part if part and part.kind == "fuse" else None
+
+
+def fused_rail(build) -> str | None:
+    supply = build.supply
+    if supply is None:
+        return None
+    if supply.rail:
+        return supply.rail
+    fuse = supply_fuse(build)
+    for end in (fuse.ends if fuse else ()):
+        if end in build.rails:
+            return end
+    return None
+
+
+def bulk_capacitors(build, rail: str | None) -> list:
+    """Capacitors straight across the rail to a ground."""
+    if not rail:
+        return []
+    nets = build.nets
+    out = []
+    for part in nets.parts_on(rail):
+        if part.kind == "capacitor" and part.value and nets.is_ground(part.other_end(rail) or ""):
+            out.append(part)
+    return out
+
+
+@dataclass
+class AmpPoint:
+    device: object
+    topology: str
+    v_supply: float
+    v_negative: float | None
+    r_load: float
+    load_text: str
+    stage: object
+
+    @property
+    def label(self) -> str:
+        return self.stage.label if self.stage else "audio-amp"
+
+
+def amp_point(build, dev) -> tuple[AmpPoint | None, list]:
+    """The operating point of an audio amplifier device, or the missing inputs as (message, location)."""
+    prof = dev.profile
+    missing = []
+    stage = next((s for s in build.stages("audio-amp") if s.device == dev.name), None)
+    topology = prof.output_topology
+    if not topology:
+        missing.append((f"profile {prof.name} of {dev.name} does not state output_topology "
+                        f"(profiles.{prof.name}.output_topology: single-ended, bridge or split-supply)", prof.loc))
+    v_supply = rail_volts(build, dev.rail)
+    if v_supply is None:
+        missing.append((f"{dev.name} has no supply rail with a voltage (devices.{dev.name}.rail)", dev.loc))
+    v_negative = None
+    if topology == "split-supply":
+        v_negative = rail_volts(build, dev.negative_rail)
+        if v_negative is None:
+            missing.append((f"{dev.name} is a split-supply amplifier but devices.{dev.name}.negative_rail does not "
+                            f"name a rail with a voltage", dev.at("negative_rail")))
+    r_load, load_text = None, ""
+    load = build.part(stage.load) if stage else None
+    if load is not None and load.value is not None and load.kind in ("speaker", "resistor"):
+        r_load, load_text = load.value.si, f"{load.name} ({load.value.text})"
+    elif stage is not None and stage.load_impedance is not None:
+        r_load, load_text = stage.load_impedance.si, stage.load_impedance.text
+    if r_load is None:
+        where = stage.at("load") if stage else dev.loc
+        missing.append((f"no load impedance for {dev.name}: name its speaker in the audio-amp stage "
+                        f"(chain[].load, with the speaker's value)", where))
+    if missing or v_supply == 0:
+        return None, missing
+    return AmpPoint(dev, topology, v_supply, v_negative, r_load, load_text, stage), []
+
+
+@dataclass
+class Budget:
+    items: dict = field(default_factory=dict)  # rail -> [(owner, what, amps)]
+    totals: dict = field(default_factory=dict)  # rail -> amps
+    delivered: dict = field(default_factory=dict)  # regulator -> (amps out, computed from its rail)
+    full_output: dict = field(default_factory=dict)  # amplifier -> {rail: amps}
+    unknown_amps: list = field(default_factory=list)  # amplifiers whose full-output current is unknown
+    no_rail: list = field(default_factory=list)  # devices with no rail
+    bad_rail: list = field(default_factory=list)  # devices on a rail that is not declared (input.reference)
+    no_quiescent: dict = field(default_factory=dict)  # profile name -> [devices]
+    input: float | None = None
+    input_rails: list = field(default_factory=list)
+
+    @property
+    def complete(self) -> bool:
+        """False when some draw is unknown: the budget is then only a lower bound."""
+        return not (self.unknown_amps or self.no_rail or self.bad_rail or self.no_quiescent)
+
+    def gaps(self) -> str:
+        parts = [f"{n}'s full-output current" for n in self.unknown_amps]
+        parts += [f"{d.name} (no rail)" for d in self.no_rail + self.bad_rail]
+        parts += [f"{', '.join(devs)} (no quiescent current)" for devs in self.no_quiescent.values()]
+        return ", ".join(parts)
+
+
+_BUDGETS: "weakref.WeakKeyDictionary" = weakref.WeakKeyDictionary()
+
+
+def regulator_outputs(build, dev) -> list:
+    if dev.output_rail:
+        return [dev.output_rail] if dev.output_rail in build.rails else []
+    return [name for name, r in build.rails.items() if r.source == dev.name]
+
+
+def budget(build) -> Budget:
+    """Quiescent currents, amplifier supply current at full output, regulators' input draw."""
+    cached = _BUDGETS.get(build)
+    if cached is not None:
+        return cached
+    b = Budget()
+    direct: dict = {}
+
+    def add(rail, owner, what, amps):
+        direct.setdefault(rail, []).append((owner, what, amps))
+
+    regulators = []
+    for dev in build.devices.values():
+        prof = dev.profile
+        if prof is None:
+            continue
+        if not dev.rail or dev.rail not in build.rails:
+            (b.no_rail if not dev.rail else b.bad_rail).append(dev)
+            continue
+        iq = prof.quiescent_current.si if prof.quiescent_current else None
+        if iq is None:
+            b.no_quiescent.setdefault(prof.name, []).append(dev.name)
+        else:
+            add(dev.rail, dev.name, "quiescent", iq)
+        if prof.cls == AMPLIFIER:
+            point, _ = amp_point(build, dev)
+            if point is None:
+                b.unknown_amps.append(dev.name)
+            else:
+                full = class_b_full_output(point.topology, point.v_supply, point.r_load, point.v_negative)
+                add(dev.rail, dev.name, "full output", full["i_pos"])
+                b.full_output[dev.name] = {dev.rail: full["i_pos"]}
+                if point.topology == "split-supply" and dev.negative_rail in build.rails:
+                    add(dev.negative_rail, dev.name, "full output", full["i_neg"])
+                    b.full_output[dev.name][dev.negative_rail] = full["i_neg"]
+                    if iq is not None:
+                        add(dev.negative_rail, dev.name, "quiescent", iq)
+        elif prof.cls == REGULATOR:
+            regulators.append(dev)
+
+    feeding = {}
+    for reg in regulators:
+        for out in regulator_outputs(build, reg):
+            feeding.setdefault(reg.rail, []).append((reg, out))
+
+    def total(rail, seen):
+        if rail in b.totals:
+            return b.totals[rail]
+        if rail in seen:
+            return 0.0
+        seen = seen | {rail}
+        items = list(direct.get(rail, []))
+        for reg, out in feeding.get(rail, []):
+            computed = total(out, seen)
+            declared = reg.load_current.si if reg.load_current else None
+            amps = max(declared, computed) if declared is not None else computed
+            prior = b.delivered.get(reg.name, (0.0, 0.0))
+            b.delivered[reg.name] = (prior[0] + amps, prior[1] + computed)
+            items.append((reg.name, f"delivered to {out}", amps))
+        b.items[rail] = items
+        b.totals[rail] = sum(a for _, _, a in items)
+        return b.totals[rail]
+
+    for name, rail in build.rails.items():
+        if not rail.is_ground:
+            total(name, frozenset())
+    supply = build.supply
+    if supply and supply.rail in b.totals:
+        b.input_rails = [supply.rail]
+    else:
+        made = {out for reg in regulators for out in regulator_outputs(build, reg)}
+        b.input_rails = [n for n, r in build.rails.items()
+                         if not r.is_ground and r.source in (None, "supply") and n not in made]
+    b.input = sum(b.totals.get(n, 0.0) for n in b.input_rails) if b.input_rails else None
+    _BUDGETS[build] = b
+    return b
