@@ -23,7 +23,8 @@ INPUT_RULES = {
                            "files, not to a build plan.",
                            "Write the value out where it is used."),
     "input.schema": ("error", "The file does not follow the build format",
-                     "Every build file follows format 1, published as a JSON Schema (`speccheck schema`). "
+                     "Every build file follows the format its build_spec names (1 or 2), published as a JSON "
+                     "Schema (`speccheck schema --version 2`). "
                      "A key that is unknown, missing, or of the wrong kind is reported at its position. "
                      "Rules do not run on a file with such errors, because they would guess.",
                      "Correct the key or value shown; `speccheck schema` prints the format, and an editor with "
@@ -64,4 +65,4 @@ INPUT_RULES = {
                         "Declare the part, device, profile or rail, or correct the name."),
 }
 for _id, (_level, _title, _why, _fix) in INPUT_RULES.items():
-    define(_id, level=_level, title=_title, explanation=_why, fix=_fix, source="speccheck build format 1")
+    define(_id, level=_level, title=_title, explanation=_why, fix=_fix, source="speccheck build formats 1 and 2")

@@ -36,13 +36,15 @@ def _pick(kind: str, parts: list):
 
 def _load_resistance(build, stage):
     """(resistance the network works into, where it came from) or (None, field path missing)."""
-    if stage.load_impedance is not None:
-        return stage.load_impedance.si, f"chain[{stage.index}].load_impedance"
+    given = stage.works_into or stage.load_impedance  # v2 name, v1 name
+    if given is not None:
+        key = "works_into" if stage.works_into is not None else "load_impedance"
+        return given.si, f"chain[{stage.index}].{key}"
     dev = build.device(stage.device)
     if dev is not None and dev.profile is not None and dev.profile.input_impedance is not None:
         return dev.profile.input_impedance.si, f"{dev.name} input ({dev.profile.name} profile)"
     return None, (f"profiles.{dev.profile.name}.input_impedance" if dev is not None and dev.profile is not None
-                  else f"chain[{stage.index}].load_impedance or .device")
+                  else f"chain[{stage.index}].works_into or .device")
 
 
 def _publish_picks(ctx, who: str, what: str, ideal: float, unit: str) -> str:

@@ -103,8 +103,9 @@ def amp_point(build, dev) -> tuple[AmpPoint | None, list]:
     load = build.part(stage.load) if stage else None
     if load is not None and load.value is not None and load.kind in ("speaker", "resistor"):
         r_load, load_text = load.value.si, f"{load.name} ({load.value.text})"
-    elif stage is not None and stage.load_impedance is not None:
-        r_load, load_text = stage.load_impedance.si, stage.load_impedance.text
+    elif stage is not None and (stage.load_resistance or stage.load_impedance) is not None:
+        given = stage.load_resistance or stage.load_impedance  # v2 name, v1 name
+        r_load, load_text = given.si, given.text
     if r_load is None:
         where = stage.at("load") if stage else dev.loc
         missing.append((f"no load impedance for {dev.name}: name its speaker in the audio-amp stage "

@@ -261,14 +261,16 @@ def sheet(path, fmt, config, no_config):
 
 @main.command()
 @click.argument("kind", type=click.Choice(["build", "project"]), default="build", required=False)
-def schema(kind):
+@click.option("--version", "version", type=click.Choice(["1", "2"]), default="2", show_default=True,
+              help="Which build format version to print.")
+def schema(kind, version):
     """Print a JSON Schema: of the build format (default), or of the project file."""
     from importlib import resources
 
     from speccheck.config import PROJECT_SCHEMA
-    from speccheck.schema import SCHEMA_FILE
+    from speccheck.schema import SCHEMA_FILES
 
-    name = SCHEMA_FILE if kind == "build" else PROJECT_SCHEMA
+    name = SCHEMA_FILES[int(version)] if kind == "build" else PROJECT_SCHEMA
     click.echo(resources.files("speccheck").joinpath("schema", name).read_text("utf-8"), nl=False)
 
 

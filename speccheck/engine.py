@@ -65,19 +65,77 @@ class Context:
             self.result.cautions.append(text)
 
 
+def _run_one(rule, build, result: FileResult, settings: Settings) -> bool:
+    ctx = Context(result, rule, settings, build)
+    try:
+        rule.check(build, ctx)
+    except Exception as exc:  # a rule bug must not hide the other findings, nor crash the run
+        where = traceback.extract_tb(exc.__traceback__)[-1]
+        result.findings.append(Finding(
+            rule.id, "error", f"internal error in rule {rule.id}: {type(exc).__name__}: {exc} "
+            f"({Path(where.filename).name}:{where.lineno}); please report it", Location(result.path),
+            stage="internal"))
+        return False
+    return True
+
+
 def run_rules(build, result: FileResult, settings: Settings):
+    from speccheck import configs
+
+    switched = build.switched
     for rule in registry.load_rules().values():
         if rule.check is None or not settings.enabled(rule.id):
             continue
-        ctx = Context(result, rule, settings, build)
-        try:
-            rule.check(build, ctx)
-        except Exception as exc:  # a rule bug must not hide the other findings, nor crash the run
-            where = traceback.extract_tb(exc.__traceback__)[-1]
-            result.findings.append(Finding(
-                rule.id, "error", f"internal error in rule {rule.id}: {type(exc).__name__}: {exc} "
-                f"({Path(where.filename).name}:{where.lineno}); please report it", Location(result.path),
-                stage="internal"))
+        if switched and rule.id in configs.PER_CONFIGURATION:
+            _run_per_configuration(rule, build, result, settings)
+        else:
+            _run_one(rule, build, result, settings)
+
+
+def _run_per_configuration(rule, build, result: FileResult, settings: Settings):
+    """Run a rule once per (signal, positions) on the view of the build that is in circuit
+    there; name the signal and positions in what it finds, unless every configuration found
+    the same (then it is said once, for all)."""
+    from speccheck import configs
+
+    cfgs = build.configurations()
+    per_cfg = []
+    for cfg in cfgs:
+        f0, s0 = len(result.findings), len(result.sheet)
+        ok = _run_one(rule, configs.view(build, cfg), result, settings)
+        per_cfg.append((cfg, result.findings[f0:], result.sheet[s0:]))
+        del result.findings[f0:], result.sheet[s0:]
+        if not ok:
+            result.findings.append(per_cfg[-1][1][-1])
+            return
+    result.findings.extend(_tagged(per_cfg, 1, len(cfgs)))
+    result.sheet.extend(_tagged(per_cfg, 2, len(cfgs)))
+
+
+def _tagged(per_cfg: list, which: int, count: int) -> list:
+    def key(item):
+        if isinstance(item, Finding):
+            return item.rule, item.location, item.message
+        return item.section, item.owner, item.value.name, repr(item.value.value)
+
+    seen: dict = {}
+    for cfg, *found in per_cfg:
+        for item in found[which - 1]:
+            seen.setdefault(key(item), []).append((cfg, item))
+    out = []
+    for hits in seen.values():
+        if len(hits) == count:  # the same in every configuration: said once, for all
+            out.append(hits[0][1])
+            continue
+        for cfg, item in hits:
+            if isinstance(item, Finding):
+                item.signal, item.position = cfg.signal_name, cfg.position_label
+                item.message = f"{item.message} [{cfg.label}]"
+                out.append(item)
+            else:
+                out.append(SheetEntry(item.section, item.owner, item.value, item.rule, cfg.signal_name,
+                                      cfg.position_label))
+    return out
 
 
 _NUMBER = re.compile(r"[-+]?\d+(?:[.,]\d+)*(?:[eE][-+]?\d+)?")

@@ -53,6 +53,8 @@ class Finding:
     stage: str = ""  # the signal-chain stage or section it belongs to, for grouping in reports
     waived: str | None = None  # the reason, when a waiver covers it
     fingerprint: str = ""
+    signal: str = ""  # v2: the signal it was found for, when what is in circuit depends on it
+    position: str = ""  # v2: the switch positions and upstream setting, e.g. "S1 wide; upstream 1m"
 
     def sort_key(self):
         loc = self.location
@@ -67,3 +69,5 @@ class SheetEntry:
     owner: str  # the part, path or stage it belongs to
     value: Value
     rule: str = ""
+    signal: str = ""  # v2: the signal and switch positions it holds for ("" when for all)
+    position: str = ""

@@ -22,7 +22,7 @@ from speccheck.findings import Finding, Location
 
 ZERO_ALLOWED = {"drift", "stray", "extra_capacitance", "theta_cs", "tolerance", "ac_peak", "forward_voltage"}
 POSITIVE_DIMS = {"frequency", "capacitance", "inductance", "resistance", "current", "power", "apparent_power",
-                 "time", "length", "inductance_factor", "thermal_resistance", "i2t", "fraction"}
+                 "time", "length", "inductance_factor", "thermal_resistance", "i2t", "fraction", "charge"}
 
 
 def _level(rule_id: str) -> str:
@@ -156,11 +156,58 @@ def _special_fields(obj, data, path, ctx: _Context):
                 if end in adjust:
                     setattr(obj.adjust, end, ctx.quantity(adjust[end], dim, path + ("adjust", end), end))
         obj.ends = [str(e) for e in obj.ends]
+        _terminals(obj, data)
+    elif isinstance(obj, model.Source) and isinstance(data.get("bandwidth_settings"), dict):
+        obj.bandwidth_settings = {}
+        for name, raw in data["bandwidth_settings"].items():
+            q = ctx.quantity(raw, "frequency", path + ("bandwidth_settings", name), "bandwidth")
+            if q is not None:
+                obj.bandwidth_settings[str(name)] = q
+    elif isinstance(obj, (model.Tank, model.Stage)):
+        for name in ("damping", "resistor", "capacitor"):
+            refs = getattr(obj, name, None)
+            if isinstance(refs, list):  # v2: several parts, those in circuit acting together
+                obj.choices[name] = [str(r) for r in refs]
+                setattr(obj, name, "+".join(obj.choices[name]) if len(refs) > 1 else str(refs[0]))
     elif isinstance(obj, model.Pin) and isinstance(obj.dc, str) and obj.dc not in ("supply", "half-supply",
                                                                                      "ground", "none"):
         obj.dc = ctx.quantity(obj.dc, "voltage", path + ("dc",), "dc")
-    elif isinstance(obj, model.Stage):
+    if isinstance(obj, model.Stage):
         obj.index = path[-1] if path and isinstance(path[-1], int) else 0
+    if isinstance(obj, (model.Part, model.IfPath)) and isinstance(obj.in_circuit, dict):
+        obj.in_circuit = {str(k): [str(p) for p in (v if isinstance(v, list) else [v])]
+                          for k, v in obj.in_circuit.items()}
+
+
+def _terminals(part: model.Part, data: dict):
+    """Every part's terminals by name (v2), from whichever way the file wrote them."""
+    given = {str(k): str(v) for k, v in (part.terminals or {}).items()}
+    if given and not part.ends and len(given) == 2:
+        part.ends = list(given.values())  # a two-terminal part written with named terminals
+        if part.positive is None and "positive" in given:
+            part.positive = given["positive"]
+    out = {}
+    if len(part.ends) == 2:
+        a, b = part.ends
+        if part.positive in (a, b):
+            out["positive"], out["negative"] = part.positive, b if part.positive == a else a
+        else:
+            out["end1"], out["end2"] = a, b
+    if part.wiper:
+        part.wiper = str(part.wiper)
+        out["wiper"] = part.wiper
+    for name, winding in (("primary", part.primary), ("secondary", part.secondary)):
+        for i, net in enumerate(winding[:2]):
+            out[f"{name}{i + 1}"] = str(net)
+    part.positions = [str(p) for p in part.positions]
+    for pole in part.poles.values():
+        pole.throws = {str(k): str(v) for k, v in (pole.throws or {}).items()}
+        if pole.common:
+            out[f"{pole.name}.common"] = str(pole.common)
+        for position, net in pole.throws.items():
+            out[f"{pole.name}.{position}"] = net
+    out.update(given)
+    part.terminals = out
 
 
 # ---- profiles --------------------------------------------------------------------------
@@ -178,6 +225,8 @@ def _profiles_from(data, file: str, doc, findings: list, builtin: bool) -> dict:
 def _parse_file(text: str, file: str, kind: str, findings: list):
     doc = yamlnodes.parse(text)
     ctx = _Context(file, doc, findings)
+    if kind == "build" and schema.version_of(doc.data) == 2:
+        kind = "build-2"
     for p in doc.problems:
         rule = {"duplicate-key": "input.duplicate-key", "alias": "input.not-accepted",
                 "tag": "input.not-accepted"}.get(p.kind, "input.yaml-syntax")
@@ -250,6 +299,11 @@ def load_text(text: str, file: str, base_dir: Path | None = None, root: str | Pa
     build = _build_obj(model.Build, doc.data, (), ctx, file=file)
     build.profiles = _all_profiles(build, doc, file, findings, base_dir, root)
     _resolve(build, ctx)
+    if build.build_spec == 2:
+        from speccheck import configs
+
+        configs.check_references(build, ctx.findings)
+        configs.prepare(build)
     result.build = build
     return result
 
@@ -327,7 +381,7 @@ def _resolve(build: model.Build, ctx: _Context):
             if rail and rail not in build.rails:
                 missing("rail", rail, dev, field_name, build.rails)
     for part in build.parts.values():
-        for net in [*part.ends, *part.primary, *part.secondary]:
+        for net in dict.fromkeys([*part.ends, *part.primary, *part.secondary, *part.terminals.values()]):
             pin_of = _pin(net)
             if pin_of:
                 dev = build.devices.get(pin_of[0])
@@ -376,8 +430,12 @@ def _resolve(build: model.Build, ctx: _Context):
             if holder is None:
                 continue
             for field_name in ("resistor", "capacitor", "load", "coupling", "input_bypass", "inductor",
-                               "damping", "crystal"):
-                if hasattr(holder, field_name):
+                               "damping", "crystal", "control", "series", "shunt", "hysteresis"):
+                if field_name in getattr(holder, "choices", {}):
+                    for ref in holder.choices[field_name]:
+                        if ref not in build.parts:
+                            missing("part", ref, holder, field_name, build.parts)
+                elif hasattr(holder, field_name):
                     _check_part(build, holder, field_name, missing)
         if stage.oscillator:
             for ref in stage.oscillator.load_caps:
@@ -385,6 +443,7 @@ def _resolve(build: model.Build, ctx: _Context):
                     missing("part", ref, stage.oscillator, "load_caps", build.parts)
         for path in stage.paths.values():
             _check_part(build, path, "filter", missing)
+            _check_part(build, path, "bypass", missing)
 
 
 def _rail_loops(build: model.Build, ctx: _Context):

@@ -107,7 +107,15 @@ class Signal(Located):
     path: str = plain(None)
     service: str = plain(None)
     channel_spacing: Q = qty("frequency")
+    switches: dict = plain({})  # v2: switch -> position or list of positions it is received in
+    upstream: str = plain(None)  # v2: the source bandwidth setting it is received with
     note: str = plain(None)
+
+    def positions_of(self, switch: str) -> list:
+        chosen = self.switches.get(switch) if isinstance(self.switches, dict) else None
+        if chosen is None:
+            return []
+        return [str(p) for p in chosen] if isinstance(chosen, list) else [str(chosen)]
 
 
 @dataclass(eq=False)
@@ -133,6 +141,8 @@ class Source(Located):
     stopband: Q = qty("frequency")
     stopband_at: Q = qty("gain")
     shape_factor: float = plain(None)
+    bandwidth_settings: dict = plain({})  # v2: setting name -> Q (frequency), filled by the loader
+    output_impedance: Q = qty("resistance")  # v2: the same as impedance
 
 
 # ---- supply and rails ------------------------------------------------------------------
@@ -151,6 +161,17 @@ class Mains(Located):
 
 
 @dataclass(eq=False)
+class Battery(Located):
+    chemistry: str = plain("")
+    cells: int = plain(None)
+    capacity: Q = qty("charge")
+    capacity_at: Q = qty("current")
+    internal_resistance: Q = qty("resistance")
+    end_voltage: Q = qty("voltage")
+    note: str = plain(None)
+
+
+@dataclass(eq=False)
 class Supply(Located):
     kind: str = plain("")
     voltage: Q = qty("voltage")
@@ -162,6 +183,7 @@ class Supply(Located):
     wire_gauge: int = plain(None)
     source_resistance: Q = qty("resistance")
     mains: Mains = sub(Mains)
+    battery: Battery = sub(Battery)
     note: str = plain(None)
 
 
@@ -192,6 +214,13 @@ class Pin(Located):
     role: str = plain("other")
     dc: object = plain(None)  # "supply" | "half-supply" | "ground" | "none" | Q (voltage)
     bias_through_tank: bool = plain(False)
+    threshold_min: Q = qty("voltage")
+    threshold_max: Q = qty("voltage")
+    v_min: Q = qty("voltage")
+    v_max: Q = qty("voltage")
+    output_impedance: Q = qty("resistance")
+    input_impedance: Q = qty("resistance")
+    needs_dc_blocked: bool = plain(False)
     note: str = plain(None)
 
 
@@ -263,12 +292,25 @@ class Core(Located):
 
 
 @dataclass(eq=False)
+class Pole(Located):
+    name: str = plain("")
+    common: str = plain(None)
+    throws: dict = plain({})  # position -> net
+
+
+@dataclass(eq=False)
 class Part(Located):
     name: str = plain("")  # the reference designator
     kind: str = plain("")
     value: Q = None  # dimension depends on kind (VALUE_DIMENSION)
     ends: list = plain([])
     positive: str = plain(None)
+    terminals: dict = plain({})  # v2: terminal name -> net; the loader fills it for every part
+    wiper: str = plain(None)  # v2: a potentiometer's wiper net
+    positions: list = plain([])  # v2: a selector switch's positions
+    poles: dict = named(Pole)  # v2: a selector switch's poles
+    in_circuit: dict = plain({})  # v2: switch -> position(s) in which the part is in circuit
+    combined_from: tuple = field(default=(), metadata={"derived": True})  # parts a stand-in stands for
     dielectric: str = plain(None)
     voltage_rating: Q = qty("voltage")
     power_rating: Q = qty("power")
@@ -307,6 +349,11 @@ class Part(Located):
     def polarized(self) -> bool:
         return self.kind == "capacitor" and self.dielectric in POLARIZED_DIELECTRICS
 
+    @property
+    def selector(self) -> bool:
+        """A switch with poles and positions (v2): it selects what is in circuit."""
+        return self.kind == "switch" and bool(self.poles)
+
     def other_end(self, net: str) -> str | None:
         if len(self.ends) == 2 and net in self.ends:
             return self.ends[1] if self.ends[0] == net else self.ends[0]
@@ -338,6 +385,8 @@ class IfPath(Located):
     stopband: Q = qty("frequency")
     stopband_at: Q = qty("gain")
     shape_factor: float = plain(None)
+    bypass: str = plain(None)  # v2: the part that makes a path with no filter
+    in_circuit: dict = plain({})  # v2: switch -> position(s) in which the path carries the signal
     note: str = plain(None)
 
 
@@ -345,7 +394,8 @@ class IfPath(Located):
 class Tank(Located):
     inductor: str = plain(None)
     capacitor: str = plain(None)
-    damping: str = plain(None)
+    damping: str = plain(None)  # v2 may list several: the loader keeps them in `choices`
+    choices: dict = field(default_factory=dict, repr=False, metadata={"derived": True})
     extra_capacitance: Q = qty("capacitance")
 
 
@@ -363,7 +413,9 @@ class Stage(Located):
     device: str = plain(None)
     parts: list = plain([])
     topology: str = plain(None)
-    load_impedance: Q = qty("resistance")
+    load_impedance: Q = qty("resistance")  # v1 only: works_into (input-match) or load_resistance (audio-amp)
+    works_into: Q = qty("resistance")
+    load_resistance: Q = qty("resistance")
     gain: Q = qty("gain")
     oscillator: Oscillator = sub(Oscillator)
     input_frequency: Q = qty("frequency")
@@ -378,11 +430,29 @@ class Stage(Located):
     coupling: str = plain(None)
     output_network: OutputNetwork = sub(OutputNetwork)
     input_bypass: str = plain(None)
+    control: str = plain(None)  # squelch: the threshold pot
+    pin: str = plain(None)  # squelch: the device pin it sets
+    series: str = plain(None)
+    shunt: str = plain(None)
+    hysteresis: str = plain(None)
     note: str = plain(None)
+    choices: dict = field(default_factory=dict, repr=False, metadata={"derived": True})  # field -> [refs]
 
     @property
     def label(self) -> str:
         return self.name or self.kind
+
+
+@dataclass(eq=False)
+class Tap(Located):
+    name: str = plain("")
+    after: str = plain(None)
+    net: str = plain(None)
+    series: str = plain(None)
+    coupling: str = plain(None)
+    load: Q = qty("resistance")
+    needs_dc_blocked: bool = plain(False)
+    note: str = plain(None)
 
 
 # ---- the whole build -------------------------------------------------------------------
@@ -401,10 +471,28 @@ class Build(Located):
     devices: dict = named(Device)
     parts: dict = named(Part)
     chain: list = items(Stage)
+    taps: list = items(Tap)
     parts_files: list = plain([])
+    # Stand-ins for switched or listed parts acting together (R5 and R7 in parallel), by ref
+    combined: dict = field(default_factory=dict, repr=False, metadata={"derived": True})
+    selected: dict = field(default_factory=dict, repr=False, metadata={"derived": True})  # switch -> position
+    configuration: object = field(default=None, repr=False, metadata={"derived": True})
 
     def part(self, ref: str | None) -> Part | None:
-        return self.parts.get(ref) if ref else None
+        if not ref or not isinstance(ref, str):
+            return None
+        return self.parts.get(ref) or self.combined.get(ref)
+
+    @property
+    def switched(self) -> bool:
+        """Selector switches or selectable upstream bandwidths: rules run per signal and position."""
+        return any(p.selector for p in self.parts.values()) or bool(
+            self.source is not None and self.source.bandwidth_settings)
+
+    def configurations(self) -> list:
+        from speccheck.configs import configurations
+
+        return configurations(self)
 
     def device(self, ref: str | None) -> Device | None:
         return self.devices.get(ref) if ref else None
@@ -424,7 +512,11 @@ class Build(Located):
             if stage.oscillator:
                 named_refs |= {stage.oscillator.crystal, *stage.oscillator.load_caps}
             for path in stage.paths.values():
-                named_refs.add(path.filter)
+                named_refs |= {path.filter, path.bypass}
+            named_refs |= {stage.control, stage.series, stage.shunt, stage.hysteresis}
+            for holder in (stage, stage.tank):
+                if holder is not None:
+                    named_refs |= {r for refs in holder.choices.values() for r in refs}
             if ref in named_refs:
                 return stage
         return None

@@ -41,21 +41,49 @@ class NetGraph:
         self.links: dict[str, list] = {}  # net -> [(part, other net, cost)]
         self.members: dict[str, list] = {}  # net -> [part]
         for part in build.parts.values():
+            for net in dict.fromkeys(part.terminals.values() or part.ends):
+                self.members.setdefault(net, []).append(part)
             for pair in self._pairs(part):
                 a, b = pair
-                self.members.setdefault(a, []).append(part)
-                self.members.setdefault(b, []).append(part)
                 cost = 0 if part.kind in ZERO_DROP else 1 if part.kind in SMALL_DROP else None
                 if cost is not None:
                     self.links.setdefault(a, []).append((part, b, cost))
                     self.links.setdefault(b, []).append((part, a, cost))
         self.potentials = self._solve()
+        self.spans = self._wipers()
 
-    @staticmethod
-    def _pairs(part):
+    def _pairs(self, part):
         if part.kind == "transformer":
             return [tuple(w) for w in (part.primary, part.secondary) if len(w) == 2]
+        if part.selector:  # a selector joins each pole's common to the throw of the position in use
+            here = self.build.selected.get(part.name)
+            return [(pole.common, pole.throws[here]) for pole in part.poles.values()
+                    if pole.common and here in pole.throws and pole.common != pole.throws[here]]
         return [tuple(part.ends)] if len(part.ends) == 2 else []
+
+    def _wipers(self) -> dict:
+        """A wiper sits anywhere between its track's end potentials: net -> (low, high, pot)."""
+        spans = {}
+        for part in self.build.parts.values():
+            if part.kind != "potentiometer" or not part.wiper or len(part.ends) != 2:
+                continue
+            a, b = (self.potentials.get(e) for e in part.ends)
+            if a is None or b is None:
+                continue
+            spans[part.wiper] = (min(a.volts, b.volts), max(a.volts, b.volts), part)
+            if part.wiper not in self.potentials and abs(a.volts - b.volts) < 1e-9:
+                self.potentials[part.wiper] = Potential(a.volts, f"{a.why}, at both ends of {part.name}", a.origin)
+        return spans
+
+    def span(self, net: str | None) -> tuple | None:
+        """(lowest, highest) DC the net can sit at: a known potential, or a wiper's range."""
+        if not net:
+            return None
+        pot = self.potentials.get(net)
+        if pot is not None:
+            return pot.volts, pot.volts
+        found = self.spans.get(net)
+        return (found[0], found[1]) if found else None
 
     # ---- stated potentials ----------------------------------------------------------
     def rail_voltage(self, name: str | None) -> float | None:

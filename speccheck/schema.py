@@ -8,18 +8,31 @@ from functools import lru_cache
 from importlib import resources
 
 SCHEMA_FILE = "build-v1.json"
+SCHEMA_FILES = {1: "build-v1.json", 2: "build-v2.json"}
+LATEST = 2
 MAX_SCHEMA_FINDINGS = 20
+# Keys format 2 renamed: the hint an unknown-key message gives instead of a close match
+RENAMED = {"load_impedance": "; format 2 calls it works_into on an input-match stage and load_resistance on "
+                             "an audio-amp stage (`speccheck upgrade` renames it)"}
 
 
-@lru_cache(maxsize=1)
-def build_schema() -> dict:
-    return json.loads(resources.files("speccheck").joinpath("schema", SCHEMA_FILE).read_text("utf-8"))
+@lru_cache(maxsize=2)
+def build_schema(version: int = 1) -> dict:
+    name = SCHEMA_FILES[version]
+    return json.loads(resources.files("speccheck").joinpath("schema", name).read_text("utf-8"))
+
+
+def version_of(data) -> int:
+    """The format version a document declares: 1 or 2; anything else is checked as the latest."""
+    spec = data.get("build_spec") if isinstance(data, dict) else None
+    return spec if isinstance(spec, int) and not isinstance(spec, bool) and spec in SCHEMA_FILES else LATEST
 
 
 @lru_cache(maxsize=1)
 def parts_file_schema() -> dict:
-    """A parts file beside a build holds only device profiles; it reuses the build's $defs."""
-    build = build_schema()
+    """A parts file beside a build holds only device profiles; it reuses the build's $defs (v2, a
+    superset of v1's profile keys)."""
+    build = build_schema(LATEST)
     return {"$schema": build["$schema"], "type": "object", "additionalProperties": False,
             "required": ["parts_spec", "profiles"],
             "properties": {"parts_spec": {"const": 1, "description": "marks the file as a parts file"},
@@ -45,11 +58,15 @@ def inline_refs(node, defs: dict):
     return node
 
 
-@lru_cache(maxsize=2)
+@lru_cache(maxsize=4)
 def validator(kind: str = "build"):
+    """kind: 'build' (v1), 'build-2', or 'parts'."""
     from jsonschema import Draft202012Validator
 
-    published = build_schema() if kind == "build" else parts_file_schema()
+    if kind == "parts":
+        published = parts_file_schema()
+    else:
+        published = build_schema(2 if kind == "build-2" else 1)
     return Draft202012Validator(inline_refs(published, published["$defs"]))
 
 
@@ -74,7 +91,7 @@ def _dimension(schema: dict) -> str | None:
         return schema["x-dimension"]
     ref = schema.get("$ref", "")
     if ref.startswith("#/$defs/"):
-        return build_schema()["$defs"].get(ref[8:], {}).get("x-dimension")
+        return build_schema(LATEST)["$defs"].get(ref[8:], {}).get("x-dimension")
     return None
 
 
@@ -106,7 +123,8 @@ def explain(error) -> list[tuple[tuple, str, bool]]:
     if kind == "additionalProperties" and isinstance(inst, dict):
         allowed = sorted(schema.get("properties", {}))
         extra = [k for k in inst if k not in schema.get("properties", {})]
-        return [(path + (k,), f"unknown key '{k}'{_where(path)}{_suggest(k, allowed)}", True) for k in extra]
+        return [(path + (k,), f"unknown key '{k}'{_where(path)}{RENAMED.get(k) or _suggest(k, allowed)}", True)
+                for k in extra]
     if kind == "required":
         missing = error.message.split("'")[1] if "'" in error.message else error.message
         return [(path, f"missing key '{missing}'{_where(path)}", False)]

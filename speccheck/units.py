@@ -33,6 +33,7 @@ DIMENSIONS: dict[str, tuple[str, str, str]] = {
     "length": ("m", "m", "12 mm"),
     "inductance_factor": ("H", "H/turn²", "4.9 nH/turn^2"),
     "i2t": ("A**2*s", "A²s", "3.4 A^2 s"),
+    "charge": ("C", "C", "500 mAh"),
     "fraction": ("", "", "20 ppm"),
     "level": ("dBm", "dBm", "-60 dBm"),
     "gain": ("dB", "dB", "10 dB"),
@@ -46,11 +47,12 @@ PLAUSIBLE: dict[str, tuple[float, float]] = {
     "resistance": (0.0, 1e13), "voltage": (-1e6, 1e6), "current": (0.0, 1e5), "power": (0.0, 1e7),
     "apparent_power": (0.0, 1e7), "time": (0.0, 1e7), "temperature": (-273.15, 1e4),
     "thermal_resistance": (0.0, 1e4), "length": (0.0, 1e4), "inductance_factor": (0.0, 1e-3),
-    "i2t": (0.0, 1e9), "fraction": (0.0, 10.0), "level": (-300.0, 100.0), "gain": (-200.0, 200.0),
+    "i2t": (0.0, 1e9), "charge": (0.0, 1e9), "fraction": (0.0, 10.0), "level": (-300.0, 100.0), "gain": (-200.0, 200.0),
 }
 
 ARTICLE = {"inductance": "an inductance", "apparent_power": "an apparent power", "i2t": "an I²t value",
-           "inductance_factor": "an inductance factor (AL)", "fraction": "a plain ratio"}
+           "inductance_factor": "an inductance factor (AL)",
+           "charge": "a charge (battery capacity)", "fraction": "a plain ratio"}
 
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?"
 _SPLIT = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")

@@ -10,8 +10,9 @@ line just above it (a run of comment lines directly above counts; a blank line e
     X1:
       kind: crystal
 
-The comment starts with the word `waive`, names one or more rule ids (comma separated) and
-gives the reason after `because`. It covers the findings of those rules that point at that
+The comment starts with the word `waive`, names one or more rule ids (comma separated),
+optionally the one signal it is limited to (`for broadcast FM`, format v2: findings found
+per signal and switch position name their signal), and gives the reason after `because`. It covers the findings of those rules that point at that
 line, or anywhere inside the part, device, stage or section whose key is on that line.
 
 A waived finding stays in every report, marked waived with its reason, and is counted as
@@ -29,15 +30,17 @@ from speccheck import registry
 _ID = r"[a-z][a-z0-9-]*\.[a-z0-9][a-z0-9-]*"
 WAIVER = re.compile(rf"^waive\s+(?P<ids>{_ID}(?:\s*,\s*{_ID})*)(?P<rest>.*)$", re.IGNORECASE | re.DOTALL)
 REASON = re.compile(r"^because\b[\s:,-]*(?P<reason>.*)$", re.IGNORECASE | re.DOTALL)
+FOR_SIGNAL = re.compile(r"^for\s+(?P<signal>.+?)\s+(?=because\b)", re.IGNORECASE | re.DOTALL)
 NOT_WAIVABLE = ("input", "review")
 STAGE = "review"
 class Waiver:
-    __slots__ = ("line", "col", "end_col", "ids", "reason", "problem", "target", "covers", "used")
+    __slots__ = ("line", "col", "end_col", "ids", "reason", "problem", "target", "covers", "used", "signal")
 
-    def __init__(self, line, col, end_col, ids, reason, problem):
+    def __init__(self, line, col, end_col, ids, reason, problem, signal=""):
         self.line, self.col, self.end_col = line, col, end_col
         self.ids, self.reason, self.problem = ids, reason, problem
         self.target, self.covers, self.used = None, [], set()
+        self.signal = signal  # v2: covers only the findings for this signal ("" for all)
 
 
 def parse_comment(text: str):
@@ -48,6 +51,9 @@ def parse_comment(text: str):
         return None
     ids = [i.strip().lower() for i in m.group("ids").split(",")]
     rest = m.group("rest").strip()
+    named = FOR_SIGNAL.match(rest)
+    if named:
+        rest = rest[named.end():]
     if not rest:
         return ids, None, "gives no reason"
     r = REASON.match(rest)
@@ -57,6 +63,13 @@ def parse_comment(text: str):
     if not reason:
         return ids, None, "gives no reason after 'because'"
     return ids, reason, None
+
+
+def signal_named(text: str) -> str:
+    """The signal a waiver is limited to (`# waive RULE for SIGNAL because ...`), or ''."""
+    m = WAIVER.match(text.strip())
+    named = FOR_SIGNAL.match(m.group("rest").strip()) if m else None
+    return " ".join(named.group("signal").split()) if named else ""
 
 
 def _comment_col(line: str, text: str) -> int:
@@ -79,7 +92,7 @@ def collect(text: str, comments: dict) -> list[Waiver]:
             continue
         ids, reason, problem = parsed
         line = lines[no - 1] if 0 < no <= len(lines) else ""
-        w = Waiver(no, _comment_col(line, body), len(line) + 1, ids, reason, problem)
+        w = Waiver(no, _comment_col(line, body), len(line) + 1, ids, reason, problem, signal_named(body))
         if not _is_comment_only(line):
             w.target = no
         else:
@@ -142,6 +155,8 @@ def apply(result, loaded, settings):
                 continue
             for f in here:
                 if f.rule != rule_id or f.waived:
+                    continue
+                if w.signal and f.signal.lower() != w.signal.lower():
                     continue
                 if w.target and (f.location.line == w.target or any(_inside(f.location.path, c) for c in covers)):
                     f.waived = w.reason

@@ -64,3 +64,46 @@ def test_every_dimension_in_the_schema_is_known_to_units():
     for name, d in D.items():
         if "x-dimension" in d:
             assert d["x-dimension"] in units.DIMENSIONS, name
+
+
+S2 = schema.build_schema(2)
+D2, P2 = S2["$defs"], S2["properties"]
+
+
+def _obj2(node):
+    if "$ref" in node:
+        return D2[node["$ref"].split("/")[-1]]
+    if "additionalProperties" in node and isinstance(node["additionalProperties"], dict) and \
+            "properties" not in node:
+        return _obj2(node["additionalProperties"])
+    if node.get("type") == "array":
+        return _obj2(node["items"])
+    return node
+
+
+PAIRS_V2 = [
+    (S2, model.Build), (_obj2(P2["signals"]), model.Signal), (_obj2(P2["source"]), model.Source),
+    (_obj2(P2["supply"]), model.Supply), (_obj2(P2["supply"]["properties"]["battery"]), model.Battery),
+    (D2["pin"], model.Pin), (D2["part"], model.Part), (D2["stage"], model.Stage), (D2["if_path"], model.IfPath),
+    (D2["tank"], model.Tank), (_obj2(P2["taps"]), model.Tap),
+    (_obj2(D2["part"]["properties"]["poles"]), model.Pole),
+]
+LISTS_V2 = {("Source", "bandwidth_settings")}  # a mapping of quantities, filled by the loader
+
+
+@pytest.mark.parametrize("node,cls", PAIRS_V2, ids=[c.__name__ for _, c in PAIRS_V2])
+def test_every_v2_schema_key_has_a_model_field_of_the_same_dimension(node, cls):
+    fields = {f.metadata.get("key", f.name): f for f in dataclasses.fields(cls)}
+    for key, prop in node["properties"].items():
+        assert key in fields, f"{cls.__name__} has no field for schema key '{key}'"
+        if (cls.__name__, key) in SPECIAL | LISTS_V2 or "anyOf" in prop:
+            continue
+        ref = prop.get("$ref", "")
+        want = D2.get(ref.split("/")[-1], {}).get("x-dimension") if ref else prop.get("x-dimension")
+        assert fields[key].metadata.get("dim") == want, f"{cls.__name__}.{key}"
+
+
+def test_v2_schema_is_valid_draft_2020_12():
+    from jsonschema import Draft202012Validator
+
+    Draft202012Validator.check_schema(S2)

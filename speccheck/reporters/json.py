@@ -16,11 +16,13 @@ def finding_dict(f) -> dict:
             "location": {"file": loc.file, "line": loc.line, "column": loc.col, "path": loc.path,
                          "end_line": loc.end_line, "end_column": loc.end_col},
             "values": [value_dict(v) for v in f.values], "fix": f.fix, "stage": f.stage,
-            "waived": f.waived is not None, "waiver_reason": f.waived, "fingerprint": f.fingerprint}
+            "waived": f.waived is not None, "waiver_reason": f.waived, "fingerprint": f.fingerprint,
+            "signal": f.signal, "position": f.position}
 
 
 def sheet_dict(entry) -> dict:
-    return {"section": entry.section, "owner": entry.owner, "rule": entry.rule, **value_dict(entry.value)}
+    return {"section": entry.section, "owner": entry.owner, "rule": entry.rule, "signal": entry.signal,
+            "position": entry.position, **value_dict(entry.value)}
 
 
 def file_dict(result, hidden: int = 0) -> dict:

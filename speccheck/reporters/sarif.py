@@ -104,6 +104,8 @@ def result_of(f, index: dict, artifacts: dict, with_baseline: bool) -> dict:
     props = {"stage": f.stage, "fix": f.fix, "values": _value_props(f)}
     if loc.path:
         props["documentPath"] = loc.path
+    if f.signal or f.position:
+        props["signal"], props["position"] = f.signal, f.position
     out = {"ruleId": f.rule, "level": f.level, "message": {"text": f.message}, "locations": [location],
            "partialFingerprints": {FINGERPRINT_KEY: f.fingerprint}, "properties": props}
     if f.rule in index:

@@ -13,7 +13,9 @@ SHEET_VERSION = 1
 def grouped(result) -> dict:
     out: dict = {}
     for entry in result.sheet:
-        out.setdefault(entry.section, {}).setdefault(entry.owner, []).append(entry)
+        tag = "; ".join(w for w in (entry.signal, entry.position) if w)
+        owner = f"{entry.owner} [{tag}]" if tag else entry.owner
+        out.setdefault(entry.section, {}).setdefault(owner, []).append(entry)
     return out
 
 

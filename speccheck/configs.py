@@ -1,0 +1,295 @@
+"""What is in circuit for each signal and switch position (format v2).
+
+A v2 build may have selector switches (parts with poles and positions) and a source with
+selectable bandwidths. Each signal is received in some positions of each switch and with one
+bandwidth setting: a *configuration*. Rules whose verdict depends on what is in circuit run
+once per configuration on a *view* of the build: a shallow copy holding only the parts in
+circuit there, the IF path selected, listed parts (damping resistors, filter capacitors)
+reduced to those in circuit and combined, the chosen upstream bandwidth, and its own net graph
+with each switch's common joined to the selected throw.
+
+A build with no selector switch and no bandwidth settings (every v1 file) is not switched: the
+rules run once on the build itself, exactly as before.
+"""
+
+from __future__ import annotations
+
+import copy
+import itertools
+import weakref
+from dataclasses import dataclass
+
+from speccheck import model
+from speccheck.findings import Finding
+
+# Rules whose verdict depends on what is in circuit: run per configuration in a switched build.
+PER_CONFIGURATION = {
+    "freqplan.conversion", "freqplan.filter-fit", "freqplan.image", "freqplan.path-width",
+    "freqplan.upstream-bandwidth", "freqplan.mixer-spurs", "freqplan.tank-tuning", "freqplan.tank-range",
+    "freqplan.de-emphasis", "freqplan.audio-corner", "rfpath.gain-ahead", "rfpath.max-input",
+    "tap.loading",
+}
+
+MAX_CONFIGURATIONS = 64  # a plan with more combinations is checked on the first ones only
+
+
+@dataclass(frozen=True)
+class Configuration:
+    signal: object  # model.Signal or None when the build declares none
+    positions: tuple  # ((switch ref, position), ...) in switch order
+    upstream: str | None  # the source bandwidth setting's name
+    unstated: tuple = ()  # switches the signal does not name (taken in every position)
+
+    @property
+    def signal_name(self) -> str:
+        return self.signal.name if self.signal is not None else ""
+
+    @property
+    def position_label(self) -> str:
+        words = [f"{ref} {pos}" for ref, pos in self.positions]
+        if self.upstream:
+            words.append(f"upstream {self.upstream}")
+        return "; ".join(words)
+
+    @property
+    def label(self) -> str:
+        return "; ".join(w for w in (self.signal_name, self.position_label) if w)
+
+    def position(self, switch: str) -> str | None:
+        return dict(self.positions).get(switch)
+
+    def selects(self, selection: dict) -> bool:
+        """True when every switch a selection names sits at one of its positions."""
+        chosen = dict(self.positions)
+        return all(chosen.get(ref) in positions for ref, positions in selection.items() if ref in chosen)
+
+
+_CONFIGS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
+
+
+def selectors(build) -> list:
+    return [p for p in build.parts.values() if p.selector]
+
+
+def configurations(build) -> list:
+    """Every (signal, switch positions, upstream setting) the plan receives, in plan order."""
+    cached = _CONFIGS.get(build)
+    if cached is not None:
+        return cached
+    switches = selectors(build)
+    settings = list(build.source.bandwidth_settings) if build.source is not None else []
+    out: list = []
+    for sig in build.signals or [None]:
+        choices, unstated = [], []
+        for sw in switches:
+            named = sig.positions_of(sw.name) if sig is not None else []
+            named = [p for p in named if p in sw.positions] or list(sw.positions)
+            if sig is None or not sig.positions_of(sw.name):
+                unstated.append(sw.name)
+            choices.append([(sw.name, p) for p in named])
+        if sig is not None and sig.upstream in settings:
+            ups = [sig.upstream]
+        else:
+            ups = settings or [None]
+        for combo in itertools.product(*choices):
+            for up in ups:
+                out.append(Configuration(sig, tuple(combo), up, tuple(unstated)))
+    out = out[:MAX_CONFIGURATIONS]
+    _CONFIGS[build] = out
+    return out
+
+
+# ---- what is in circuit ----------------------------------------------------------------
+
+def out_of_circuit(build, cfg: Configuration | None) -> set:
+    """Refs of the parts out of circuit in a configuration (none without one).
+
+    A part is out when its `in_circuit` selection does not hold, or when it hangs on a switch
+    net the position leaves open (an unselected throw, or the common of a pole with no throw
+    there) with no other part on that net; a part then left hanging by one terminal is out too.
+    A net that rails, declared nodes or device pins hold never hangs. Where this reading is not
+    what is built (two parts on an open throw), `in_circuit:` on the part says it plainly.
+    """
+    if cfg is None:
+        return set()
+    out = {p.name for p in build.parts.values() if p.in_circuit and not cfg.selects(p.in_circuit)}
+    fixed = set(build.rails) | set(build.nodes)
+
+    def floating(net) -> bool:  # a net nothing but the switch holds: rails, nodes and pins never float
+        return bool(net) and net not in fixed and "." not in net
+
+    users: dict = {}
+    for part in build.parts.values():
+        if part.selector:
+            continue
+        for net in set(part.terminals.values()):
+            users.setdefault(net, []).append(part)
+
+    def hanging(net) -> bool:  # at most one part left on a net nothing fixed holds
+        return floating(net) and len([p for p in users.get(net, ()) if p.name not in out]) <= 1
+
+    dead: set = set()
+    joined: set = set()  # nets a pole connects in this position
+    for sw in selectors(build):
+        here = cfg.position(sw.name)
+        for pole in sw.poles.values():
+            chosen = pole.throws.get(here)
+            if chosen is not None:
+                joined |= {chosen, pole.common}
+            loose = [net for net in pole.throws.values() if net not in (chosen, pole.common)]
+            if chosen is None:
+                loose.append(pole.common)  # the pole is open in this position
+            dead |= {net for net in loose if hanging(net)}
+    changed = True
+    while changed:
+        changed = False
+        for part in build.parts.values():
+            if part.name in out or part.selector:
+                continue
+            if any(net in dead for net in part.terminals.values()):
+                out.add(part.name)
+                changed = True
+                for net in part.terminals.values():
+                    if net not in dead and net not in joined and hanging(net):
+                        dead.add(net)
+    return out
+
+
+def path_in_circuit(path, cfg: Configuration | None, out: set) -> bool:
+    if cfg is None:
+        return True
+    if path.in_circuit:
+        return cfg.selects(path.in_circuit)
+    for ref in (path.filter, path.bypass):
+        if ref:
+            return ref not in out
+    return True
+
+
+# ---- combined stand-ins ------------------------------------------------------------------
+
+def _combined(build, refs: list) -> model.Part | None:
+    """One stand-in part for several acting together: resistors in parallel, capacitors summed."""
+    parts = [build.parts.get(r) for r in refs]
+    parts = [p for p in parts if p is not None]
+    if not parts:
+        return None
+    if len(parts) == 1:
+        return parts[0]
+    first = parts[0]
+    stand_in = copy.copy(first)
+    stand_in.name = "+".join(p.name for p in parts)
+    stand_in.combined_from = tuple(p.name for p in parts)
+    stand_in.ends, stand_in.terminals, stand_in.adjust, stand_in.tolerance = [], {}, None, None
+    values = [p.value for p in parts]
+    if all(v is not None for v in values):
+        if first.kind in ("resistor", "potentiometer"):
+            si = 1.0 / sum(1.0 / v.si for v in values)
+        else:  # capacitors in parallel add
+            si = sum(v.si for v in values)
+        text = " || ".join(v.text for v in values)
+        stand_in.value = model.Q(si, first.value.dim, text, first.value.src, first.value.doc_path)
+    else:
+        stand_in.value = None
+    return stand_in
+
+
+def _resolve_choices(view, holder, out: set):
+    for name, refs in holder.choices.items():
+        live = [r for r in refs if r not in out]
+        if not live:
+            setattr(holder, name, None)
+            continue
+        stand_in = _combined(view, live)
+        setattr(holder, name, stand_in.name if stand_in is not None else None)
+        if stand_in is not None and stand_in.combined_from:
+            view.combined[stand_in.name] = stand_in
+
+
+def prepare(build):
+    """Stand-ins for listed parts on the build itself (all of them in circuit)."""
+    for stage in build.chain:
+        for holder in (stage, stage.tank):
+            if holder is not None and holder.choices:
+                _resolve_choices(build, holder, set())
+
+
+# ---- the view of one configuration ---------------------------------------------------------
+
+_VIEWS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
+
+
+def view(build, cfg: Configuration):
+    """The build as it is in one configuration (cached per build)."""
+    views = _VIEWS.setdefault(build, {})
+    found = views.get(cfg)
+    if found is not None:
+        return found
+    out = out_of_circuit(build, cfg)
+    v = copy.copy(build)
+    v.__dict__.pop("nets", None)  # the cached net graph of the whole build
+    v.configuration, v.selected = cfg, dict(cfg.positions)
+    v.signals = [cfg.signal] if cfg.signal is not None else []
+    v.parts = {k: p for k, p in build.parts.items() if k not in out}
+    v.combined = {}
+    v.chain = []
+    for stage in build.chain:
+        s = copy.copy(stage)
+        if stage.paths:
+            s.paths = {k: p for k, p in stage.paths.items() if path_in_circuit(p, cfg, out)}
+        if stage.tank is not None:
+            s.tank = copy.copy(stage.tank)
+            _resolve_choices(v, s.tank, out)
+        _resolve_choices(v, s, out)
+        v.chain.append(s)
+    if cfg.upstream and build.source is not None:
+        v.source = copy.copy(build.source)
+        v.source.bandwidth = build.source.bandwidth_settings[cfg.upstream]
+        v.source.places = {**build.source.places,
+                           "bandwidth": build.source.places.get("bandwidth_settings", ()) + (cfg.upstream,)}
+    views[cfg] = v
+    return v
+
+
+def base(build):
+    """What rules that do not depend on the configuration see: the build itself."""
+    return build
+
+
+# ---- references (v2 keys) --------------------------------------------------------------------
+
+def check_references(build, findings: list):
+    def bad(message: str, loc):
+        findings.append(Finding("input.reference", "error", message, loc, stage="input",
+                                fix="Declare the switch, position or setting, or correct the name."))
+
+    switches = {p.name: p for p in selectors(build)}
+    for part in build.parts.values():
+        if part.kind == "switch" and part.poles:
+            for pole in part.poles.values():
+                for position in pole.throws:
+                    if position not in part.positions:
+                        bad(f"{part.name} pole {pole.name} has a throw for '{position}', which is not one of its "
+                            f"positions ({', '.join(part.positions) or 'none listed'})", pole.at("throws"))
+        if part.wiper and part.kind != "potentiometer":
+            bad(f"{part.name} is a {part.kind}: only a potentiometer has a wiper", part.at("wiper"))
+    for holder in [*build.parts.values(), *(p for st in build.chain for p in st.paths.values())]:
+        for ref, positions in holder.in_circuit.items():
+            _check_selection(switches, ref, positions, holder, "in_circuit", bad)
+    settings = build.source.bandwidth_settings if build.source is not None else {}
+    for sig in build.signals:
+        for ref in sig.switches if isinstance(sig.switches, dict) else {}:
+            _check_selection(switches, str(ref), sig.positions_of(str(ref)), sig, "switches", bad)
+        if sig.upstream and sig.upstream not in settings:
+            bad(f"signal {sig.name} names upstream setting '{sig.upstream}', which source.bandwidth_settings does "
+                f"not declare ({', '.join(settings) or 'none'})", sig.at("upstream"))
+
+
+def _check_selection(switches: dict, ref: str, positions: list, holder, field: str, bad):
+    sw = switches.get(ref)
+    if sw is None:
+        bad(f"'{ref}' is not a selector switch (a part of kind switch with poles and positions)", holder.at(field))
+        return
+    for position in positions:
+        if position not in sw.positions:
+            bad(f"{ref} has no position '{position}' (it has {', '.join(sw.positions)})", holder.at(field))
