@@ -19,7 +19,6 @@ import itertools
 import weakref
 from dataclasses import dataclass
 
-from speccheck import model
 from speccheck.findings import Finding
 
 # Rules whose verdict depends on what is in circuit: run per configuration in a switched build.
@@ -35,7 +34,7 @@ MAX_CONFIGURATIONS = 64  # a plan with more combinations is checked on the first
 
 @dataclass(frozen=True)
 class Configuration:
-    signal: object  # model.Signal or None when the build declares none
+    signal: object  # a model Signal, or None when the build declares none
     positions: tuple  # ((switch ref, position), ...) in switch order
     upstream: str | None  # the source bandwidth setting's name
     unstated: tuple = ()  # switches the signal does not name (taken in every position)
@@ -168,7 +167,7 @@ def path_in_circuit(path, cfg: Configuration | None, out: set) -> bool:
 
 # ---- combined stand-ins ------------------------------------------------------------------
 
-def _combined(build, refs: list) -> model.Part | None:
+def _combined(build, refs: list):
     """One stand-in part for several acting together: resistors in parallel, capacitors summed."""
     parts = [build.parts.get(r) for r in refs]
     parts = [p for p in parts if p is not None]
@@ -188,7 +187,7 @@ def _combined(build, refs: list) -> model.Part | None:
         else:  # capacitors in parallel add
             si = sum(v.si for v in values)
         text = " || ".join(v.text for v in values)
-        stand_in.value = model.Q(si, first.value.dim, text, first.value.src, first.value.doc_path)
+        stand_in.value = type(first.value)(si, first.value.dim, text, first.value.src, first.value.doc_path)
     else:
         stand_in.value = None
     return stand_in
@@ -269,8 +268,9 @@ def check_references(build, findings: list):
             for pole in part.poles.values():
                 for position in pole.throws:
                     if position not in part.positions:
-                        bad(f"{part.name} pole {pole.name} has a throw for '{position}', which is not one of its "
-                            f"positions ({', '.join(part.positions) or 'none listed'})", pole.at("throws"))
+                        bad(f"{part.name} pole {pole.name} has a throw for '{position}', which is not one "
+                            f"of its positions ({', '.join(part.positions) or 'none listed'})",
+                            pole.at("throws"))
         if part.wiper and part.kind != "potentiometer":
             bad(f"{part.name} is a {part.kind}: only a potentiometer has a wiper", part.at("wiper"))
     for holder in [*build.parts.values(), *(p for st in build.chain for p in st.paths.values())]:
@@ -281,14 +281,16 @@ def check_references(build, findings: list):
         for ref in sig.switches if isinstance(sig.switches, dict) else {}:
             _check_selection(switches, str(ref), sig.positions_of(str(ref)), sig, "switches", bad)
         if sig.upstream and sig.upstream not in settings:
-            bad(f"signal {sig.name} names upstream setting '{sig.upstream}', which source.bandwidth_settings does "
-                f"not declare ({', '.join(settings) or 'none'})", sig.at("upstream"))
+            bad(f"signal {sig.name} names upstream setting '{sig.upstream}', which "
+                f"source.bandwidth_settings does not declare ({', '.join(settings) or 'none'})",
+                sig.at("upstream"))
 
 
 def _check_selection(switches: dict, ref: str, positions: list, holder, field: str, bad):
     sw = switches.get(ref)
     if sw is None:
-        bad(f"'{ref}' is not a selector switch (a part of kind switch with poles and positions)", holder.at(field))
+        bad(f"'{ref}' is not a selector switch (a part of kind switch with poles and positions)",
+            holder.at(field))
         return
     for position in positions:
         if position not in sw.positions:

@@ -47,7 +47,8 @@ PLAUSIBLE: dict[str, tuple[float, float]] = {
     "resistance": (0.0, 1e13), "voltage": (-1e6, 1e6), "current": (0.0, 1e5), "power": (0.0, 1e7),
     "apparent_power": (0.0, 1e7), "time": (0.0, 1e7), "temperature": (-273.15, 1e4),
     "thermal_resistance": (0.0, 1e4), "length": (0.0, 1e4), "inductance_factor": (0.0, 1e-3),
-    "i2t": (0.0, 1e9), "charge": (0.0, 1e9), "fraction": (0.0, 10.0), "level": (-300.0, 100.0), "gain": (-200.0, 200.0),
+    "i2t": (0.0, 1e9), "charge": (0.0, 1e9),
+    "fraction": (0.0, 10.0), "level": (-300.0, 100.0), "gain": (-200.0, 200.0),
 }
 
 ARTICLE = {"inductance": "an inductance", "apparent_power": "an apparent power", "i2t": "an I²t value",

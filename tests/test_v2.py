@@ -43,7 +43,8 @@ def test_v2_example_checks_clean_and_is_switched():
     build = loader.load_text(bench(), "bench.yaml").build
     assert build.switched
     labels = [c.label for c in build.configurations()]
-    assert labels == ["repeater voice; S1 narrow; upstream rbw-100k", "broadcast FM; S1 wide; upstream rbw-1m"]
+    assert labels == ["repeater voice; S1 narrow; upstream rbw-100k",
+                      "broadcast FM; S1 wide; upstream rbw-1m"]
 
 
 def test_terminals_are_named_for_every_kind_of_part():
@@ -113,7 +114,8 @@ def test_v1_build_spec_refuses_v2_keys_and_v2_refuses_load_impedance(clean_text)
     text = edited(bench(), "build_spec: 2", "build_spec: 1")
     assert any("unknown key" in f.message for f in of(check(text), "input.schema"))
     text = edited(clean_text, "build_spec: 1", "build_spec: 2")
-    text = edited(text, "    topology: series-l-shunt-c\n", "    topology: series-l-shunt-c\n    load_impedance: 1.5 kohm\n")
+    text = edited(text, "    topology: series-l-shunt-c\n",
+                  "    topology: series-l-shunt-c\n    load_impedance: 1.5 kohm\n")
     found = of(check(text), "input.schema")
     assert found and "load_impedance" in found[0].message and "works_into" in found[0].message
 

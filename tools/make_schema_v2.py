@@ -37,8 +37,9 @@ def v2(v1: dict) -> dict:
     s = copy.deepcopy(v1)
     s["$id"] = "urn:speccheck:build-spec:2"
     s["title"] = "speccheck build plan, format 2"
-    s["description"] = ("A plain-text plan of a small receive-side build as it is built: signals and the switch "
-                        "positions they are received in, source, supply and battery, rails, devices, parts with "
+    s["description"] = ("A plain-text plan of a small receive-side build as it is built: signals and the "
+                        "switch positions they are received in, source, supply and battery, rails, devices, parts "
+                        "with "
                         "their named terminals, the signal chain and the taps taken off it.")
     p, d = s["properties"], s["$defs"]
     p["build_spec"] = {"const": 2, "description": "format version of this file: 2"}
