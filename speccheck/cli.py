@@ -358,3 +358,43 @@ def spice(path, folder, force, config, no_config):
             _trouble(f"{_plain(deck_file)} {exc}")
     click.echo(f"speccheck: wrote {len(decks)} deck{'' if len(decks) == 1 else 's'} to {folder}: "
                f"{', '.join(p.name for p in paths)}; run one with `ngspice -b DECK`", err=True)
+
+
+@main.command()
+@click.argument("path", type=click.Path(dir_okay=False))
+@click.option("--series", type=click.Choice(["E12", "E24", "E96"]), default="E12", show_default=True,
+              help="The IEC 60063 series to pick resistors, capacitors and coils from (coils stop at E24).")
+@click.option("--apply", "apply_changes", is_flag=True,
+              help="Write the proposed changes into the plan (atomically), then check it again.")
+@_project_options
+def solve(path, series, apply_changes, config, no_config):
+    """Propose buyable part values that clear the plan's findings, as a diff of the plan.
+
+    Each change is checked on the plan in memory first: it is proposed only when it clears its
+    finding and makes no other finding appear. Comments, order and layout of the plan stay as
+    they are. Exit 0 when it ran, 2 when it could not (unreadable plan, input errors with --apply).
+    """
+    from pathlib import Path
+
+    from speccheck import solver
+    from speccheck.solver import show
+
+    if not Path(path).exists():
+        _trouble(f"{path}: no such file")
+    settings = _settings([path], config, no_config)
+    try:
+        outcome = solver.solve(path, settings, series)
+    except solver.SolveTrouble as exc:
+        _trouble(str(exc))
+    click.echo(show.render(outcome), nl=False)
+    if outcome.refused:
+        sys.exit(EXIT_TROUBLE if apply_changes else EXIT_CLEAN)
+    if apply_changes:
+        if outcome.new_text == outcome.text:
+            click.echo("nothing to write: the plan stays as it is")
+            return
+        try:
+            solver.write(outcome, settings)
+        except solver.SolveTrouble as exc:
+            _trouble(str(exc))
+        click.echo(show.render_after(outcome), nl=False)

@@ -28,6 +28,7 @@ from dataclasses import dataclass
 from speccheck import yamlnodes
 
 Scalar = str | int | float | bool
+Value = Scalar | dict | list  # a dict or list is written as a flow collection: {a: 1, b: [x, y]}
 
 
 class EditTrouble(Exception):
@@ -97,8 +98,14 @@ def plain_ok(value: str, *, flow: bool = False) -> bool:
     return all(ch.isalnum() or ch in _PLAIN_EXTRA for ch in value) and value.isprintable()
 
 
-def render(value: Scalar, style: str = "plain", *, flow: bool = False) -> str:
-    """Text for a scalar, in `style` ('plain', "'", '"') where that style can hold it."""
+def render(value: Value, style: str = "plain", *, flow: bool = False) -> str:
+    """Text for a value, in `style` ('plain', "'", '"') where that style can hold it; a dict or a
+    list becomes a flow collection."""
+    if isinstance(value, dict):
+        return "{" + ", ".join(f"{render_key(str(k), flow=True)}: {render(v, flow=True)}"
+                               for k, v in value.items()) + "}"
+    if isinstance(value, list | tuple):
+        return "[" + ", ".join(render(v, flow=True) for v in value) + "]"
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, int):
@@ -230,7 +237,7 @@ def rename_key(text: str, doc: yamlnodes.Document, path: tuple, new_key: str) ->
     return Edit(span.start, span.end, render_key(new_key, flow=_in_flow(doc, path)))
 
 
-def insert_entry(text: str, doc: yamlnodes.Document, path: tuple, key: str, value: Scalar,
+def insert_entry(text: str, doc: yamlnodes.Document, path: tuple, key: str, value: Value,
                  *, after: str | None = None) -> Edit:
     """Add `key: value` to the mapping at path, after the entry `after` (default: the last one).
 
@@ -258,7 +265,7 @@ def insert_entry(text: str, doc: yamlnodes.Document, path: tuple, key: str, valu
     return Edit(at, at, newline_of(text) + " " * indent + entry)
 
 
-def append_item(text: str, doc: yamlnodes.Document, path: tuple, value: Scalar) -> Edit:
+def append_item(text: str, doc: yamlnodes.Document, path: tuple, value: Value) -> Edit:
     """Add an item at the end of the sequence at path, in its style (block '- ' or flow ', ')."""
     path = tuple(path)
     span = _value_span(doc, path)

@@ -296,3 +296,33 @@ def _digits(value: float, unit: str) -> int:
 
 def symbol(dim: str) -> str:
     return DIMENSIONS[dim][1]
+
+
+# How a value is spelled in a build file (plain ASCII by default, as the examples and starters
+# write it), for the edits the solver proposes. The units that keep their SI prefixes:
+_PLAN_SPELLING = {"F": "F", "H": "H", "Ω": "ohm", "V": "V", "A": "A", "Hz": "Hz", "s": "s", "W": "W",
+                  "°C/W": "degC/W", "°C": "degC"}
+_PLAN_PREFIXES = {"F": ((1e-6, "u"), (1e-9, "n"), (1e-12, "p")),  # capacitors are sold in uF, nF, pF
+                  "°C/W": (), "°C": ()}
+
+
+def plan_text(value: float, unit: str, like: str = "") -> str:
+    """A value as a builder writes it in a plan: '27 pF', '4.7 kohm', '470 uF', '1.25 A', '8 degC/W'.
+
+    `like` is the text it replaces: a file that writes 'µ' or 'Ω' keeps doing so."""
+    spelled = _PLAN_SPELLING.get(unit, unit)
+    if unit == "Ω" and "Ω" in like:
+        spelled = "Ω"
+    prefixes = _PLAN_PREFIXES.get(unit, tuple((s, p if p != "µ" else "u") for s, p in _PREFIXES if s >= 1e-12))
+    scale, prefix = 1.0, ""
+    for candidate, letter in prefixes:
+        if abs(value) >= candidate * (1 - 1e-9):
+            scale, prefix = candidate, letter
+            break
+    else:
+        if prefixes:
+            scale, prefix = prefixes[-1]
+    if prefix == "u" and ("µ" in like or "μ" in like):
+        prefix = "µ"
+    number = f"{value / scale:.6g}"
+    return f"{number} {prefix}{spelled}"

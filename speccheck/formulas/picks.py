@@ -1,0 +1,122 @@
+"""Picking buyable values: E-series neighbours of an ideal value, capacitor voltage ratings,
+and the small inverse formulas a solver needs (the value that gives a wanted figure).
+
+SI floats in and out; no model, YAML or pint. The E12 and E24 tables live in
+formulas/preferred.py (IEC 60063); E96 is here until it joins them.
+"""
+
+from __future__ import annotations
+
+import math
+from functools import lru_cache
+
+try:  # formulas/preferred.py (issue 8's layout); before it lands, the same tables in rf.py
+    from speccheck.formulas.preferred import E12, E24
+except ImportError:  # pragma: no cover
+    from speccheck.rf import E12, E24
+
+# E96 (the 1 % series), IEC 60063: three figures, each 10^(i/96) rounded; the test compares every
+# entry with that definition.
+E96 = (1.00, 1.02, 1.05, 1.07, 1.10, 1.13, 1.15, 1.18, 1.21, 1.24, 1.27, 1.30, 1.33, 1.37, 1.40, 1.43,
+       1.47, 1.50, 1.54, 1.58, 1.62, 1.65, 1.69, 1.74, 1.78, 1.82, 1.87, 1.91, 1.96, 2.00, 2.05, 2.10,
+       2.15, 2.21, 2.26, 2.32, 2.37, 2.43, 2.49, 2.55, 2.61, 2.67, 2.74, 2.80, 2.87, 2.94, 3.01, 3.09,
+       3.16, 3.24, 3.32, 3.40, 3.48, 3.57, 3.65, 3.74, 3.83, 3.92, 4.02, 4.12, 4.22, 4.32, 4.42, 4.53,
+       4.64, 4.75, 4.87, 4.99, 5.11, 5.23, 5.36, 5.49, 5.62, 5.76, 5.90, 6.04, 6.19, 6.34, 6.49, 6.65,
+       6.81, 6.98, 7.15, 7.32, 7.50, 7.68, 7.87, 8.06, 8.25, 8.45, 8.66, 8.87, 9.09, 9.31, 9.53, 9.76)
+
+SERIES = {"E12": E12, "E24": E24, "E96": E96}
+
+# Rated DC voltages of aluminium electrolytic and ceramic capacitors as sold. 4, 6.3, 10, 16, 25,
+# 40, 63 and 100 V are the R5 series of ISO 3 (which IEC 60384-1 names for rated voltages);
+# 35, 50, 160, 200, 350 and 450 V are the further steps the trade stocks: common practice.
+CAPACITOR_VOLTAGES = (4.0, 6.3, 10.0, 16.0, 25.0, 35.0, 40.0, 50.0, 63.0, 100.0, 160.0, 200.0, 250.0,
+                      350.0, 400.0, 450.0, 500.0, 630.0)
+
+
+def series_values(name: str, low: float, high: float) -> list[float]:
+    """Every value of the E-series `name` from low to high (inclusive), ascending."""
+    table = SERIES[name]
+    if not (0 < low <= high and math.isfinite(high)):
+        raise ValueError("a range of positive values is needed")
+    out = []
+    for exponent in range(math.floor(math.log10(low)) - 1, math.floor(math.log10(high)) + 2):
+        for value in _decade(exponent, table):
+            if low * (1 - 1e-9) <= value <= high * (1 + 1e-9):
+                out.append(value)
+    return sorted(set(out))
+
+
+@lru_cache(maxsize=256)
+def _decade(exponent: int, table: tuple) -> tuple:
+    """One decade of a series, rounded to 6 digits so that 4.7e-9 stays 4.7e-9."""
+    return tuple(float(f"{mantissa * 10.0 ** exponent:.6g}") for mantissa in table)
+
+
+def preferred_up(value: float, name: str) -> float:
+    """The smallest value of the series at or above `value`."""
+    return series_values(name, value, value * 10.0)[0]
+
+
+def preferred_down(value: float, name: str) -> float:
+    """The largest value of the series at or below `value`."""
+    return series_values(name, value / 10.0, value)[-1]
+
+
+def preferred_around(value: float, name: str, each_side: int = 2) -> list[float]:
+    """The `each_side` series values below `value` and the `each_side` at or above it, ascending."""
+    below = [v for v in series_values(name, value / 10.0, value) if v < value * (1 - 1e-9)]
+    above = series_values(name, value, value * 10.0)
+    return below[-each_side:] + above[:each_side]
+
+
+def voltage_rating_up(volts: float) -> float | None:
+    """The smallest stocked capacitor voltage rating at or above `volts`; None above the table."""
+    for rating in CAPACITOR_VOLTAGES:
+        if rating >= volts * (1 - 1e-9):
+            return rating
+    return None
+
+
+# ---- inverse formulas ---------------------------------------------------------------------
+
+def equal_load_capacitors(load: float, stray: float) -> float:
+    """Each of two equal loading capacitors that give a crystal `load` with `stray` on the board.
+
+    C_L = C1 C2 / (C1 + C2) + C_stray with C1 = C2 = C gives C = 2 (C_L - C_stray)."""
+    return 2.0 * (load - stray)
+
+
+def damping_for(total: float, coil_loss: float | None) -> float:
+    """The resistor that, in parallel with a coil's loss resistance, gives `total` across a tank.
+
+    1/R_total = 1/R_damping + 1/R_coil; with no coil loss given the damping resistor is the total."""
+    if coil_loss is None or math.isinf(coil_loss):
+        return total
+    if coil_loss <= total:
+        return math.inf  # the coil alone already damps the tank this far
+    return 1.0 / (1.0 / total - 1.0 / coil_loss)
+
+
+def rc_partner(time_constant: float, known: float) -> float:
+    """R for a wanted time constant and a given C, or C for a given R: tau = R C."""
+    return time_constant / known
+
+
+def centre_capacitance(f0: float, l_low: float, l_high: float) -> float:
+    """Tank capacitance that puts f0 at the geometric centre of a coil's tuning range.
+
+    f = 1 / (2 pi sqrt(L C)): the range runs 1/(2 pi sqrt(L_high C)) to 1/(2 pi sqrt(L_low C));
+    its geometric centre is 1/(2 pi sqrt(sqrt(L_low L_high) C))."""
+    return 1.0 / ((2 * math.pi * f0) ** 2 * math.sqrt(l_low * l_high))
+
+
+def position_in_range(f: float, low: float, high: float) -> float:
+    """Where f sits in [low, high] on a log scale: 0 at low, 0.5 at the geometric centre, 1 at high."""
+    if high <= low:
+        return 0.5
+    return math.log(f / low) / math.log(high / low)
+
+
+def rc_high_pass_c(r_load: float, corner: float) -> float:
+    """The coupling capacitance whose corner with r_load is `corner`: C = 1/(2 pi R f)."""
+    return 1.0 / (2 * math.pi * r_load * corner)

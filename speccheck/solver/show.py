@@ -1,0 +1,77 @@
+"""The solver's plain-text output: what it proposes, what it holds back, the diff, and the
+check after writing. Text from the plan goes through the reporters' neutraliser."""
+
+from __future__ import annotations
+
+from speccheck.reporters.neutral import plain as _plain
+from speccheck.reporters.text import finding_lines
+from speccheck.solver import Outcome, Proposal
+
+
+def _at(f) -> str:
+    return f"{f.rule} at line {f.location.line}"
+
+
+def _proposal_lines(p: Proposal) -> list[str]:
+    lines = [f"{_plain(p.title)}  ({_at(p.finding)})"]
+    if p.chosen is not None:
+        lines.append(f"  change: {_plain(p.chosen.summary)}")
+        lines.append(f"  gives:  {_plain(p.chosen.result)}")
+        others = [o for o in p.options if o is not p.chosen]
+        for other in others:
+            lines.append(f"  or:     {_plain(other.summary)}: {_plain(other.result)}")
+        cleared = ", ".join(_at(f) for f in p.clears)
+        lines.append(f"  clears: {cleared}")
+    else:
+        lines.append(f"  held back: {_plain(p.held)}")
+        for option in p.options:
+            lines.append(f"  tried:  {_plain(option.summary)}: {_plain(option.result)}")
+    if p.note:
+        lines.append(f"  note:   {_plain(p.note)}")
+    if p.source:
+        lines.append(f"  from:   {_plain(p.source)}")
+    return lines
+
+
+def render(outcome: Outcome, show_diff: bool = True) -> str:
+    name = _plain(str(outcome.path))
+    if outcome.refused:
+        return f"{name}: nothing solved: {outcome.refused}\n"
+    live = [f for f in outcome.before.findings if not f.waived]
+    taken = outcome.taken
+    held = [p for p in outcome.proposals if p.chosen is None]
+    out = [f"{name}: {len(live)} finding{'s' if len(live) != 1 else ''}; "
+           f"{len(taken)} change{'s' if len(taken) != 1 else ''} proposed"
+           + (f", {len(held)} held back" if held else "")
+           + (f", {len(outcome.unsolved)} with no computed remedy" if outcome.unsolved else ""), ""]
+    for p in taken:
+        out += _proposal_lines(p) + [""]
+    if held:
+        out.append("held back (the plan stays as it is there):")
+        for p in held:
+            out += ["  " + line for line in _proposal_lines(p)]
+        out.append("")
+    if outcome.unsolved:
+        out.append("no computed remedy (see each finding's fix):")
+        out += [f"  {line}" for f in outcome.unsolved for line in finding_lines(f)[:1]]
+        out.append("")
+    if show_diff and outcome.new_text != outcome.text:
+        out += [_plain(line) for line in outcome.diff().splitlines()]
+        out.append("")
+    return "\n".join(out) + "\n"
+
+
+def render_after(outcome: Outcome) -> str:
+    """After writing: which findings the changes cleared and which remain."""
+    if outcome.after is None:
+        return ""
+    before = {f.fingerprint: f for f in outcome.before.findings if not f.waived}
+    after = [f for f in outcome.after.findings if not f.waived]
+    gone = [f for fp, f in before.items() if fp not in {a.fingerprint for a in after}]
+    out = [f"written {_plain(str(outcome.path))}; checked again: {len(gone)} finding{'s' if len(gone) != 1 else ''} "
+           f"gone, {len(after)} remain{'s' if len(after) == 1 else ''}"]
+    for f in gone:
+        out.append(f"  gone:   {_at(f)}: {_plain(f.message)}")
+    for f in after:
+        out.append(f"  remains: {finding_lines(f)[0]}")
+    return "\n".join(out) + "\n"

@@ -1,0 +1,248 @@
+"""speccheck solve: proposals that clear what they claim, written back with every other byte kept."""
+
+from __future__ import annotations
+
+import difflib
+import math
+import shutil
+
+import pytest
+from click.testing import CliRunner
+from conftest import EXAMPLES, ROOT
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from speccheck import engine, solver
+from speccheck.cli import main
+from speccheck.formulas import picks
+from speccheck.solver._formulas import audio, resonators
+
+PLANS = sorted(EXAMPLES.glob("*.yaml")) + sorted((ROOT / "speccheck" / "starters").glob("*.yaml"))
+
+
+def _line(text: str, offset: int) -> int:
+    return text.count("\n", 0, offset) + 1
+
+
+def _untouched_lines_same(old: str, new: str, touched: set[int]) -> None:
+    a, b = old.splitlines(keepends=True), new.splitlines(keepends=True)
+    for tag, i1, i2, _, _ in difflib.SequenceMatcher(None, a, b, autojunk=False).get_opcodes():
+        if tag in ("replace", "delete"):
+            assert set(range(i1 + 1, i2 + 1)) <= touched, (tag, a[i1:i2])
+
+
+def _live(result) -> dict:
+    return {f.fingerprint: f for f in result.findings if not f.waived}
+
+
+def _solve_copy(plan, tmp_path, series="E12"):
+    copy = tmp_path / plan.name
+    shutil.copyfile(plan, copy)
+    outcome = solver.solve(copy, series=series)
+    return copy, outcome
+
+
+# ---- every example and starter ---------------------------------------------------------------
+
+@pytest.mark.parametrize("plan", PLANS, ids=lambda p: p.name)
+def test_apply_keeps_untouched_lines_and_clears_what_it_claims(plan, tmp_path):
+    copy, outcome = _solve_copy(plan, tmp_path)
+    old = copy.read_text("utf-8")
+    if outcome.new_text == outcome.text:
+        assert not outcome.taken
+        return
+    after = solver.write(outcome)
+    new = copy.read_text("utf-8")
+    assert new == outcome.new_text
+    _untouched_lines_same(old, new, {_line(old, e.start) for e in outcome.edits})
+    comments = [ln for ln in old.splitlines() if ln.lstrip().startswith("#")]
+    assert [ln for ln in new.splitlines() if ln.lstrip().startswith("#")] == comments
+    before, now = _live(outcome.before), _live(after)
+    for proposal in outcome.taken:
+        for gone in proposal.clears:
+            assert gone.fingerprint not in now, (proposal.title, gone.message)
+    assert set(now) <= set(before), [f.message for fp, f in now.items() if fp not in before]
+
+
+def test_beginner_plan_gets_real_parts_and_keeps_its_comments(tmp_path):
+    copy, outcome = _solve_copy(EXAMPLES / "beginner-plan.yaml", tmp_path)
+    titles = {p.title: p for p in outcome.taken}
+    # wiring.cap-voltage: C33 sees 12 V; at the 80 % derating it needs 12 / 0.8 = 15 V, and the
+    # next stocked rating is 16 V (R5 of ISO 3); C31 sees 6 V: 7.5 V -> 10 V.
+    assert titles["C33 voltage rating"].chosen.summary == "C33 rated 16 V"
+    assert titles["C31 voltage rating"].chosen.summary == "C31 rated 10 V"
+    # freqplan.crystal-load: 20 pF specified, 3 pF stray assumed: C = 2 (20 - 3) = 34 pF, nearest
+    # E12 33 pF: 33 * 33 / 66 + 3 = 19.5 pF (hand arithmetic), inside the rule's 10 % share.
+    crystal = titles["X1 loading capacitors"]
+    assert crystal.chosen.summary.startswith("C6 = C7 = 33 pF")
+    assert "19.5 pF" in crystal.chosen.result
+    assert "wiring.speaker-coupling" in {f.rule for p in outcome.taken for f in p.clears}
+    after = solver.write(outcome)
+    assert not {"wiring.cap-voltage", "wiring.speaker-coupling", "wiring.tank-return"} & \
+        {f.rule for f in after.findings}
+    text = copy.read_text("utf-8")
+    assert text.startswith("# A first build plan from a club beginner")
+    assert "stray: 3 pF" in text and "voltage_rating: 16 V, ends: [V12, GND], positive: V12}" in text
+
+
+def test_same_plan_same_proposal(tmp_path):
+    plan = EXAMPLES / "beginner-plan.yaml"
+    one, two = solver.solve(plan), solver.solve(plan)
+    assert one.new_text == two.new_text
+    assert [(p.title, p.chosen and p.chosen.summary) for p in one.proposals] == \
+        [(p.title, p.chosen and p.chosen.summary) for p in two.proposals]
+
+
+def test_a_change_that_fires_another_rule_is_held_back():
+    # Broadcast FM at 15 kHz and voice at 3 kHz: no low-pass corner can serve both (the rule wants
+    # it above 13.5 kHz and below 9 kHz), so every option would bring a new finding.
+    outcome = solver.solve(EXAMPLES / "freq-broadcast-through-narrow.yaml")
+    held = [p for p in outcome.proposals if p.chosen is None]
+    assert held and "would bring a new finding" in held[0].held
+    assert "R10" not in outcome.diff()
+
+
+def test_tank_capacitor_centres_the_if():
+    outcome = solver.solve(EXAMPLES / "freq-tank-off-if.yaml")
+    (proposal,) = outcome.taken
+    # f0 = 1/(2 pi sqrt(L C)) (Wikibooks, Practical Electronics / Parallel RLC): with the coil's
+    # 0.9 to 1.1 mH slug the geometric centre is sqrt(0.99) mH, and 455 kHz needs
+    # 1 / ((2 pi 455e3)^2 * 0.99499e-3) = 122.97 pF: E12 120 pF (hand arithmetic).
+    assert proposal.chosen.summary.endswith("120 pF")
+
+
+def test_fuse_rating_is_the_r10_value():
+    outcome = solver.solve(EXAMPLES / "power-fuse-too-large.yaml")
+    (proposal,) = outcome.taken
+    value = float(proposal.chosen.summary.split()[1]) * 1e-3  # "F1 400 mA"
+    # IEC 60127-1 Annex A, R10: 1, 1.25, 1.6, 2, 2.5, 3.15, 4, 5, 6.3, 8 x 10^n A
+    assert any(math.isclose(value, r * 0.1) for r in (1.0, 1.25, 1.6, 2.0, 2.5, 3.15, 4.0, 5.0, 6.3, 8.0))
+    assert {f.rule for f in proposal.clears} == {"power.fuse-size", "power.fuse-wire"}
+
+
+def test_input_errors_are_never_solved_or_written(tmp_path):
+    bad = tmp_path / "bad.yaml"
+    text = (EXAMPLES / "beginner-plan.yaml").read_text("utf-8").replace("value: 33 pF, dielectric: ceramic, ends: "
+                                                                        "[U1.osc_base", "value: 33 bananas, dielectric: "
+                                                                        "ceramic, ends: [U1.osc_base")
+    bad.write_text(text, "utf-8")
+    outcome = solver.solve(bad)
+    assert outcome.refused and not outcome.proposals
+    with pytest.raises(solver.SolveTrouble):
+        solver.write(outcome)
+    result = CliRunner().invoke(main, ["solve", str(bad), "--apply"])
+    assert result.exit_code == 2 and "input error" in result.output
+    assert bad.read_text("utf-8") == text
+
+
+def test_cli_shows_a_diff_and_apply_reports_what_remains(tmp_path):
+    copy = tmp_path / "plan.yaml"
+    shutil.copyfile(EXAMPLES / "beginner-plan.yaml", copy)
+    original = copy.read_text("utf-8")
+    shown = CliRunner().invoke(main, ["solve", str(copy)])
+    assert shown.exit_code == 0, shown.output
+    assert f"+++ {copy} (solved)" in shown.output and "-  C33:" in shown.output
+    assert copy.read_text("utf-8") == original  # no --apply: nothing written
+    applied = CliRunner().invoke(main, ["solve", str(copy), "--apply"])
+    assert applied.exit_code == 0, applied.output
+    assert "checked again:" in applied.output and "remains: " in applied.output
+    assert copy.read_text("utf-8") != original
+
+
+def test_series_setting_picks_from_e24_and_e96(tmp_path):
+    _, e96 = _solve_copy(EXAMPLES / "freq-broadcast-through-narrow.yaml", tmp_path, "E96")
+    damping = next(p for p in e96.taken if p.title.startswith("damping"))
+    ohms = damping.chosen.changes[0].value  # e.g. "9.53 kohm"
+    mantissa = float(ohms.split()[0])
+    assert any(math.isclose(mantissa, v) for v in picks.E96)
+
+
+# ---- the arithmetic of the picks, against its sources ----------------------------------------
+
+def test_e96_is_the_rounded_geometric_series():
+    # IEC 60063: the E96 values are 10^(i/96) rounded to three figures.
+    assert len(picks.E96) == 96
+    for i, value in enumerate(picks.E96):
+        assert value == round(10 ** (i / 96), 2)
+
+
+def test_series_walks():
+    # IEC 60063 E12: ... 3.9, 4.7, 5.6 ...
+    assert picks.preferred_up(4.8e3, "E12") == 5.6e3
+    assert picks.preferred_down(4.8e3, "E12") == 4.7e3
+    assert picks.preferred_up(4.7e-12, "E12") == 4.7e-12
+    assert picks.preferred_around(34e-12, "E12", 2) == [27e-12, 33e-12, 39e-12, 47e-12]
+    assert picks.series_values("E12", 1e3, 1e4)[:3] == [1e3, 1.2e3, 1.5e3]
+
+
+def test_capacitor_voltage_ratings():
+    # ISO 3 R5 (1, 1.6, 2.5, 4, 6.3 x 10^n) are all stocked ratings; 35 and 50 V common practice
+    for r5 in (6.3, 10.0, 16.0, 25.0, 40.0, 63.0, 100.0):
+        assert r5 in picks.CAPACITOR_VOLTAGES
+    assert picks.voltage_rating_up(7.5) == 10.0
+    assert picks.voltage_rating_up(15.0) == 16.0
+    assert picks.voltage_rating_up(16.0) == 16.0
+    assert picks.voltage_rating_up(1000.0) is None
+
+
+def test_equal_loading_capacitors():
+    # Crystal makers' application notes: C1 = C2 = 2 (C_L - C_stray); 18 pF load with 5 pF stray
+    # takes 26 pF each (the worked figure in those notes).
+    assert math.isclose(picks.equal_load_capacitors(18e-12, 5e-12), 26e-12)
+    assert math.isclose(resonators.series_load(26e-12, 26e-12, 5e-12), 18e-12)
+
+
+def test_damping_resistor_in_parallel_with_the_coil_loss():
+    # Parallel resistances (circuit theory): 12 kohm across 60 kohm is 10 kohm.
+    assert math.isclose(picks.damping_for(10e3, 60e3), 12e3)
+    assert picks.damping_for(10e3, None) == 10e3
+    assert math.isinf(picks.damping_for(10e3, 8e3))
+
+
+def test_rc_partner_for_the_broadcast_time_constants():
+    # ITU-R BS.450-3: 50 us and 75 us; with 10 nF, 5 kohm and 7.5 kohm (tau = R C).
+    assert math.isclose(picks.rc_partner(50e-6, 10e-9), 5e3)
+    assert math.isclose(picks.rc_partner(75e-6, 10e-9), 7.5e3)
+
+
+def test_coupling_capacitor_for_a_corner():
+    # audio.coupling-corner's explanation (circuit theory): 470 uF into 8 ohm turns over at 42.3 Hz.
+    assert math.isclose(picks.rc_high_pass_c(8.0, 42.33), 470e-6, rel_tol=1e-3)
+    assert math.isclose(audio.rc_corner(8.0, 470e-6), 42.33, rel_tol=1e-3)
+
+
+def test_centre_capacitance_puts_the_if_mid_range():
+    # f0 = 1/(2 pi sqrt(L C)) (Wikibooks, Practical Electronics / Parallel RLC); common practice:
+    # 1 mH with about 120 pF resonates near 455 kHz.
+    c = picks.centre_capacitance(455e3, 0.9e-3, 1.1e-3)
+    assert math.isclose(c, 1 / ((2 * math.pi * 455e3) ** 2 * math.sqrt(0.9e-3 * 1.1e-3)))
+    assert 118e-12 < c < 125e-12
+    low, high = resonators.resonance(1.1e-3, c), resonators.resonance(0.9e-3, c)
+    assert math.isclose(picks.position_in_range(455e3, low, high), 0.5)
+
+
+# ---- a property test over generated plans ----------------------------------------------------
+
+BEGINNER = (EXAMPLES / "beginner-plan.yaml").read_text("utf-8")
+
+
+@settings(max_examples=12, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(load=st.sampled_from([8, 10, 12, 12.5, 15, 16, 18, 20, 22, 27, 30, 32]),
+       rating=st.sampled_from(["4 V", "6.3 V", "10 V", "16 V"]),
+       cap=st.sampled_from(["68 pF", "82 pF", "100 pF", "150 pF", "180 pF"]),
+       series=st.sampled_from(["E12", "E24", "E96"]))
+def test_generated_plans_never_gain_a_finding(tmp_path_factory, load, rating, cap, series):
+    text = (BEGINNER.replace("load_capacitance: 20 pF", f"load_capacitance: {load} pF")
+            .replace("voltage_rating: 10 V, ends: [V12", f"voltage_rating: {rating}, ends: [V12")
+            .replace("value: 120 pF, dielectric: ceramic, ends: [U1.quad", f"value: {cap}, dielectric: ceramic, "
+                                                                          "ends: [U1.quad"))
+    plan = tmp_path_factory.mktemp("gen") / "plan.yaml"
+    plan.write_text(text, "utf-8")
+    outcome = solver.solve(plan, series=series)
+    after = engine.check_text(outcome.new_text, str(plan))
+    before, now = _live(outcome.before), _live(after)
+    assert set(now) <= set(before)
+    for proposal in outcome.taken:
+        assert all(f.fingerprint not in now for f in proposal.clears)
+    _untouched_lines_same(text, outcome.new_text, {_line(text, e.start) for e in outcome.edits})
+    assert solver.solve(plan, series=series).new_text == outcome.new_text  # repeatable
