@@ -107,7 +107,10 @@ class _Checker:
         self.path, self.settings = path, settings
 
     def __call__(self, text: str) -> engine.FileResult:
-        return engine.check_loaded(loader.load_text(text, str(self.path), self.path.parent), self.settings)
+        return engine.check_loaded(self.load(text), self.settings)
+
+    def load(self, text: str) -> loader.Loaded:
+        return loader.load_text(text, str(self.path), self.path.parent, self.settings.root or None)
 
 
 def read_plan(path: Path) -> tuple[str, bool]:
@@ -130,7 +133,7 @@ def solve(path: str | Path, settings: Settings | None = None, series: str = "E12
     settings = settings or Settings()
     text, bom = read_plan(path)
     check = _Checker(path, settings)
-    loaded = loader.load_text(text, str(path), path.parent)
+    loaded = check.load(text)
     before = engine.check_loaded(loaded, settings)
     outcome = Outcome(path, text, bom, before, new_text=text)
     if not loaded.can_check or loaded.doc is None:

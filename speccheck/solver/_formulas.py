@@ -8,8 +8,8 @@ try:  # pragma: no cover - depends on which layout is present
 except ImportError:  # pragma: no cover
     from types import SimpleNamespace
 
-    from speccheck import rf as resonators  # type: ignore[no-redef]
     from speccheck import rf as matching  # type: ignore[no-redef]
+    from speccheck import rf as resonators  # type: ignore[no-redef]
 
     audio = SimpleNamespace(rc_corner=lambda ohms, farads: rf_corner(ohms * farads),  # type: ignore[assignment]
                             corner_from_tau=resonators.rc_corner, rc_time_constant=resonators.rc_time_constant)

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 from speccheck import schema, units
 from speccheck.config import Settings
@@ -33,8 +34,8 @@ def remedy(rule_id: str):
 
 @dataclass
 class Situation:
-    loaded: object  # loader.Loaded
-    before: object  # engine.FileResult
+    loaded: Any  # loader.Loaded
+    before: Any  # engine.FileResult
     settings: Settings
     series: str = "E12"
     proposed_names: set = field(default_factory=set)
@@ -97,7 +98,7 @@ class Situation:
 
 
 def _within(path: str, prefix: str) -> bool:
-    return path == prefix or path.startswith(prefix + ".") or path.startswith(prefix + "[")
+    return path == prefix or path.startswith((prefix + ".", prefix + "["))
 
 
 def number(finding: Finding, name: str) -> float | None:
@@ -135,7 +136,7 @@ def cap_voltage(s: Situation, f: Finding) -> Proposal | None:
     if part is None or not working or not rating or not isinstance(allowed, float):
         return None
     share = allowed / rating
-    options = []
+    options: list[Option] = []
     pick = picks.voltage_rating_up(working / share)
     while pick is not None and len(options) < 2:
         options.append(Option([_set_or_add(part, "voltage_rating", units.plan_text(pick, "V"))],
@@ -570,7 +571,9 @@ def input_match(s: Situation, f: Finding) -> Proposal | None:
     parts = [s.build.part(ref) for ref in stage.parts]
     coil = next((p for p in parts if p is not None and p.kind == "inductor"), None)
     cap = next((p for p in parts if p is not None and p.kind == "capacitor"), None)
-    if None in (freq, rs, rl, l_ideal, c_ideal, coil, cap) or coil.value is None or cap.value is None:
+    if freq is None or rs is None or rl is None or l_ideal is None or c_ideal is None:
+        return None
+    if coil is None or cap is None or coil.value is None or cap.value is None:
         return None
     zin = matching.zin_series_l_shunt_c if stage.topology == "series-l-shunt-c" else matching.zin_shunt_c_series_l
     ranked = []
