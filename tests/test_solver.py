@@ -14,8 +14,7 @@ from hypothesis import strategies as st
 
 from speccheck import engine, solver
 from speccheck.cli import main
-from speccheck.formulas import picks
-from speccheck.solver._formulas import audio, resonators
+from speccheck.formulas import audio, picks, preferred, resonators
 
 PLANS = sorted(EXAMPLES.glob("*.yaml")) + sorted((ROOT / "speccheck" / "starters").glob("*.yaml"))
 
@@ -154,15 +153,15 @@ def test_series_setting_picks_from_e24_and_e96(tmp_path):
     damping = next(p for p in e96.taken if p.title.startswith("damping"))
     ohms = damping.chosen.changes[0].value  # e.g. "9.53 kohm"
     mantissa = float(ohms.split()[0])
-    assert any(math.isclose(mantissa, v) for v in picks.E96)
+    assert any(math.isclose(mantissa, v) for v in preferred.E96)
 
 
 # ---- the arithmetic of the picks, against its sources ----------------------------------------
 
 def test_e96_is_the_rounded_geometric_series():
     # IEC 60063: the E96 values are 10^(i/96) rounded to three figures.
-    assert len(picks.E96) == 96
-    for i, value in enumerate(picks.E96):
+    assert len(preferred.E96) == 96
+    for i, value in enumerate(preferred.E96):
         assert value == round(10 ** (i / 96), 2)
 
 

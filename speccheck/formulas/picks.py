@@ -1,30 +1,15 @@
 """Picking buyable values: E-series neighbours of an ideal value, capacitor voltage ratings,
 and the small inverse formulas a solver needs (the value that gives a wanted figure).
 
-SI floats in and out; no model, YAML or pint. The E12 and E24 tables live in
-formulas/preferred.py (IEC 60063); E96 is here until it joins them.
+SI floats in and out; no model, YAML or pint. The series tables (IEC 60063 E12, E24, E96) live in
+formulas/preferred.py.
 """
 
 from __future__ import annotations
 
 import math
-from functools import lru_cache
 
-try:  # formulas/preferred.py (issue 8's layout); before it lands, the same tables in rf.py
-    from speccheck.formulas.preferred import E12, E24
-except ImportError:  # pragma: no cover
-    from speccheck.rf import E12, E24
-
-# E96 (the 1 % series), IEC 60063: three figures, each 10^(i/96) rounded; the test compares every
-# entry with that definition.
-E96 = (1.00, 1.02, 1.05, 1.07, 1.10, 1.13, 1.15, 1.18, 1.21, 1.24, 1.27, 1.30, 1.33, 1.37, 1.40, 1.43,
-       1.47, 1.50, 1.54, 1.58, 1.62, 1.65, 1.69, 1.74, 1.78, 1.82, 1.87, 1.91, 1.96, 2.00, 2.05, 2.10,
-       2.15, 2.21, 2.26, 2.32, 2.37, 2.43, 2.49, 2.55, 2.61, 2.67, 2.74, 2.80, 2.87, 2.94, 3.01, 3.09,
-       3.16, 3.24, 3.32, 3.40, 3.48, 3.57, 3.65, 3.74, 3.83, 3.92, 4.02, 4.12, 4.22, 4.32, 4.42, 4.53,
-       4.64, 4.75, 4.87, 4.99, 5.11, 5.23, 5.36, 5.49, 5.62, 5.76, 5.90, 6.04, 6.19, 6.34, 6.49, 6.65,
-       6.81, 6.98, 7.15, 7.32, 7.50, 7.68, 7.87, 8.06, 8.25, 8.45, 8.66, 8.87, 9.09, 9.31, 9.53, 9.76)
-
-SERIES = {"E12": E12, "E24": E24, "E96": E96}
+from speccheck.formulas import preferred
 
 # Rated DC voltages of aluminium electrolytic and ceramic capacitors as sold. 4, 6.3, 10, 16, 25,
 # 40, 63 and 100 V are the R5 series of ISO 3 (which IEC 60384-1 names for rated voltages);
@@ -35,21 +20,15 @@ CAPACITOR_VOLTAGES = (4.0, 6.3, 10.0, 16.0, 25.0, 35.0, 40.0, 50.0, 63.0, 100.0,
 
 def series_values(name: str, low: float, high: float) -> list[float]:
     """Every value of the E-series `name` from low to high (inclusive), ascending."""
-    table = SERIES[name]
+    table = preferred.SERIES[name]
     if not (0 < low <= high and math.isfinite(high)):
         raise ValueError("a range of positive values is needed")
     out = []
     for exponent in range(math.floor(math.log10(low)) - 1, math.floor(math.log10(high)) + 2):
-        for value in _decade(exponent, table):
+        for value in preferred.decade_values(exponent, table):
             if low * (1 - 1e-9) <= value <= high * (1 + 1e-9):
                 out.append(value)
     return sorted(set(out))
-
-
-@lru_cache(maxsize=256)
-def _decade(exponent: int, table: tuple) -> tuple:
-    """One decade of a series, rounded to 6 digits so that 4.7e-9 stays 4.7e-9."""
-    return tuple(float(f"{mantissa * 10.0 ** exponent:.6g}") for mantissa in table)
 
 
 def preferred_up(value: float, name: str) -> float:

@@ -5,7 +5,8 @@ from __future__ import annotations
 
 from speccheck.reporters.neutral import plain as _plain
 from speccheck.reporters.text import finding_lines
-from speccheck.solver import Outcome, Proposal
+from speccheck.solver.base import Proposal
+from speccheck.solver.run import Outcome
 
 
 def _at(f) -> str:

@@ -1,0 +1,255 @@
+"""Remedies for wiring, power and the parts a stage lacks: capacitor ratings and polarity, coil and
+crystal returns, fuse rating and speed, heat sink, output network and input bypass."""
+
+from __future__ import annotations
+
+import math
+
+from speccheck import units
+from speccheck.findings import Finding
+from speccheck.formulas import audio, picks
+from speccheck.solver.base import (
+    Change,
+    Option,
+    Proposal,
+    Situation,
+    number,
+    remedy,
+    set_or_add,
+    value_change,
+)
+
+# ---- wiring -----------------------------------------------------------------------------------
+
+@remedy("wiring.cap-voltage")
+def cap_voltage(s: Situation, f: Finding) -> Proposal | None:
+    part = s.part_for(f)
+    working = (number(f, "DC across") or 0.0) + (number(f, "AC peak") or 0.0)
+    rating = number(f, "rating")
+    allowed = next((v.value for v in f.values if v.name.startswith("allowed at")), None)
+    if part is None or not working or not rating or not isinstance(allowed, float):
+        return None
+    share = allowed / rating
+    options: list[Option] = []
+    pick = picks.voltage_rating_up(working / share)
+    while pick is not None and len(options) < 2:
+        options.append(Option([set_or_add(part, "voltage_rating", units.plan_text(pick, "V"))],
+                              f"{part.name} rated {units.fmt(pick, 'V')}",
+                              f"{working:.3g} V is {working / pick:.0%} of {units.fmt(pick, 'V')} (keep under "
+                              f"{share:.0%})"))
+        pick = picks.voltage_rating_up(pick * 1.001)
+    return Proposal(f, f"{part.name} voltage rating", options,
+                    source="stocked capacitor voltage ratings (R5 of ISO 3, and common practice); derating: the rule's")
+
+
+def _polarity(s: Situation, f: Finding, positive: str | None, why: str) -> Proposal | None:
+    part = s.part_for(f)
+    if part is None or not positive:
+        return None
+    change = set_or_add(part, "positive", positive)
+    return Proposal(f, f"{part.name} polarity", [Option([change], f"{part.name} positive: {positive}", why)],
+                    source="common practice: + toward the higher DC potential")
+
+
+def _higher_end(s: Situation, part) -> tuple[str, str] | None:
+    known = s.build.nets.across(part)
+    if known is None:
+        return None
+    a, pa, b, pb, _ = known
+    if pa.volts == pb.volts:
+        return None
+    high, low = (a, b) if pa.volts > pb.volts else (b, a)
+    return high, f"{high} sits at {max(pa.volts, pb.volts):g} V, {low} at {min(pa.volts, pb.volts):g} V"
+
+
+@remedy("wiring.polarity-unstated")
+def polarity_unstated(s: Situation, f: Finding) -> Proposal | None:
+    part = s.part_for(f)
+    found = _higher_end(s, part) if part is not None else None
+    return _polarity(s, f, *found) if found else None
+
+
+@remedy("wiring.polarity-reversed")
+def polarity_reversed(s: Situation, f: Finding) -> Proposal | None:
+    return polarity_unstated(s, f)
+
+
+@remedy("wiring.speaker-coupling")
+def speaker_coupling(s: Situation, f: Finding) -> Proposal | None:
+    part = s.part_for(f)
+    stage = next((st for st in s.build.stages("audio-amp") if part is not None and st.coupling == part.name), None)
+    load = s.build.part(stage.load) if stage is not None else None
+    if part is None or load is None or len(part.ends) != 2:
+        return None
+    shared = [end for end in part.ends if end in load.ends]
+    if len(shared) != 1:
+        return None
+    nets = (part.other_end(shared[0]), shared[0])  # (amplifier side, speaker side)
+    return _polarity(s, f, nets[0], f"+ toward the amplifier output {nets[0]}, - toward the speaker")
+
+
+def _swap_end(s: Situation, f: Finding, part, old: str, new: str, why: str, title: str) -> Proposal | None:
+    if old not in part.ends or new in part.ends:
+        return None
+    index = part.ends.index(old)
+    path = part.places["ends"] + (index,)
+    return Proposal(f, title, [Option([Change(path, new)], f"{part.name} ends: {old} -> {new}", why)],
+                    source="common practice (the fix the rule names)")
+
+
+@remedy("wiring.tank-return")
+def tank_return(s: Situation, f: Finding) -> Proposal | None:
+    coil = s.part_for(f)
+    far = next((v.value for v in f.values if v.name == "coil far end"), None)
+    pin = next((v.value for v in f.values if v.name == "pin"), None)
+    dev = s.build.device(str(pin).split(".")[0]) if pin else None
+    if coil is None or not isinstance(far, str) or dev is None or not dev.rail:
+        return None
+    return _swap_end(s, f, coil, far, dev.rail,
+                     f"the coil returns {pin} to its supply {dev.rail}; better still through about 10 ohm with "
+                     f"100 nF to ground at the junction", f"{coil.name} return")
+
+
+@remedy("wiring.crystal-dc")
+def crystal_dc(s: Situation, f: Finding) -> Proposal | None:
+    part = s.part_for(f)
+    if part is None or len(part.ends) != 2:
+        return None
+    nets = s.build.nets
+    pots = [nets.dc(end) for end in part.ends]
+    if any(p is None for p in pots):
+        return None
+    pin_index = 0 if "." in part.ends[0] else 1
+    pin, other = part.ends[pin_index], part.ends[1 - pin_index]
+    dev = s.build.device(pin.split(".")[0])
+    if dev is None or not dev.rail or nets.dc(dev.rail) is None:
+        return None
+    if abs(nets.dc(dev.rail).volts - pots[pin_index].volts) > 1e-9:
+        return None  # the pin does not sit at its supply: returning there would not remove the DC
+    return _swap_end(s, f, part, other, dev.rail,
+                     f"both ends at {pots[pin_index].volts:g} V; {dev.rail} must be bypassed to ground at the crystal",
+                     f"{part.name} return")
+
+
+# ---- power ------------------------------------------------------------------------------------
+
+@remedy("power.fuse-size")
+def fuse_size(s: Situation, f: Finding) -> Proposal | None:
+    part = s.part_for(f)
+    preferred = number(f, "preferred")
+    if part is None or not preferred:
+        return None
+    return Proposal(f, f"{part.name} rating", [Option(
+        [set_or_add(part, "current_rating", units.plan_text(preferred, "A"))], f"{part.name} {units.fmt(preferred, 'A')}",
+        f"normal current {units.fmt(number(f, 'normal current') or 0.0, 'A')} within the derated share of "
+        f"{units.fmt(preferred, 'A')}")], source="R10 series, IEC 60127-1 Annex A (the rule's pick)")
+
+
+@remedy("power.fuse-inrush")
+def fuse_inrush(s: Situation, f: Finding) -> Proposal | None:
+    part = s.part_for(f)
+    if part is None or part.kind != "fuse" or part.speed == "time-lag":
+        return None
+    return Proposal(f, f"{part.name} speed", [Option([set_or_add(part, "speed", "time-lag")],
+                                                     f"{part.name} time-lag", "a time-lag fuse rides through the "
+                                                     "charging surge of the bulk capacitor")],
+                    source="IEC 60127-2 time-lag characteristic (the rule's comparison)")
+
+
+@remedy("power.heat")
+def heat(s: Situation, f: Finding) -> Proposal | None:
+    need = number(f, "heat sink needed θSA")
+    dev = s.device_for(f)
+    if dev is None or not need or need <= 0:
+        return None
+    options = []
+    for pick in _heat_sink_steps(need):
+        text = units.plan_text(pick, "°C/W")
+        if dev.heat_sink is not None and dev.heat_sink.theta_sa is not None:
+            change = Change(dev.heat_sink.places["theta_sa"], text)
+        elif dev.heat_sink is not None:
+            change = Change(dev.heat_sink.doc_path, text, key="theta_sa")
+        else:
+            change = Change(dev.doc_path, {"theta_sa": text}, key="heat_sink")
+        options.append(Option([change], f"{dev.name} heat sink θSA {units.fmt(pick, '°C/W')}",
+                              f"needs {units.fmt(need, '°C/W')} or less; choose a heat sink rated at or below "
+                              f"{units.fmt(pick, '°C/W')} in its mounting"))
+    return Proposal(f, f"{dev.name} heat sink", options,
+                    source="θSA = (Tj,max - Ta)/P - θJC - θCS (the rule's figure), rounded down")
+
+
+def _heat_sink_steps(need: float) -> list[float]:
+    """Round numbers at or below the needed θSA (heat sinks have no preferred series): two figures."""
+    exponent = math.floor(math.log10(need)) - 1
+    first = math.floor(need / 10 ** exponent) * 10 ** exponent
+    return [float(f"{first:.2g}")] + ([float(f"{first * 0.8:.2g}")] if first * 0.8 > 0 else [])
+
+
+def _pins(dev, role: str) -> list[str]:
+    if dev is None or dev.profile is None:
+        return []
+    return [f"{dev.name}.{pin.name}" for pin in dev.profile.pins.values() if pin.role == role]
+
+
+def add_output_network(s: Situation, f: Finding, stage) -> Proposal | None:
+    """The usual series R-C from the output to ground: 10 ohm with 100 nF (the rule's fix)."""
+    dev = s.build.device(stage.device)
+    outs, ground = _pins(dev, "audio-out"), s.ground()
+    if not outs or ground is None:
+        return None
+    r_name, c_name, middle = s.new_name("R"), s.new_name("C"), s.new_net("OUT_RC")
+    ohms, farads = 10.0, 100e-9
+    changes = [
+        Change(("parts",), {"kind": "resistor", "value": units.plan_text(ohms, "Ω"), "ends": [outs[0], middle]},
+               key=r_name),
+        Change(("parts",), {"kind": "capacitor", "value": units.plan_text(farads, "F"), "dielectric": "film",
+                            "ends": [middle, ground]}, key=c_name),
+        Change(stage.doc_path, {"resistor": r_name, "capacitor": c_name}, key="output_network"),
+    ]
+    return Proposal(f, f"output network of {dev.name}", [Option(
+        changes, f"add {r_name} {units.fmt(ohms, 'Ω')} and {c_name} {units.fmt(farads, 'F')} in series from "
+                 f"{outs[0]} to {ground}",
+        f"turnover {units.fmt(audio.rc_corner(ohms, farads), 'Hz')}, far above the audio band")],
+        note="fit them close to the amplifier's output and ground pins",
+        source="common practice (audio amplifier IC application circuits)")
+
+
+@remedy("audio.input-bypass")
+def input_bypass(s: Situation, f: Finding) -> Proposal | None:
+    stage = s.stage_for(f)
+    if stage is None or stage.input_bypass is not None:
+        return None
+    dev = s.build.device(stage.device)
+    inputs, ground = _pins(dev, "input"), s.ground()
+    if not inputs or ground is None:
+        return None
+    wired = {end for part in s.build.parts.values() for end in part.ends}
+    inputs.sort(key=lambda net: (net not in wired, "plus" not in net and "+" not in net, net))
+    name = s.new_name("C")
+    farads = 470e-12
+    changes = [Change(("parts",), {"kind": "capacitor", "value": units.plan_text(farads, "F"), "dielectric": "ceramic",
+                                   "ends": [inputs[0], ground]}, key=name),
+               Change(stage.doc_path, name, key="input_bypass")]
+    return Proposal(f, f"RF bypass at {dev.name}'s input", [Option(
+        changes, f"add {name} {units.fmt(farads, 'F')} from {inputs[0]} to {ground}",
+        "shorts RF at the amplifier input; against a 10 kohm source it turns over near 34 kHz")],
+        note="fit it right at the input pin", source="common practice (the rule's fix)")
+
+
+@remedy("audio.output-network")
+def output_network(s: Situation, f: Finding) -> Proposal | None:
+    stage = s.stage_for(f)
+    net = stage.output_network if stage is not None else None
+    if net is None:
+        return add_output_network(s, f, stage)
+    res, cap = s.build.part(net.resistor), s.build.part(net.capacitor)
+    if res is None or cap is None or res.value is None or cap.value is None:
+        return None
+    lowest = s.settings.rule_settings.get("audio.output-network", {}).get("lowest_corner", 20e3)
+    most = 1 / (2 * math.pi * res.value.si * lowest)
+    series = s.series_for("capacitor")
+    options = []
+    for c in reversed(picks.series_values(series, most / 3, most)[-2:]):
+        options.append(Option([value_change(cap, c, "F")], f"{cap.name} {units.fmt(c, 'F')}",
+                              f"turnover {units.fmt(audio.rc_corner(res.value.si, c), 'Hz')}, above the audio band"))
+    return Proposal(f, f"output network {cap.name}", options, source=f"f = 1/(2 pi R C); IEC 60063 {series}")
