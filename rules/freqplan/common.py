@@ -1,8 +1,13 @@
-"""Helpers the freqplan rules share: settings read with a fallback, percentages, missing inputs."""
+"""Helpers the freqplan rules share: settings read with a fallback, percentages, missing inputs, and the
+share of a signal's spectrum a response passes (with the levels it is graded by)."""
 
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING
+
+from speccheck.chain import khz, necessary
+from speccheck.formulas import fmspectrum
 
 if TYPE_CHECKING:
     from speccheck.chain import Conversion
@@ -25,3 +30,66 @@ def missing_note(ctx, c: Conversion, stage_label: str):
                    loc, level="note", stage=stage_label,
                    fix=f"Give {path} so the conversion can be checked.")
 
+
+# ---- how much of a signal's spectrum a filter passes --------------------------------------------
+
+# Levels of a path's verdict by the share of the signal's power it passes (settings of the rules
+# that use them; see freqplan.path-width's explanation for where they come from).
+SHARE_LEVELS = {"error_share": 0.5, "warning_share": 0.8, "note_share": 0.98}
+
+
+def worst_tone(sig) -> tuple[float, float] | None:
+    """(peak deviation, tone) of the widest single-tone test of an FM signal: its highest audio
+    frequency at full deviation. None for a signal that is not FM or misses a figure."""
+    if sig.modulation != "fm" or sig.deviation is None or sig.audio_max is None or sig.audio_max.si <= 0:
+        return None
+    return sig.deviation.si, sig.audio_max.si
+
+
+def passed(sig, attenuation, offset: float = 0.0) -> float | None:
+    """Share (0..1) of the signal's power that a response passes, the carrier `offset` Hz from its
+    centre: the Bessel spectrum of the worst tone (FM); None where it cannot be computed."""
+    tone = worst_tone(sig)
+    if tone is None:
+        return None
+    return fmspectrum.passed_share(tone[0], tone[1], attenuation, offset)
+
+
+def width_for(sig, make_shape, target: float, offset: float = 0.0) -> float | None:
+    """The narrowest width of this class of response that passes `target` of the signal."""
+    need = necessary(sig)
+    if need is None or worst_tone(sig) is None:
+        return None
+    low, high = need[0] / 8, need[0] * 8
+    if passed(sig, make_shape(high).attenuation, offset) < target:
+        return None
+    for _ in range(40):
+        mid = math.sqrt(low * high)
+        if passed(sig, make_shape(mid).attenuation, offset) >= target:
+            high = mid
+        else:
+            low = mid
+    return high
+
+
+def share_level(share: float, s: dict) -> str | None:
+    if share < s["error_share"]:
+        return "error"
+    if share < s["warning_share"]:
+        return "warning"
+    if share < s["note_share"]:
+        return "note"
+    return None
+
+
+def share_text(share: float) -> str:
+    return f"{share:.1%} of its power ({-fmspectrum.loss_db(share):.2f} dB)"
+
+
+def tone_text(sig) -> str:
+    dev, top = worst_tone(sig)
+    return f"a {khz(top)} tone at the full ±{khz(dev)} deviation"
+
+
+def share_settings(ctx) -> dict:
+    return {name: setting(ctx, name) for name in SHARE_LEVELS}

@@ -128,8 +128,11 @@ def tank_tuning(build, ctx):
       The tank's loaded Q sets the detector: Q = R_p / (omega0 L), where R_p is the damping resistor
       in parallel with the coil's own loss resistance (Q_coil omega0 L). The phase slope, and with
       it the recovered audio, rises with Q; the linear range, about f0 / Q, falls with it. The
-      linear range must cover the whole swing of the signal, twice the peak deviation, plus the
-      worst-case drift of the IF either way; past it the audio distorts on peaks. The design sheet
+      linear range, centred on the tank's tuning, must cover the whole swing of each signal: the
+      IF may sit anywhere within the worst-case drift of the tuning and swings the peak deviation
+      either way about it, so the range must span 2 x (deviation + drift); past it the audio
+      distorts on peaks. Each signal is checked on its own: a tank that passes broadcast FM's
+      swing may still be checked for the narrowband signal, and the reverse. The design sheet
       shows the loaded Q, the linear range and the highest Q the deviation allows: a lower damping
       resistor widens the range and costs audio, a higher one the other way.
       """,
@@ -154,24 +157,33 @@ def tank_range(build, ctx):
         ctx.publish("discriminator", who, "linear range (f0/Q)", linear, "Hz")
         if not fm:
             continue
-        dev = max(s.deviation.si for s in fm)
-        sig = max(fm, key=lambda s: s.deviation.si)
-        need = 2 * (dev + t.if_unc)
-        q_max = t.f0 / need
-        ctx.publish("discriminator", who, "needed range (2·deviation + drift)", need, "Hz")
-        ctx.publish("discriminator", who, "highest Q for this deviation", round(q_max, 2))
-        if linear < need:
-            where = t.damping.at("value") if t.damping is not None else t.coil.at("value")
-            rp_max = q_max * resonators.TWO_PI * t.f0 * t.coil.value.si
-            ctx.report(f"the tank's loaded Q of {t.q:.3g} gives a linear range of {khz(linear)} (f0/Q), less than "
-                       f"the {khz(need)} that {sig.name} swings (2 × {khz(dev)} deviation plus ±{khz(t.if_unc)} "
-                       f"drift): peaks will distort; a Q of {q_max:.3g} or less would pass it, at less recovered "
-                       f"audio", where,
-                       [Value("loaded Q", round(t.q, 3)), Value("linear range", linear, "Hz"),
-                        Value("needed", need, "Hz"), Value("highest Q", round(q_max, 3))],
-                       stage=stage.label,
-                       fix=f"Bring the total parallel resistance across the tank down to about "
-                           f"{units.fmt(rp_max, 'Ω')} (damping resistor in parallel with the coil's loss).")
+        for sig in fm:
+            range_one(ctx, t, who, sig, linear, named=len(fm) > 1)
+
+
+def range_one(ctx, t: TankFacts, who: str, sig, linear: float, named: bool) -> None:
+    """tank-range for one signal (one configuration of the build). The tank is tuned to the nominal
+    IF; the IF may sit anywhere within ±drift of it and swings ±deviation about that, so the
+    linear range, centred on f0, must span 2·(deviation + drift)."""
+    dev = sig.deviation.si
+    need = 2 * (dev + t.if_unc)
+    q_max = t.f0 / need
+    whose = f" for {sig.name}" if named else ""
+    ctx.publish("discriminator", who, f"needed range{whose}, 2·(deviation + drift)", need, "Hz")
+    ctx.publish("discriminator", who, f"highest Q{whose} for this deviation", round(q_max, 2))
+    if linear >= need:
+        return
+    where = t.damping.at("value") if t.damping is not None else t.coil.at("value")
+    rp_max = q_max * resonators.TWO_PI * t.f0 * t.coil.value.si
+    ctx.report(f"the tank's loaded Q of {t.q:.3g} gives a linear range of {khz(linear)} (f0/Q), less than "
+               f"the {khz(need)} that {sig.name} swings (2 × ({khz(dev)} deviation + {khz(t.if_unc)} "
+               f"drift)): peaks will distort; a Q of {q_max:.3g} or less would pass it, at less recovered "
+               f"audio", where,
+               [Value("loaded Q", round(t.q, 3)), Value("linear range", linear, "Hz"),
+                Value("needed", need, "Hz"), Value("highest Q", round(q_max, 3))],
+               stage=t.stage.label,
+               fix=f"Bring the total parallel resistance across the tank down to about "
+                   f"{units.fmt(rp_max, 'Ω')} (damping resistor in parallel with the coil's loss).")
 
 
 @rule("freqplan.crystal-load", verify="Measure the oscillator with a counter through a buffer or a loosely coupled probe, and compare with the crystal's marked frequency.",

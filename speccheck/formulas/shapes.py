@@ -43,15 +43,15 @@ class Typical:
 
 TYPICAL = {
     # 455 kHz ceramic IF filter: ±7.5 kHz at 6 dB, about ±15 kHz at 40 dB (typical, from memory)
-    "ceramic": Typical(6.0, 2.0, 40.0, "ceramic filter, 6 dB width doubled at 40 dB (typical)"),
+    "ceramic": Typical(6.0, 2.0, 40.0, "typical ceramic-filter skirts, twice as wide at 40 dB"),
     # multi-pole crystal filter: 6 dB : 60 dB shape factor about 1.8 (typical, from memory)
-    "crystal": Typical(6.0, 1.8, 60.0, "crystal filter, 6 dB : 60 dB shape factor 1.8 (typical)"),
+    "crystal": Typical(6.0, 1.8, 60.0, "typical crystal-filter skirts, 1.8 times as wide at 60 dB"),
     # mechanical filter: 6 dB : 60 dB shape factor about 2 (typical, from memory)
-    "mechanical": Typical(6.0, 2.0, 60.0, "mechanical filter, 6 dB : 60 dB shape factor 2 (typical)"),
+    "mechanical": Typical(6.0, 2.0, 60.0, "typical mechanical-filter skirts, twice as wide at 60 dB"),
     # one tuned circuit: a one-pole response, 3 dB at the quoted width (textbook)
-    "lc": Typical(3.0, None, None, "single tuned circuit (one-pole response)"),
+    "lc": Typical(3.0, None, None, "one tuned circuit"),
     # a spectrum analyser's or receiver's resolution filter quoted at 3 dB (common practice)
-    "gaussian": Typical(3.0, None, None, "Gaussian resolution filter quoted at 3 dB"),
+    "gaussian": Typical(3.0, None, None, "Gaussian"),
 }
 
 # The shape assumed for an IF path or upstream bandwidth whose class is not stated.
