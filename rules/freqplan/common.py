@@ -83,7 +83,7 @@ def share_level(share: float, s: dict) -> str | None:
 
 
 def share_text(share: float) -> str:
-    return f"{share:.1%} of its power ({-fmspectrum.loss_db(share):.2f} dB)"
+    return f"{share:.1%} ({-fmspectrum.loss_db(share):.2f} dB)"
 
 
 def tone_text(sig) -> str:

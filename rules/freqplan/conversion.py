@@ -182,8 +182,8 @@ def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels
             return  # the offset costs no more than the width itself: freqplan.path-width's verdict
         values += [Value("share passed (worst case)", worst * 100, "%"),
                    Value("share passed (on the filter's centre)", on_centre * 100, "%")]
-        what = (f"the {pb.name} path ({pb.describe()}; {pb.shape.what}) passes {share_text(worst)} of "
-                f"{tone_text(sig)} there, against {share_text(on_centre)} on its centre")
+        what = (f"the {pb.name} path ({pb.describe()}; {pb.shape.what}) passes {share_text(worst)} of the "
+                f"power of {tone_text(sig)} there, against {share_text(on_centre)} on its centre")
         spread_only = min(passed(sig, pb.shape.attenuation, u) for u in (-point.unc, point.unc))
         fixable = rank[share_level(spread_only, levels)] < 2  # centring the IF would clear it
     # The offset is the cause when the signal fits on the filter's centre: point at what sets
@@ -362,9 +362,9 @@ def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
     values += [Value("share passed", share * 100, "%"), Value("loss", fmspectrum.loss_db(share), "dB")]
     shape = pb.shape.what
     head = (f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(pb.width)} "
-            f"({pb.describe()}; {shape}): {share_text(share)} of {tone_text(sig)}")
+            f"({pb.describe()}; {shape}): {share_text(share)} of the power of {tone_text(sig)}")
     if level == "note":
-        ctx.report(f"the {pb.name} path ({khz(pb.width)}, {shape}) passes {share_text(share)} of {tone_text(sig)} "
+        ctx.report(f"the {pb.name} path ({khz(pb.width)}, {shape}) passes {share_text(share)} of the power of {tone_text(sig)} "
                    f"for {sig.name} ({khz(bn)}{des}): only the outermost sidebands of the highest tones are "
                    f"trimmed; usual practice, no change needed", where, values, level="note",
                    stage=point.stage.label, fix="")
@@ -380,7 +380,7 @@ def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
     need_width = width_for(sig, lambda w: response_shape(w, pb.path, pb.part), levels["note_share"], offset)
     if better:
         p, s = max(better, key=lambda t: t[1])
-        hint = f"; the {p.name} path ({khz(p.width)}) would pass it ({share_text(s)})"
+        hint = f"; the {p.name} path ({khz(p.width)}) would pass {share_text(s)} of it"
         fix = f"Set the signal's path to {p.name}."
     else:
         hint = ""
@@ -457,7 +457,7 @@ def upstream_one(ctx, src, sig, need: tuple) -> None:
     values += [Value("share passed", share * 100, "%"), Value("loss", fmspectrum.loss_db(share), "dB")]
     what = shape.what
     if level == "note":
-        ctx.report(f"the upstream bandwidth {khz(bw)} ({what}) passes {share_text(share)} of {tone_text(sig)} for "
+        ctx.report(f"the upstream bandwidth {khz(bw)} ({what}) passes {share_text(share)} of the power of {tone_text(sig)} for "
                    f"{sig.name} ({khz(bn)}{des}): only the outermost sidebands are trimmed; usual practice",
                    src.at("bandwidth"), values, level="note", stage="source", fix="")
         return
@@ -466,7 +466,7 @@ def upstream_one(ctx, src, sig, need: tuple) -> None:
                            levels["note_share"])
     fix = (f"Set the upstream receiver or instrument to about {khz(need_width)} or more." if need_width else
            "Set the upstream receiver or instrument to a wider IF or resolution bandwidth.")
-    ctx.report(f"the upstream bandwidth {khz(bw)} ({what}) passes only {share_text(share)} of {tone_text(sig)}, "
+    ctx.report(f"the upstream bandwidth {khz(bw)} ({what}) passes only {share_text(share)} of the power of {tone_text(sig)}, "
                f"the {khz(bn)}{des} that {sig.name} needs: the source has "
                + ("cut the signal before it reaches the build" if level == "error" else
                   "trimmed the signal's high tones at full deviation"),

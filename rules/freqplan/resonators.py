@@ -4,13 +4,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from speccheck.rules.freqplan.common import pct, setting
+
 from speccheck import units
-from speccheck.chain import (crystal_load, crystal_shift, frequency_plan, hz,
-                             khz, owner)
+from speccheck.chain import crystal_load, crystal_shift, frequency_plan, hz, khz, owner
 from speccheck.findings import Value
 from speccheck.formulas import resonators
 from speccheck.registry import rule
-from speccheck.rules.freqplan.common import pct, setting
 
 
 def _range(part):
