@@ -153,12 +153,13 @@ class Deck:
 class _Sheet:
     """The design sheet of one build, looked up by (section, owner, name)."""
 
-    def __init__(self, entries, signal: str = "", position: str = ""):
+    def __init__(self, entries, signal: str = "", position: str = "") -> None:
+        """Only the entries that hold for this signal and switch position (format 2), or for all."""
         self.values: dict = {}
         for e in entries:
-            if getattr(e, "signal", "") not in ("", signal) or getattr(e, "position", "") not in ("", position):
-                continue
-            self.values[(e.section, e.owner, e.value.name)] = e.value
+            tagged = (getattr(e, "signal", ""), getattr(e, "position", ""))
+            if tagged in (("", ""), (signal, position)):
+                self.values[(e.section, e.owner, e.value.name)] = e.value
 
     def get(self, section: str, owner: str, name: str) -> float | None:
         v = self.values.get((section, owner, name))
@@ -203,6 +204,14 @@ def _stands_for(build, paths: list | None = None) -> str:
     names = [s.name for s in build.signals if paths is None or s.path in paths]
     who = ", ".join(names) if names else "no declared signal"
     return f"signals: {who}; switch positions: none (no selecting switch in this plan)"
+
+
+def members(build, part) -> list:
+    """The real parts behind a part: the several a format-2 list stands in for (damping
+    resistors in parallel, filter capacitors side by side), or the part itself."""
+    refs = getattr(part, "combined_from", None) or ()
+    found = [build.parts.get(r) for r in refs]
+    return [p for p in found if p is not None and p.value is not None] or [part]
 
 
 def _pretty(part) -> str:
@@ -336,8 +345,9 @@ def _tank(build, sheet: _Sheet, stage) -> Deck | None:
     if extra:
         lines.append(f"{names.element('C', 'extra')} {hot_node} {ret_node} {number(extra)}")
     if damping is not None and damping.value is not None:
-        lines += [f"* {comment(_pretty(damping))}",
-                  f"{names.element('R', damping.name)} {hot_node} {ret_node} {number(damping.value.si)}"]
+        for resistor in members(build, damping):
+            lines += [f"* {comment(_pretty(resistor))}",
+                      f"{names.element('R', resistor.name)} {hot_node} {ret_node} {number(resistor.value.si)}"]
     if coil.q:
         # the coil's loss as its parallel equivalent at the tank's f0: Q * 2 pi f0 L
         lines += [f"* {comment(coil.name)} loss: unloaded Q {number(coil.q)} as a parallel resistance at f0",
@@ -399,19 +409,20 @@ def _rc_lowpass(build, sheet: _Sheet, stage) -> Deck | None:
     if corner is None:
         return None
     names = Names(_grounds(build))
-    shared = [n for n in res.ends if n in cap.ends]
+    caps = members(build, cap)
+    shared = [n for n in res.ends if any(n in c.ends for c in caps)]
     out = shared[0] if shared else "filter output"
     inp = res.other_end(out) if shared else "filter input"
     in_node, out_node = names.net(inp or "filter input"), names.net(out)
-    cap_far = names.net(cap.other_end(out) or "0") if shared else "0"
     deck = Deck("audio-rc", _label(stage.kind, who), f"{stage.kind} RC of stage '{who}'",
                 _stands_for(build))
     deck.lines += ["* the detector's audio output as an ideal source of 1 V",
                    f"V_DRIVE {in_node} 0 DC 0 AC 1",
                    f"* {comment(_pretty(res))}",
                    f"{names.element('R', res.name)} {in_node} {out_node} {number(res.value.si)}",
-                   f"* {comment(_pretty(cap))}",
-                   f"{names.element('C', cap.name)} {out_node} {cap_far} {number(cap.value.si)}",
+                   *(line for c in caps for line in (
+                       f"* {comment(_pretty(c))}",
+                       f"{names.element('C', c.name)} {out_node} 0 {number(c.value.si)}")),
                    f".ac dec 1000 {number(corner / 100)} {number(corner * 100)}",
                    f".save v({out_node})",
                    f".measure ac corner when vdb({out_node})={number(HALF_POWER_DB)} cross=1"]
@@ -420,7 +431,7 @@ def _rc_lowpass(build, sheet: _Sheet, stage) -> Deck | None:
     if stage.kind == "de-emphasis":
         deck.lines.append(".measure ac time_constant param='1/(6.28318530718*corner)'")
         sheet.check(deck, "time_constant", "audio", who, "de-emphasis time constant")
-    if shared:
+    if shared and len(caps) == 1:
         _as_wired(build, deck, names, res, cap, inp or "filter input", out, corner)
     return deck
 
@@ -629,9 +640,7 @@ def _switch_on(build, sheet: _Sheet) -> Deck | None:
 
 # ---- the whole build ------------------------------------------------------------------------
 
-def decks(build, sheet_entries) -> list[Deck]:
-    """Every deck this build's reviewed sub-circuits and design sheet allow."""
-    sheet = _Sheet(sheet_entries)
+def _decks_of(build, sheet: _Sheet) -> list[Deck]:
     out: list[Deck | None] = []
     for stage in build.chain:
         if stage.kind == "input-match":
@@ -651,6 +660,44 @@ def decks(build, sheet_entries) -> list[Deck]:
         if n:
             d.label = f"{d.label}-{n + 1}"
     return found
+
+
+def _configurations(build) -> list:
+    """(configuration, the build as it is there) for each signal and switch position of a
+    format-2 plan with selecting switches; one (None, build) for any other plan."""
+    if not getattr(build, "switched", False):
+        return [(None, build)]
+    from speccheck import configs
+
+    return [(cfg, configs.view(build, cfg)) for cfg in build.configurations()]
+
+
+def decks(build, sheet_entries) -> list[Deck]:
+    """Every deck this build's reviewed sub-circuits and design sheet allow.
+
+    In a plan with selecting switches each configuration (signal, switch positions, upstream
+    setting) gets its own decks; a deck that comes out the same in every configuration is
+    written once, standing for all of them."""
+    entries = list(sheet_entries)
+    per_cfg = []
+    for cfg, view in _configurations(build):
+        if cfg is None:
+            return _decks_of(view, _Sheet(entries))
+        per_cfg.append((cfg, _decks_of(view, _Sheet(entries, cfg.signal_name, cfg.position_label))))
+    same: dict = {}
+    for cfg, found in per_cfg:
+        for deck in found:
+            same.setdefault((deck.label, tuple(deck.lines)), []).append((cfg, deck))
+    out = []
+    for hits in same.values():
+        cfg, deck = hits[0]
+        if len(hits) == len(per_cfg):
+            deck.stands_for = "every signal and switch position of this plan"
+        else:
+            deck.stands_for = " | ".join(c.label for c, _ in hits)
+            deck.label = f"{deck.label}.{safe_name(cfg.label).replace('_', '-')}"
+        out.append(deck)
+    return out
 
 
 def file_stem(path: str | Path) -> str:
