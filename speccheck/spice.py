@@ -175,9 +175,14 @@ class _Sheet:
         return True
 
 
+def _file_word(text: str) -> str:
+    """Text as part of a file name: lowercase letters, digits and '-' (at most 80)."""
+    return (_UNSAFE.sub("-", text.lower()).strip("-") or "x")[:80]
+
+
 def _label(kind: str, owner: str) -> str:
     """A deck's file label: its kind, and the owner when that says more (a named or repeated stage)."""
-    tail = safe_name(owner).replace("_", "-")
+    tail = _file_word(owner)
     return kind if tail == kind else f"{kind}-{tail}"
 
 
@@ -695,14 +700,14 @@ def decks(build, sheet_entries) -> list[Deck]:
             deck.stands_for = "every signal and switch position of this plan"
         else:
             deck.stands_for = " | ".join(c.label for c, _ in hits)
-            deck.label = f"{deck.label}.{safe_name(cfg.label).replace('_', '-')}"
+            deck.label = f"{deck.label}.{_file_word(cfg.label)}"
         out.append(deck)
     return out
 
 
 def file_stem(path: str | Path) -> str:
     """The safe start of every deck file name: the plan's file name without its suffix."""
-    return safe_name(Path(path).stem).replace("_", "-")
+    return _file_word(Path(path).stem)
 
 
 def deck_path(folder: str | Path, plan: str | Path, deck: Deck) -> Path:
