@@ -1,0 +1,182 @@
+"""Decks of the audio side: RC low-pass and de-emphasis stages (with an as-wired copy), the
+amplifier's output side."""
+
+from __future__ import annotations
+
+import math
+
+from speccheck.spice.deck import (
+    EIGHTH_TURN,
+    HALF_POWER_DB,
+    Deck,
+    Sheet,
+    ac_grounds,
+    described,
+    file_label,
+    members,
+    stage_owner,
+    stands_for,
+)
+from speccheck.spice.text import Names, comment, number
+
+# ---- audio ----------------------------------------------------------------------------------
+
+def rc_lowpass(build, sheet: Sheet, stage) -> Deck | None:
+    res, cap = build.part(stage.resistor), build.part(stage.capacitor)
+    if res is None or cap is None or res.value is None or cap.value is None:
+        return None  # a stage given as a time constant or a corner has no parts to simulate
+    who = stage_owner(build, stage)
+    corner_name = "de-emphasis corner" if stage.kind == "de-emphasis" else "low-pass corner"
+    corner = sheet.get("audio", who, corner_name)
+    if corner is None:
+        return None
+    names = Names(ac_grounds(build))
+    caps = members(build, cap)
+    shared = [n for n in res.ends if any(n in c.ends for c in caps)]
+    out = shared[0] if shared else "filter output"
+    inp = res.other_end(out) if shared else "filter input"
+    in_node, out_node = names.net(inp or "filter input"), names.net(out)
+    deck = Deck("audio-rc", file_label(stage.kind, who), f"{stage.kind} RC of stage '{who}'",
+                stands_for(build))
+    deck.lines += ["* the detector's audio output as an ideal source of 1 V",
+                   f"V_DRIVE {in_node} 0 DC 0 AC 1",
+                   f"* {comment(described(res))}",
+                   f"{names.element('R', res.name)} {in_node} {out_node} {number(res.value.si)}",
+                   *(line for c in caps for line in (
+                       f"* {comment(described(c))}",
+                       f"{names.element('C', c.name)} {out_node} 0 {number(c.value.si)}")),
+                   f".ac dec 1000 {number(corner / 100)} {number(corner * 100)}",
+                   f".save v({out_node})",
+                   f".measure ac corner when vdb({out_node})={number(HALF_POWER_DB)} cross=1"]
+    deck.notes.append("the RC as the design sheet takes it: driven from an ideal source, into no load")
+    sheet.check(deck, "corner", "audio", who, corner_name)
+    if stage.kind == "de-emphasis":
+        deck.lines.append(".measure ac time_constant param='1/(6.28318530718*corner)'")
+        sheet.check(deck, "time_constant", "audio", who, "de-emphasis time constant")
+    if shared and len(caps) == 1:
+        _as_wired(build, deck, names, res, cap, inp or "filter input", out, corner)
+    return deck
+
+
+PASSIVE = {"resistor": "R", "potentiometer": "R", "speaker": "R", "capacitor": "C", "inductor": "L"}
+
+
+def load_on(build, net: str, skip: set) -> list:
+    """The passive parts that load `net`: every resistor, pot (its whole track), speaker,
+    capacitor or inductor reachable from it through nets that are neither a rail (AC ground)
+    nor a device pin (open: its input impedance is not known), less the parts that carry no
+    current (one end on a net nothing else reaches)."""
+    nets = build.nets
+    found: dict = {}
+    todo, seen = [net], {net}
+    while todo:
+        here = todo.pop()
+        for part in nets.parts_on(here):
+            other = part.other_end(here)
+            if part.name in skip or part.kind not in PASSIVE or part.value is None or other is None:
+                continue
+            found[part.name] = part
+            if other not in seen and other not in build.rails and "." not in other:
+                seen.add(other)
+                todo.append(other)
+    while True:  # drop parts that end on a net nothing else touches: no current flows in them
+        count: dict = {}
+        for part in found.values():
+            for end in part.ends:
+                count[end] = count.get(end, 0) + 1
+        dangling = [p for p in found.values()
+                    if any(count[e] == 1 and e != net and e not in build.rails for e in p.ends)]
+        if not dangling:
+            return list(found.values())
+        for p in dangling:
+            del found[p.name]
+
+
+def _as_wired(build, deck: Deck, names: Names, res, cap, inp: str, out: str, corner: float):
+    """A second copy of an RC stage with the parts that load its output, as the nets show them.
+    Its corner is where the output's phase has turned 45 degrees; the coupling capacitors of
+    the load add a little phase lead, so it is close to, not exactly, the -3 dB point."""
+    load = load_on(build, out, {res.name, cap.name})
+    if not load:
+        return
+
+    def node(net):
+        return "0" if net in names.grounds else names.net(f"wired {net}")
+    drive = names.element("V", "drive wired")
+    deck.lines += [(f"* as wired: the same RC with what loads {comment(out)} on the plan's nets "
+                   "(rails as AC ground, device pins open)"),
+                   f"{drive} {node(inp)} 0 DC 0 AC 1",
+                   f"{names.element('R', res.name + ' wired')} {node(inp)} {node(out)} {number(res.value.si)}",
+                   (f"{names.element('C', cap.name + ' wired')} {node(out)} {node(cap.other_end(out))} "
+                   f"{number(cap.value.si)}")]
+    for part in load:
+        deck.lines += [f"* {comment(described(part))}",
+                       (f"{names.element(PASSIVE[part.kind], part.name + ' wired')} {node(part.ends[0])} "
+                       f"{node(part.ends[1])} {number(part.value.si)}")]
+    deck.lines += [f".save v({node(out)})",
+                   f".measure ac corner_as_wired when vp({node(out)})={number(-EIGHTH_TURN)} cross=1",
+                   f".measure ac passband_as_wired_db find vdb({node(out)}) at={number(corner / 10)}"]
+    deck.notes.append(f"as wired, {', '.join(p.name for p in load)} load the output: corner_as_wired shows "
+                      "where that moves the corner (not a design-sheet value)")
+
+
+def audio_output(build, sheet: Sheet, stage) -> Deck | None:
+    cap, load = build.part(stage.coupling), build.part(stage.load)
+    net = stage.output_network
+    res_n = build.part(net.resistor) if net is not None else None
+    cap_n = build.part(net.capacitor) if net is not None else None
+    label = stage.label  # the audio rules publish under the stage label
+    names = Names(ac_grounds(build))
+    deck = Deck("audio-output", "audio-output" if label == "audio-amp" else file_label("audio-output", label), f"amplifier output side of stage '{label}'",
+                stands_for(build))
+    lowest, highest = math.inf, 0.0
+    drive = None
+    coupling_ok = (cap is not None and load is not None and cap.kind == "capacitor" and cap.value is not None
+                   and load.value is not None and load.kind in ("speaker", "resistor"))
+    if coupling_ok:
+        corner = sheet.get("audio", label, f"coupling {cap.name} into {load.name} corner")
+        shared = [n for n in cap.ends if n in load.ends]
+        if corner is not None and shared:
+            spk = shared[0]
+            drive = cap.other_end(spk)
+            drive_node, spk_node = names.net(drive or "amplifier output"), names.net(spk)
+            deck.lines += ["* the amplifier output as an ideal source of 1 V",
+                           f"V_AMP {drive_node} 0 DC 0 AC 1",
+                           f"* {comment(described(cap))}",
+                           f"{names.element('C', cap.name)} {drive_node} {spk_node} {number(cap.value.si)}",
+                           f"* {comment(described(load))}: its nominal impedance as a resistor",
+                           (f"{names.element('R', load.name)} {spk_node} "
+                           f"{names.net(load.other_end(spk) or '0')} {number(load.value.si)}"),
+                           f".save v({spk_node})",
+                           f".measure ac coupling_corner when vdb({spk_node})={number(HALF_POWER_DB)} cross=1"]
+            sheet.check(deck, "coupling_corner", "audio", label, f"coupling {cap.name} into {load.name} corner")
+            lowest, highest = min(lowest, corner), max(highest, corner)
+    if res_n is not None and cap_n is not None and res_n.value is not None and cap_n.value is not None:
+        turnover = sheet.get("audio", label, f"output network {res_n.name} + {cap_n.name} turnover")
+        mid = [n for n in res_n.ends if n in cap_n.ends]
+        if turnover is not None and mid:
+            first = res_n if drive is not None and drive in res_n.ends else cap_n if drive in cap_n.ends else res_n
+            second = cap_n if first is res_n else res_n
+            start = first.other_end(mid[0]) if drive is None or drive not in first.ends else drive
+            start_node = names.net(start or "amplifier output")
+            if drive is None or start != drive:
+                deck.lines += ["* the amplifier output as an ideal source of 1 V",
+                               f"{names.element('V', 'network drive')} {start_node} 0 DC 0 AC 1"]
+            mid_node = names.net(mid[0])
+            letter = {"resistor": "R", "capacitor": "C"}
+            deck.lines += [f"* output network: {comment(described(first))}",
+                           (f"{names.element(letter[first.kind], first.name)} {start_node} {mid_node} "
+                           f"{number(first.value.si)}"),
+                           f"* {comment(described(second))}",
+                           f"{names.element(letter[second.kind], second.name)} {mid_node} 0 {number(second.value.si)}",
+                           f".save v({mid_node})",
+                           "* the turnover: where the voltage across the capacitor is 3 dB down from the whole",
+                           f".measure ac network_turnover when vdb({mid_node})={number(HALF_POWER_DB)} cross=1"]
+            sheet.check(deck, "network_turnover", "audio", label,
+                        f"output network {res_n.name} + {cap_n.name} turnover")
+            lowest, highest = min(lowest, turnover), max(highest, turnover)
+    if not deck.checks:
+        return None
+    deck.lines.insert(0, f".ac dec 1000 {number(lowest / 100)} {number(highest * 100)}")
+    deck.notes.append("the speaker as its nominal impedance, the amplifier as an ideal voltage source")
+    return deck
