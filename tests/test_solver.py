@@ -245,3 +245,73 @@ def test_generated_plans_never_gain_a_finding(tmp_path_factory, load, rating, ca
         assert all(f.fingerprint not in now for f in proposal.clears)
     _untouched_lines_same(text, outcome.new_text, {_line(text, e.start) for e in outcome.edits})
     assert solver.solve(plan, series=series).new_text == outcome.new_text  # repeatable
+
+
+# ---- remedies no shipped example needs, on edited copies ---------------------------------------
+
+def _solve_text(tmp_path, text):
+    plan = tmp_path / "plan.yaml"
+    plan.write_text(text, "utf-8")
+    outcome = solver.solve(plan)
+    after = engine.check_text(outcome.new_text, str(plan))
+    assert set(_live(after)) <= set(_live(outcome.before))
+    return outcome
+
+
+def _edited(name, *pairs):
+    text = (EXAMPLES / name).read_text("utf-8")
+    for old, new in pairs:
+        assert text.count(old) == 1, old
+        text = text.replace(old, new)
+    return text
+
+
+def test_de_emphasis_for_the_region(tmp_path):
+    # ITU-R BS.450-3: 50 us in Region 1. With C13 kept, R = 50 us / C; the plan's 5.1 kohm is set
+    # to 10 kohm here (100 us), and the proposal must bring tau back to within the rule's 10 %.
+    text = _edited("freq-broadcast-through-narrow.yaml", ("value: 5.1 kohm, ends: [U1.audio, DE1]",
+                                                          "value: 10 kohm, ends: [U1.audio, DE1]"))
+    outcome = _solve_text(tmp_path, text)
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "freqplan.de-emphasis"]
+    # C13 is 10 nF: R = 50 us / 10 nF = 5 kohm; E12 neighbours 4.7 kohm (47 us, -6 %) and 5.6 kohm
+    # (56 us, +12 %): 4.7 kohm is nearer (hand arithmetic)
+    assert proposal.chosen.summary == "R11 4.7 kΩ"
+    assert "47 µs" in proposal.chosen.result and "-6.0 %" in proposal.chosen.result
+
+
+def test_coupling_capacitor_for_the_lowest_audio(tmp_path):
+    # f_c = 1/(2 pi R_L C): 100 Hz into 8 ohm needs 199 uF (hand arithmetic); E12 220 uF gives 90.4 Hz.
+    text = _edited("beginner-plan.yaml", ("ambient_max: 30 degC", "ambient_max: 30 degC\n  lowest_audio: 100 Hz"),
+                   ("value: 470 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [U2.out, SPK]",
+                    "value: 47 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [U2.out, SPK]"))
+    outcome = _solve_text(tmp_path, text)
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "audio.coupling-corner"]
+    assert proposal.chosen.summary == "C20 220 µF"
+    assert "90.43 Hz" in proposal.chosen.result
+
+
+def test_input_network_pairs_ranked_by_return_loss(tmp_path):
+    text = _edited("beginner-plan.yaml", ("value: 3.9 uH, ends: [IF_IN", "value: 1 uH, ends: [IF_IN"))
+    outcome = _solve_text(tmp_path, text)
+    (proposal,) = [p for p in outcome.proposals if p.finding.rule == "rfpath.input-match"]
+    losses = [float(o.result.split()[2]) for o in proposal.options]  # "return loss 31.2 dB at ..."
+    assert losses == sorted(losses, reverse=True) and len(losses) == 3
+    # L-network 50 ohm -> 1.5 kohm at 10.7 MHz (circuit theory, by hand): Q = sqrt(1500/50 - 1) =
+    # 5.385, X_L = 269 ohm (4.005 uH), X_C = 278.5 ohm (53.4 pF); E12 3.9 uH with 56 pF gives
+    # Z = j w L + 1500 || 1/(j w C), and the return loss -20 log10 |(Z - 50)/(Z + 50)|:
+    w = 2 * math.pi * 10.7e6
+    z = 1j * w * 3.9e-6 + 1 / (1 / 1500 + 1j * w * 56e-12)
+    expected = -20 * math.log10(abs((z - 50) / (z + 50)))
+    assert proposal.chosen.summary == "L1 3.9 µH, C1 56 pF"
+    assert math.isclose(losses[0], expected, abs_tol=0.05)
+
+
+def test_primary_fuse_rating_and_speed(tmp_path):
+    text = _edited("mains-bench-unit.yaml", ("    switch: S1\n", "    switch: S1\n    primary_fuse: F0\n"),
+                   ("  S1: {kind: switch, ends: [L, L_SW]",
+                    "  F0: {kind: fuse, current_rating: 2 A, speed: quick-acting, voltage_rating: 250 V, ends: [L, L_F]}\n"
+                    "  S1: {kind: switch, ends: [L_F, L_SW]"))
+    outcome = _solve_text(tmp_path, text)
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "mains.primary-fuse"]
+    assert proposal.chosen.summary.startswith("F0 time-lag")
+    assert "local electrical codes" in proposal.note

@@ -253,3 +253,19 @@ def output_network(s: Situation, f: Finding) -> Proposal | None:
         options.append(Option([value_change(cap, c, "F")], f"{cap.name} {units.fmt(c, 'F')}",
                               f"turnover {units.fmt(audio.rc_corner(res.value.si, c), 'Hz')}, above the audio band"))
     return Proposal(f, f"output network {cap.name}", options, source=f"f = 1/(2 pi R C); IEC 60063 {series}")
+
+
+@remedy("mains.primary-fuse")
+def primary_fuse(s: Situation, f: Finding) -> Proposal | None:
+    part = s.part_for(f)
+    preferred = number(f, "preferred")
+    if part is None or part.kind != "fuse" or not preferred:
+        return None  # no fuse at all: where it goes in the line conductor is the builder's wiring
+    changes = [set_or_add(part, "current_rating", units.plan_text(preferred, "A"))]
+    if part.speed != "time-lag":
+        changes.append(set_or_add(part, "speed", "time-lag"))
+    return Proposal(f, f"{part.name} primary fuse", [Option(
+        changes, f"{part.name} time-lag {units.fmt(preferred, 'A')}",
+        f"primary current {units.fmt(number(f, 'primary current') or 0.0, 'A')} with room for the switch-on inrush")],
+        note="mains wiring: unplug before work; a competent person fits and checks it, under local electrical codes",
+        source="R10 series, IEC 60127-1 Annex A; time-lag per IEC 60127-2 (the rule's pick)")
