@@ -309,8 +309,8 @@ def test_input_network_pairs_ranked_by_return_loss(tmp_path):
 def test_primary_fuse_rating_and_speed(tmp_path):
     text = _edited("mains-bench-unit.yaml", ("    switch: S1\n", "    switch: S1\n    primary_fuse: F0\n"),
                    ("  S1: {kind: switch, ends: [L, L_SW]",
-                    "  F0: {kind: fuse, current_rating: 2 A, speed: quick-acting, voltage_rating: 250 V, ends: [L, L_F]}\n"
-                    "  S1: {kind: switch, ends: [L_F, L_SW]"))
+                    ("  F0: {kind: fuse, current_rating: 2 A, speed: quick-acting, voltage_rating: 250 V, "
+                     "ends: [L, L_F]}\n  S1: {kind: switch, ends: [L_F, L_SW]")))
     outcome = _solve_text(tmp_path, text)
     (proposal,) = [p for p in outcome.taken if p.finding.rule == "mains.primary-fuse"]
     assert proposal.chosen.summary.startswith("F0 time-lag")
