@@ -132,10 +132,11 @@ def same_file(a: str | Path, b: str | Path) -> bool:
         return os.path.realpath(a) == os.path.realpath(b)
 
 
-def write_atomic(path: str | Path, text: str, *, force: bool = False) -> None:
+def write_atomic(path: str | Path, text: str, *, force: bool = False, mode: int | None = None) -> None:
     """Write `text` to `path` through a temporary file in the same folder, then rename.
 
-    An existing file is replaced only with `force`; a symlink is never followed to create a file."""
+    An existing file is replaced only with `force`; a symlink is never followed to create a file.
+    `mode` sets the permission bits (a rewritten plan keeps its own); by default as any new file."""
     path = Path(path)
     if path.is_symlink() and not force:
         raise FileTrouble("is a symbolic link; add --force to replace the link itself")
@@ -153,7 +154,7 @@ def write_atomic(path: str | Path, text: str, *, force: bool = False) -> None:
             fh.write(text)
             fh.flush()
             os.fsync(fh.fileno())
-        os.chmod(tmp, 0o666 & ~_umask())  # mkstemp makes 0600; a report is as readable as any file
+        os.chmod(tmp, mode if mode is not None else 0o666 & ~_umask())  # mkstemp makes 0600
         os.replace(tmp, path)
     except OSError as exc:
         try:

@@ -315,3 +315,21 @@ def test_primary_fuse_rating_and_speed(tmp_path):
     (proposal,) = [p for p in outcome.taken if p.finding.rule == "mains.primary-fuse"]
     assert proposal.chosen.summary.startswith("F0 time-lag")
     assert "local electrical codes" in proposal.note
+
+
+def test_apply_keeps_mode_link_byte_order_mark_and_line_endings(tmp_path):
+    import os
+
+    text = (EXAMPLES / "beginner-plan.yaml").read_text("utf-8").replace("\n", "\r\n")
+    real = tmp_path / "real.yaml"
+    real.write_bytes(b"\xef\xbb\xbf" + text.encode("utf-8"))
+    os.chmod(real, 0o640)
+    link = tmp_path / "plan.yaml"
+    link.symlink_to(real)
+    outcome = solver.solve(link)
+    solver.write(outcome)
+    assert link.is_symlink() and os.stat(real).st_mode & 0o777 == 0o640
+    raw = real.read_bytes()
+    assert raw.startswith(b"\xef\xbb\xbf") and b"\n" not in raw.replace(b"\r\n", b"")
+    assert b"voltage_rating: 16 V, ends: [V12, GND], positive: V12}\r\n" in raw
+    assert b"stray: 3 pF}\r\n" in raw

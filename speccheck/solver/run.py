@@ -164,8 +164,12 @@ def write(outcome: Outcome, settings: Settings | None = None) -> engine.FileResu
     """Write the solved text over the plan (atomically) and check the file again."""
     if outcome.refused:
         raise SolveTrouble(f"{outcome.path}: not written: {outcome.refused}")
+    target = outcome.path.resolve() if outcome.path.is_symlink() else outcome.path  # edit the plan, keep the link
     try:
-        files.write_atomic(outcome.path, ("\ufeff" if outcome.bom else "") + outcome.new_text, force=True)
+        mode = target.stat().st_mode & 0o7777
+        files.write_atomic(target, ("\ufeff" if outcome.bom else "") + outcome.new_text, force=True, mode=mode)
+    except OSError as exc:
+        raise SolveTrouble(f"{outcome.path}: cannot be written: {exc.strerror}") from None
     except files.FileTrouble as exc:
         raise SolveTrouble(f"{outcome.path}: {exc}") from None
     outcome.after = _Checker(outcome.path, settings or Settings())(read_plan(outcome.path)[0])
