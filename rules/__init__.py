@@ -2,4 +2,5 @@
 in this order, and runs their rules in it. input and review are reported by the loader and the
 waiver pass, not run on the model."""
 
-FAMILIES = ["input", "review", "wiring", "freqplan", "rfpath", "power", "audio", "mains"]
+FAMILIES = ["input", "review", "wiring", "freqplan", "rfpath", "power", "audio", "mains", "squelch", "tap",
+            "battery", "connect"]

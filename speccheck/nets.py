@@ -71,6 +71,9 @@ class NetGraph:
             if a is None or b is None:
                 continue
             spans[part.wiper] = (min(a.volts, b.volts), max(a.volts, b.volts), part)
+            spread = self.potentials.get(part.wiper)
+            if spread is not None and spread.origin != part.wiper and abs(a.volts - b.volts) >= 1e-9:
+                del self.potentials[part.wiper]  # a guess through resistors; the wiper's range is what is known
             if part.wiper not in self.potentials and abs(a.volts - b.volts) < 1e-9:
                 self.potentials[part.wiper] = Potential(a.volts, f"{a.why}, at both ends of {part.name}", a.origin)
         return spans

@@ -260,7 +260,7 @@ def _parse(text: object, dim: str) -> float:
 
 _PREFIXES = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"),
              (1e-12, "p"), (1e-15, "f")]
-_NO_PREFIX = {"°C", "°C/W", "dB", "dBm", "dBc", "%", "ppm", "", "A²s", "turns", "AWG"}
+_NO_PREFIX = {"h", "°C", "°C/W", "dB", "dBm", "dBc", "%", "ppm", "", "A²s", "turns", "AWG"}
 
 
 def fmt(value: float, unit: str, digits: int | None = None) -> str:
