@@ -36,7 +36,7 @@ def _settings(paths, config, no_config, fail_level=None, skip=()):
         return config_mod.apply_options(settings, fail_level=fail_level, skip=skip)
     except config_mod.ConfigError as exc:
         for line in exc.messages:
-            click.echo(f"speccheck: {line}", err=True)
+            click.echo(f"speccheck: {_plain(line)}", err=True)
         sys.exit(EXIT_TROUBLE)
 
 
