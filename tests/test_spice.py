@@ -125,8 +125,13 @@ def test_clean_example_values_that_have_decks(tmp_path):
         ("fuse", "F1", "inrush peak"),
         ("fuse", "F1", "inrush time constant RC"),
         ("fuse", "F1", "inrush I²t"),
+        ("crystal", "X1", "load capacitance from the oscillator"),
+        ("crystal", "X1", "pulling at the specified load"),
+        ("crystal", "X1", "pulling at the actual load"),
+        ("crystal", "X1", "shift from the specified frequency"),
+        ("crystal", "X1", "shift in frequency"),
     }
-    assert sorted(d.kind for d in decks) == ["audio-output", "audio-rc", "input-match", "switch-on", "tank"]
+    assert sorted(d.kind for d in decks) == ["audio-output", "audio-rc", "crystal", "input-match", "switch-on", "tank"]
 
 
 def test_termination_and_de_emphasis_decks(tmp_path, clean_text):
@@ -162,7 +167,7 @@ def test_command_writes_the_decks_and_replaces_only_with_force(tmp_path):
     assert got.exit_code == 0, got.output
     written = sorted(p.name for p in folder.iterdir())
     assert written == ["vhf-monitor-455k.audio-filter.cir", "vhf-monitor-455k.audio-output.cir",
-                       "vhf-monitor-455k.input-match.cir", "vhf-monitor-455k.switch-on.cir",
+                       "vhf-monitor-455k.crystal-x1.cir", "vhf-monitor-455k.input-match.cir", "vhf-monitor-455k.switch-on.cir",
                        "vhf-monitor-455k.tank.cir"]
     tank = folder / "vhf-monitor-455k.tank.cir"
     assert "L_L2 u1_quad tank_ret 0.001" in tank.read_text()
@@ -237,7 +242,7 @@ def test_hostile_text_cannot_reach_a_deck_line(tmp_path, clean_text):
     assert loaded.can_check, [f.message for f in loaded.findings]
     result = engine.check_loaded(loaded, Settings())
     decks = spice.decks(loaded.build, result.sheet)
-    assert len(decks) == 5
+    assert len(decks) == 6
     allowed_dot = re.compile(r"^\.(ac|tran|save|measure|end)\b")
     element = re.compile(r"^[VRLCIEB]_[A-Z0-9_]+ ")
     for deck in decks:

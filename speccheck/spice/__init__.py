@@ -25,6 +25,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from speccheck.spice.audio import audio_output, rc_lowpass
+from speccheck.spice.crystal import crystal
 from speccheck.spice.deck import Check, Deck, Sheet
 from speccheck.spice.rf import input_match, tank
 from speccheck.spice.supply import switch_on
@@ -40,6 +41,8 @@ def _decks_of(build, sheet: Sheet) -> list[Deck]:
     for stage in build.chain:
         if stage.kind == "input-match":
             out.append(input_match(build, sheet, stage))
+        elif stage.kind == "conversion" and stage.oscillator is not None:
+            out.append(crystal(build, sheet, stage))
         elif stage.kind == "discriminator" and stage.tank is not None:
             out.append(tank(build, sheet, stage))
         elif stage.kind in ("audio-filter", "de-emphasis"):
