@@ -32,8 +32,8 @@ def _load(names: Names, tag: str, caps: list, stray: float, a_net: str, b_net: s
     lines = []
     for cap in caps:
         lines += [f"* {comment(described(cap))}",
-                  f"{names.element('C', f'{cap.name} {tag}')} {node(cap.ends[0])} {node(cap.ends[1])} "
-                  f"{number(cap.value.si)}"]
+                  (f"{names.element('C', f'{cap.name} {tag}')} {node(cap.ends[0])} {node(cap.ends[1])} "
+                  f"{number(cap.value.si)}")]
     if stray:
         lines.append(f"{names.element('C', f'stray {tag}')} {node(a_net)} {node(b_net)} {number(stray)}")
     return lines, node(a_net), node(b_net)
@@ -62,8 +62,8 @@ def crystal(build, sheet: Sheet, stage) -> Deck | None:
     deck = Deck("crystal", f"crystal-{x.name.lower()}", f"crystal {x.name} and its oscillator load",
                 stands_for(build))
     deck.notes += ["the crystal as its four-element model: motional L, C and a 1 ohm R, shunt C0 across",
-                   "load resonance: where the crystal and its load, in a loop driven by a 1 A test current, "
-                   "have no reactance"]
+                   ("load resonance: where the crystal and its load, in a loop driven by a 1 A test current, "
+                   "have no reactance")]
     lines = deck.lines
     # the load the crystal's ends see, as wired: a 1 A test current across its two ends
     cap_lines, la, lb = _load(names, "load", caps, stray, a_net, b_net)
