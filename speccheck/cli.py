@@ -133,7 +133,13 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
     settings = _settings(paths, config, no_config, fail_level, skip)
     files, run = _gather(paths, settings, build_files_only)
     known = None
-    baseline = baseline or settings.baseline or None
+    if not baseline and settings.baseline:
+        from speccheck import files as files_mod
+
+        baseline = settings.baseline
+        if files_mod.not_regular(baseline):
+            _trouble(f"{_plain(baseline)}: the project file names this baseline, but it cannot be read; write it "
+                     "with `speccheck baseline PATHS`")
     if baseline:
         from speccheck import baseline as baseline_mod
 

@@ -329,11 +329,12 @@ def load_project(path) -> Settings:
     if data.get("baseline"):
         from speccheck import files as files_mod
 
-        target, why = files_mod.confined(data["baseline"], settings.root, settings.root)
+        target, why = files_mod.confined(data["baseline"], settings.root, settings.root, "the project file")
         if target is None:
             reader.error(("baseline",), f"baseline '{data['baseline']}' {why}")
             raise ConfigError(reader.sorted())
-        settings.baseline = str(target)
+        shown = os.path.relpath(target)  # reports name it as the user would, not from the machine's root
+        settings.baseline = shown if not shown.startswith("..") else str(target)
     only = section.get("only") or []
     if only:
         wanted = {rid for name in only for rid in _expand(name, rules)}

@@ -107,18 +107,20 @@ def inside(path: str | Path, root: str | Path) -> bool:
     return real == base or base in real.parents
 
 
-def confined(entry: str, base_dir: str | Path, root: str | Path) -> tuple[Path | None, str]:
-    """The file a relative `entry` (as written in a build file) names from `base_dir`, if it stays
-    inside `root` -> (path, ""), else (None, why). `why` speaks of the entry as written only."""
+def confined(entry: str, base_dir: str | Path, root: str | Path,
+             written_in: str = "the build file") -> tuple[Path | None, str]:
+    """The file a relative `entry` (as written in a build or project file) names from `base_dir`,
+    if it stays inside `root` -> (path, ""), else (None, why). `why` speaks of the entry as
+    written only."""
     if not entry.strip():
         return None, "is empty"
     if "\x00" in entry:
         return None, "holds a NUL character"
     if os.path.isabs(entry) or entry.startswith(("~", "\\")) or (len(entry) > 1 and entry[1] == ":"):
-        return None, "is an absolute path; name a file relative to the build file, inside the project"
+        return None, f"is an absolute path; name a file relative to {written_in}, inside the project"
     target = Path(base_dir) / entry
     if not inside(target, root):
-        return None, "leads outside the project folder (through '..' or a link); keep parts files inside it"
+        return None, "leads outside the project folder (through '..' or a link); keep the file inside it"
     return target, ""
 
 
