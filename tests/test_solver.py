@@ -333,3 +333,20 @@ def test_apply_keeps_mode_link_byte_order_mark_and_line_endings(tmp_path):
     assert raw.startswith(b"\xef\xbb\xbf") and b"\n" not in raw.replace(b"\r\n", b"")
     assert b"voltage_rating: 16 V, ends: [V12, GND], positive: V12}\r\n" in raw
     assert b"stray: 3 pF}\r\n" in raw
+
+
+def test_crystal_that_centres_the_if_on_the_filter():
+    # Low-side injection (mixing arithmetic): f_LO = f_in - f_IF = 10.7 MHz - 455 kHz = 10.245 MHz,
+    # the filter's centre being (445 + 465) / 2 = 455 kHz (hand arithmetic).
+    outcome = solver.solve(EXAMPLES / "freq-crystal-off-filter.yaml")
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "freqplan.filter-fit"]
+    assert proposal.chosen.summary == "X1 10.245 MHz"
+    assert "frequency: 10.245 MHz" in outcome.new_text
+
+
+def test_shunt_diode_behind_the_fuse():
+    outcome = solver.solve(EXAMPLES / "beginner-plan.yaml")
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "power.reverse-polarity"]
+    assert "D1: {kind: diode, ends: [GND, V12], positive: GND}" in outcome.new_text
+    assert "reverse_protection: D1" in outcome.new_text
+    assert proposal.clears[0].rule == "power.reverse-polarity"

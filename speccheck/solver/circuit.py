@@ -269,3 +269,23 @@ def primary_fuse(s: Situation, f: Finding) -> Proposal | None:
         f"primary current {units.fmt(number(f, 'primary current') or 0.0, 'A')} with room for the switch-on inrush")],
         note="mains wiring: unplug before work; a competent person fits and checks it, under local electrical codes",
         source="R10 series, IEC 60127-1 Annex A; time-lag per IEC 60127-2 (the rule's pick)")
+
+
+@remedy("power.reverse-polarity")
+def reverse_polarity(s: Situation, f: Finding) -> Proposal | None:
+    """A shunt diode from ground to the fused rail, so a reversed supply opens the fuse (the rule's fix)."""
+    supply = s.build.supply
+    ground = s.ground()
+    fuse = s.build.part(supply.fuse) if supply is not None else None
+    if supply is None or fuse is None or fuse.kind != "fuse" or not supply.rail or supply.rail not in fuse.ends \
+            or ground is None or supply.reverse_protection:
+        return None
+    name = s.new_name("D")
+    changes = [Change(("parts",), {"kind": "diode", "ends": [ground, supply.rail], "positive": ground}, key=name),
+               set_or_add(supply, "reverse_protection", name)]
+    return Proposal(f, "reverse-polarity protection", [Option(
+        changes, f"add {name}, a shunt diode from {ground} (anode) to {supply.rail} (cathode), behind {fuse.name}",
+        f"off in normal use; reversed, it conducts and opens {fuse.name}")],
+        note=f"a silicon rectifier diode that carries the fault current until {fuse.name} opens (a 1 A class part "
+             f"for a fuse under 1 A; common practice)",
+        source="common practice (the rule's fix)")

@@ -11,7 +11,7 @@ from typing import Any
 from speccheck import units
 from speccheck.chain import owner
 from speccheck.findings import Finding
-from speccheck.formulas import audio, matching, picks, resonators
+from speccheck.formulas import audio, matching, mixing, picks, resonators
 from speccheck.solver.base import (
     ASSUMED_STRAY,
     BEST_FEW,
@@ -254,3 +254,32 @@ def input_match(s: Situation, f: Finding) -> Proposal | None:
                for _, henries, farads, loss in ranked[:BEST_FEW]]
     return Proposal(f, f"input network {coil.name} and {cap.name}", options,
                     source=f"L-network design and its input impedance (the rule's formulas); IEC 60063 {s.series}")
+
+
+@remedy("freqplan.filter-fit")
+def filter_fit(s: Situation, f: Finding) -> Proposal | None:
+    """The crystal that puts the IF on the filter's centre: LO = f_in -/+ f_centre, over the multiplier."""
+    crystal = s.part_for(f)
+    low, high = number(f, "passband low"), number(f, "passband high")
+    if crystal is None or crystal.kind != "crystal" or crystal.frequency is None or low is None or high is None:
+        return None
+    stage = next((st for st in s.build.stages("conversion")
+                  if st.oscillator is not None and st.oscillator.crystal == crystal.name), None)
+    if stage is None:
+        return None
+    f_in = s.sheet("conversion", owner(s.build, stage), "input frequency")
+    if f_in is None:
+        return None
+    osc = stage.oscillator
+    mult = osc.multiplier if isinstance(osc.multiplier, int) and osc.multiplier > 0 else 1
+    centre = (low + high) / 2
+    marked = mixing.lo_for(f_in, centre, osc.injection) / mult
+    ordered = round(marked / 1e3) * 1e3  # crystals are ordered to the kilohertz (common practice)
+    if_after = abs(f_in - ordered * mult)
+    return Proposal(f, f"{crystal.name} frequency", [Option(
+        [Change(crystal.places["frequency"], units.plan_text(ordered, "Hz"))],
+        f"{crystal.name} {units.fmt(ordered, 'Hz')}",
+        f"LO {units.fmt(ordered * mult, 'Hz')}, IF {units.fmt(if_after, 'Hz')} against the filter's centre "
+        f"{units.fmt(centre, 'Hz')}")],
+        note="the load pulling of the crystal is left as it is: check the crystal-load finding too",
+        source="f_LO = f_in - f_IF (low side) or f_in + f_IF (high side), the rule's conversion arithmetic")
