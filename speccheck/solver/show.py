@@ -21,7 +21,9 @@ def _proposal_lines(p: Proposal) -> list[str]:
         others = [o for o in p.options if o is not p.chosen]
         for other in others:
             lines.append(f"  or:     {_plain(other.summary)}: {_plain(other.result)}")
-        cleared = ", ".join(_at(f) for f in p.clears)
+        said = [_at(f) for f in p.clears]
+        cleared = ", ".join(dict.fromkeys(f"{at} ({said.count(at)} findings)" if said.count(at) > 1 else at
+                                          for at in said))
         lines.append(f"  clears: {cleared}")
     else:
         lines.append(f"  held back: {_plain(p.held)}")

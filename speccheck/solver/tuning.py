@@ -58,7 +58,8 @@ def crystal_load(s: Situation, f: Finding) -> Proposal | None:
             changes.append(Change(osc.doc_path, units.plan_text(stray, "F"), key="stray"))
         what = (f"{c1.name} = {c2.name} = {units.fmt(a, 'F')}" if a == b else
                 f"{c1.name} {units.fmt(a, 'F')}, {c2.name} {units.fmt(b, 'F')}")
-        what += " (as fitted; the stray is stated)" if fitted else ""
+        what += " as fitted" if fitted else ""
+        what += f", stating the {units.fmt(stray, 'F')} stray" if not stray_given else ""
         options.append(Option(changes, what, f"load {units.fmt(load, 'F')} with {units.fmt(stray, 'F')} stray against "
                                              f"the specified {units.fmt(spec, 'F')} ({pct(load / spec - 1)})"))
     note = "" if stray_given else (f"no stray is stated: {units.fmt(stray, 'F')} (a compact board) is assumed and "
