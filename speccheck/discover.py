@@ -20,12 +20,18 @@ QUIET = {"speccheck-project.yaml", ".pre-commit-config.yaml", ".pre-commit-hooks
 HEAD = 65536
 
 
-def is_build_file(path: Path) -> bool:
+_PARTS_KEY = re.compile(rb"^parts_spec\s*:", re.MULTILINE)
+
+
+def kind_of(path: Path) -> str | None:
+    """'build' or 'parts' by the format key near the top of the file; None for other YAML."""
     try:
         head = files.read_head(path, HEAD)
     except files.FileTrouble:
-        return False
-    return bool(_VERSION_KEY.search(head))
+        return None
+    if _VERSION_KEY.search(head):
+        return "build"
+    return "parts" if _PARTS_KEY.search(head) else None
 
 
 def _key(path: Path) -> str:
@@ -49,10 +55,12 @@ def _sort_out(candidate: Path, tree: Path | None, found: Found, must_be_build: b
     if why:
         found.set_aside.append((candidate, why))
         return
-    if must_be_build and not is_build_file(candidate):
-        found.skipped.append(candidate)
-    else:
+    kind = kind_of(candidate) if must_be_build else "build"
+    if kind == "build":
         found.files.append(candidate)
+    elif kind is None:
+        found.skipped.append(candidate)
+    # a parts file is read through the build that names it: no news in a folder walk
 
 
 def expand(paths, named_must_be_build: bool = False) -> Found:

@@ -360,3 +360,19 @@ def test_a_project_baseline_outside_the_project_is_refused(project):
 def test_sarif_holds_no_absolute_path(project):
     doc = run("check", "--format", "sarif", str(project / "builds")).output
     assert str(project) not in doc and "file://" not in doc
+
+
+def test_the_shipped_parts_file_serves_a_build_and_a_folder_walk_passes_it_over_quietly(project):
+    import shutil
+
+    from conftest import EXAMPLES
+
+    (project / "builds" / "parts").mkdir()
+    shutil.copy(EXAMPLES / "parts" / "bench-amp-profiles.yaml", project / "builds" / "parts")
+    plan = with_parts_files(project, "parts/bench-amp-profiles.yaml")
+    plan.write_text(edited(plan.read_text(), "U2: {profile: audio-power-amp-lv,", "U2: {profile: bench-amp,"))
+    result = check_plan(plan, project)
+    assert not [f for f in result.findings if f.rule.startswith("input.")]
+    assert result.checked
+    res = run("check", "builds")
+    assert res.exit_code == 0 and "bench-amp-profiles" not in res.output
