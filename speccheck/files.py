@@ -19,7 +19,6 @@ from __future__ import annotations
 
 import os
 import stat
-import tempfile
 from pathlib import Path
 
 _READ_FLAGS = os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOCTTY", 0)
@@ -146,6 +145,8 @@ def write_atomic(path: str | Path, text: str, *, force: bool = False, mode: int 
         raise FileTrouble("exists; add --force to overwrite it")
     if path.is_dir() and not path.is_symlink():
         raise FileTrouble("is a folder")
+    import tempfile  # only a writing command needs it; a plain check must not start slower
+
     folder = path.parent if str(path.parent) else Path(".")
     try:
         fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
