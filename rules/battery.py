@@ -66,10 +66,20 @@ def needs(build) -> list:
         prof = dev.profile
         if prof.cls == REGULATOR:
             outs = regulator_outputs(build, dev)
-            v_out = rail_volts(build, outs[0]) if outs else (prof.output_voltage.si if prof.output_voltage else None)
+            v_out = (
+                rail_volts(build, outs[0])
+                if outs
+                else (prof.output_voltage.si if prof.output_voltage else None)
+            )
             if v_out is not None and prof.dropout is not None:
-                out.append((dev, f"{fmt(v_out, 'V')} out plus its {prof.dropout.text} dropout",
-                            v_out + prof.dropout.si, dev.at("rail")))
+                out.append(
+                    (
+                        dev,
+                        f"{fmt(v_out, 'V')} out plus its {prof.dropout.text} dropout",
+                        v_out + prof.dropout.si,
+                        dev.at("rail"),
+                    )
+                )
         elif prof.supply_min is not None:
             out.append((dev, f"its {prof.supply_min.text} least supply", prof.supply_min.si, dev.at("rail")))
     return out
@@ -88,9 +98,11 @@ def _lower_bound(p: Pack) -> str:
     return "" if p.complete else " (the budget is incomplete, so the real current is higher)"
 
 
-@rule("battery.sag", level="warning",
-      title="Battery voltage under the build's current",
-      explanation="""
+@rule(
+    "battery.sag",
+    level="warning",
+    title="Battery voltage under the build's current",
+    explanation="""
       A battery is a source with an internal resistance: under a current I its terminal voltage
       falls to V_open - I x R_internal. A small battery (a 9 V block is six small cells in series)
       has an internal resistance of a few ohms when new and more as it empties, so an audio
@@ -100,13 +112,14 @@ def _lower_bound(p: Pack) -> str:
       nominal voltage (setting share, default 0.1) is a warning: the audio distorts on peaks and
       the battery is worked hard.
       """,
-      fix="Use a larger battery (bigger cells, or cells in parallel), a chemistry with a lower internal "
-          "resistance, or reduce the current (a smaller speaker output, a lower supply for the amplifier).",
-      source="Thevenin source model of a cell (V = V_open - I R); nominal voltages IEC 60086-1, IEC 61951, "
-             "IEC 61960, IEC 60896; fresh voltage and internal resistance by chemistry from memory",
-      verify="Measure the battery's terminal voltage with the build idle and at full volume on a steady tone: "
-             "the difference is the sag.",
-      settings={"share": 0.1})
+    fix="Use a larger battery (bigger cells, or cells in parallel), a chemistry with a lower internal "
+    "resistance, or reduce the current (a smaller speaker output, a lower supply for the amplifier).",
+    source="Thevenin source model of a cell (V = V_open - I R); nominal voltages IEC 60086-1, IEC 61951, "
+    "IEC 61960, IEC 60896; fresh voltage and internal resistance by chemistry from memory",
+    verify="Measure the battery's terminal voltage with the build idle and at full volume on a steady "
+    "tone: the difference is the sag.",
+    settings={"share": 0.1},
+)
 def sag(build, ctx):
     p = pack(build)
     if p is None:
@@ -120,23 +133,40 @@ def sag(build, ctx):
     drop = p.fresh - p.fresh_loaded
     ctx.publish("power", who, "sag at the budget current", drop, "V")
     ctx.publish("power", who, "fresh voltage under load", p.fresh_loaded, "V")
-    values = [Value("fresh open-circuit", p.fresh, "V"), Value("budget current", p.current, "A"),
-              Value("internal resistance", p.resistance, "Ω"), Value("under load", p.fresh_loaded, "V")]
+    values = [
+        Value("fresh open-circuit", p.fresh, "V"),
+        Value("budget current", p.current, "A"),
+        Value("internal resistance", p.resistance, "Ω"),
+        Value("under load", p.fresh_loaded, "V"),
+    ]
     short = [(dev, what, need, loc) for dev, what, need, loc in needs(build) if need > p.fresh_loaded]
     for dev, what, need, loc in short:
-        ctx.report(f"even a fresh {p.chemistry} battery ({fmt(p.fresh, 'V')} open-circuit, {_r_text(p)}) falls to "
-                   f"{fmt(p.fresh_loaded, 'V')} at the budget current of {fmt(p.current, 'A')}{_lower_bound(p)}, "
-                   f"below the {fmt(need, 'V')} that {dev.name} needs ({what}): it will not run from this battery",
-                   loc, values + [Value("needed", need, "V")], level="error", stage="power")
+        ctx.report(
+            f"even a fresh {p.chemistry} battery ({fmt(p.fresh, 'V')} open-circuit, {_r_text(p)}) "
+            f"falls to {fmt(p.fresh_loaded, 'V')} at the budget current of "
+            f"{fmt(p.current, 'A')}{_lower_bound(p)}, below the {fmt(need, 'V')} that {dev.name} "
+            f"needs ({what}): it will not run from this battery",
+            loc,
+            values + [Value("needed", need, "V")],
+            level="error",
+            stage="power",
+        )
     if not short and drop > ctx.setting("share") * p.nominal:
-        ctx.report(f"the {p.chemistry} battery sags {fmt(drop, 'V')} ({drop / p.nominal:.0%} of its "
-                   f"{fmt(p.nominal, 'V')}) at the budget current of {fmt(p.current, 'A')} through {_r_text(p)}"
-                   f"{_lower_bound(p)}", _where(build), values, stage="power")
+        ctx.report(
+            f"the {p.chemistry} battery sags {fmt(drop, 'V')} ({drop / p.nominal:.0%} of its "
+            f"{fmt(p.nominal, 'V')}) at the budget current of {fmt(p.current, 'A')} through "
+            f"{_r_text(p)}{_lower_bound(p)}",
+            _where(build),
+            values,
+            stage="power",
+        )
 
 
-@rule("battery.end-of-life", level="warning",
-      title="What stops working before the battery is flat",
-      explanation="""
+@rule(
+    "battery.end-of-life",
+    level="warning",
+    title="What stops working before the battery is flat",
+    explanation="""
       A battery's voltage falls as it discharges, down to an end voltage per cell at which it
       counts as flat (about 0.9 V for an alkaline cell, 1.0 V for nickel-metal hydride, 3.0 V for
       lithium-ion: from memory; give end_voltage for your cells). A regulator stops regulating when
@@ -145,12 +175,13 @@ def sag(build, ctx):
       the charge is still in the battery: a warning, with the voltage at which it stops. A fresh
       battery above a chip's highest supply voltage would damage it: an error.
       """,
-      fix="Use a low-dropout regulator, a lower output voltage, more cells, or a chemistry whose voltage stays "
-          "up longer; keep every chip's supply range above the battery's end voltage.",
-      source="regulator dropout and supply range from the device profiles; end voltages per cell from memory "
-             "(the usual discharge-test end points)",
-      verify="Run the build from a bench supply and lower the voltage until the audio distorts or the regulator's "
-             "output falls: compare that voltage with the battery's end voltage.")
+    fix="Use a low-dropout regulator, a lower output voltage, more cells, or a chemistry whose voltage "
+    "stays up longer; keep every chip's supply range above the battery's end voltage.",
+    source="regulator dropout and supply range from the device profiles; end voltages per cell from memory "
+    "(the usual discharge-test end points)",
+    verify="Run the build from a bench supply and lower the voltage until the audio distorts or the "
+    "regulator's output falls: compare that voltage with the battery's end voltage.",
+)
 def end_of_life(build, ctx):
     p = pack(build)
     if p is None:
@@ -162,26 +193,41 @@ def end_of_life(build, ctx):
             window = p.fresh_loaded - p.end_loaded
             used = (p.fresh_loaded - need) / window if window > 0 else 0.0
             ctx.publish("power", dev.name, "stops when the battery falls to (under load)", need, "V")
-            ctx.report(f"{dev.name} needs {fmt(need, 'V')} ({what}), so the build stops when the battery falls "
-                       f"to {fmt(need, 'V')} under load, long before it is flat at {fmt(p.end, 'V')} "
-                       f"({p.count} × {fmt(p.end / p.count, 'V')}): only {used:.0%} of the battery's voltage range "
-                       f"is used", loc, [Value("needed", need, "V"), Value("end voltage", p.end, "V"),
-                                         Value("fresh under load", p.fresh_loaded, "V")], stage="power")
+            ctx.report(
+                f"{dev.name} needs {fmt(need, 'V')} ({what}), so the build stops when the battery "
+                f"falls to {fmt(need, 'V')} under load, long before it is flat at {fmt(p.end, 'V')} "
+                f"({p.count} × {fmt(p.end / p.count, 'V')}): only {used:.0%} of the battery's "
+                "voltage range is used",
+                loc,
+                [
+                    Value("needed", need, "V"),
+                    Value("end voltage", p.end, "V"),
+                    Value("fresh under load", p.fresh_loaded, "V"),
+                ],
+                stage="power",
+            )
     supply_rail = build.supply.rail
     for dev in build.devices.values():
         prof = dev.profile
         if prof is None or prof.supply_max is None or dev.rail != supply_rail:
             continue
         if p.fresh > prof.supply_max.si:
-            ctx.report(f"a fresh {p.chemistry} battery reads {fmt(p.fresh, 'V')} ({p.count} × "
-                       f"{fmt(p.fresh / p.count, 'V')}), above the {prof.supply_max.text} that {dev.name} takes",
-                       dev.at("rail"), [Value("fresh open-circuit", p.fresh, "V"),
-                                        Value("supply_max", prof.supply_max.si, "V")], level="error", stage="power")
+            ctx.report(
+                f"a fresh {p.chemistry} battery reads {fmt(p.fresh, 'V')} ({p.count} × "
+                f"{fmt(p.fresh / p.count, 'V')}), above the {prof.supply_max.text} that {dev.name} "
+                "takes",
+                dev.at("rail"),
+                [Value("fresh open-circuit", p.fresh, "V"), Value("supply_max", prof.supply_max.si, "V")],
+                level="error",
+                stage="power",
+            )
 
 
-@rule("battery.running-time", level="warning",
-      title="How long the battery runs the build",
-      explanation="""
+@rule(
+    "battery.running-time",
+    level="warning",
+    title="How long the battery runs the build",
+    explanation="""
       Running time is the capacity divided by the current: t = C / I. A capacity is rated at a
       small current (capacity_at); at a larger one a battery gives less, which Peukert's law
       describes: t = H (C / (I H))^k with H = C / I_rated and an exponent k of about 1.3 for
@@ -189,19 +235,26 @@ def end_of_life(build, ctx):
       budget's, with the amplifier at full output, so real listening lasts longer; a time under
       the setting min_hours (default 2) is a warning: the battery is too small for the build.
       """,
-      fix="Use a battery with more capacity (larger cells, or a pack), or lower the current the build draws.",
-      source="Peukert's law as written in Linden's Handbook of Batteries (t = H (C/(I H))^k); exponents from memory",
-      verify="Run the build on a fresh battery at a steady volume and note when it stops; or log the current with "
-             "a meter and divide the capacity by it.",
-      settings={"min_hours": 2.0})
+    fix="Use a battery with more capacity (larger cells, or a pack), or lower the current the build draws.",
+    source="Peukert's law as written in Linden's Handbook of Batteries (t = H (C/(I H))^k); exponents "
+    "from memory",
+    verify="Run the build on a fresh battery at a steady volume and note when it stops; or log the "
+    "current with a meter and divide the capacity by it.",
+    settings={"min_hours": 2.0},
+)
 def running_time(build, ctx):
     p = pack(build)
     if p is None:
         return
     bat = build.supply.battery
     if bat.capacity is None:
-        ctx.report("supply.battery.capacity is not given, so the running time cannot be computed", bat.loc,
-                   level="note", stage="power", fix="Give supply.battery.capacity (e.g. '500 mAh').")
+        ctx.report(
+            "supply.battery.capacity is not given, so the running time cannot be computed",
+            bat.loc,
+            level="note",
+            stage="power",
+            fix="Give supply.battery.capacity (e.g. '500 mAh').",
+        )
         return
     capacity_ah = bat.capacity.si / 3600.0
     rated = bat.capacity_at.si if bat.capacity_at is not None else None
@@ -210,9 +263,18 @@ def running_time(build, ctx):
     ctx.publish("power", "battery", "capacity", capacity_ah, "Ah")
     ctx.publish("power", "battery", "running time at the budget current", hours, "h")
     if hours < ctx.setting("min_hours"):
-        how = (f"Peukert exponent {k:g} from the {fmt(rated, 'A')} rating" if rated else "capacity over current")
-        ctx.report(f"the battery's {bat.capacity.text} lasts about {hours:.2g} h at the budget current of "
-                   f"{fmt(p.current, 'A')} ({how}){_lower_bound(p)}, under the {ctx.setting('min_hours'):g} h "
-                   f"a battery build should run", bat.at("capacity"),
-                   [Value("capacity", capacity_ah, "Ah"), Value("budget current", p.current, "A"),
-                    Value("running time", hours, "h")], stage="power")
+        how = (
+            f"Peukert exponent {k:g} from the {fmt(rated, 'A')} rating" if rated else "capacity over current"
+        )
+        ctx.report(
+            f"the battery's {bat.capacity.text} lasts about {hours:.2g} h at the budget current of "
+            f"{fmt(p.current, 'A')} ({how}){_lower_bound(p)}, under the {ctx.setting('min_hours'):g} "
+            "h a battery build should run",
+            bat.at("capacity"),
+            [
+                Value("capacity", capacity_ah, "Ah"),
+                Value("budget current", p.current, "A"),
+                Value("running time", hours, "h"),
+            ],
+            stage="power",
+        )

@@ -95,8 +95,8 @@ def unreachable(build, ctx):
     islands = [p for p in build.parts.values() if p.terminals and not set(p.terminals.values()) & reached]
     if islands:
         names = ", ".join(p.name for p in islands)
-        ctx.report(f"{names} connect{'s' if len(islands) == 1 else ''} to no rail, device pin or declared node: "
-                   f"{'it floats' if len(islands) == 1 else 'they float'}", islands[0].loc,
+        ctx.report(f"{names} connect{'s' if len(islands) == 1 else ''} to no rail, device pin or declared "
+                   f"node: {'it floats' if len(islands) == 1 else 'they float'}", islands[0].loc,
                    [Value("parts", names)], stage="parts")
 
 
@@ -110,10 +110,11 @@ def unreachable(build, ctx):
       it shifts its bias point. A coupling capacitor in series blocks the DC and passes the
       audio.
       """,
-      fix="Put a coupling capacitor (1 µF to 10 µF for audio) in series between the DC-carrying output and the "
-          "pot or input.",
+      fix="Put a coupling capacitor (1 µF to 10 µF for audio) in series between the DC-carrying output and "
+          "the pot or input.",
       source="common practice (coupling capacitors block DC between stages)",
-      verify="Measure the DC across the pot's track or at the input with the build on: it should be near 0 V.",
+      verify="Measure the DC across the pot's track or at the input with the build on: it should be near 0 "
+             "V.",
       settings={"threshold": 0.1})
 def dc_unblocked(build, ctx):
     if build.build_spec != 2:
@@ -133,11 +134,11 @@ def dc_unblocked(build, ctx):
         ctx.report(f"{part.name}'s track carries {fmt(abs(a.volts - b.volts), 'V')} DC from {src.origin}: "
                    f"{src.why}", part.at("ends"), [Value("DC across the track", abs(a.volts - b.volts), "V")],
                    stage=build.stage_of_part(part.name).label if build.stage_of_part(part.name) else "parts")
-    for i, tap in enumerate(build.taps):
+    for tap in build.taps:
         pot = nets.dc(tap.net)
         if tap.needs_dc_blocked and not tap.coupling and pot is not None and abs(pot.volts) >= least:
-            ctx.report(f"tap {tap.name} feeds {fmt(pot.volts, 'V')} DC from {tap.net} into a load that must not "
-                       f"see DC, with no coupling capacitor: {pot.why}", tap.at("net"),
+            ctx.report(f"tap {tap.name} feeds {fmt(pot.volts, 'V')} DC from {tap.net} into a load that must "
+                       f"not see DC, with no coupling capacitor: {pot.why}", tap.at("net"),
                        [Value("DC at the tap", pot.volts, "V")], stage="tap")
     for dev in build.devices.values():
         for pin in (dev.profile.pins.values() if dev.profile else ()):

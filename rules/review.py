@@ -14,7 +14,8 @@ define("review.waiver-reason", level="warning",
        silenced, and nobody can tell when the reason stops holding. speccheck therefore does not
        honour a waiver without a reason: the finding it names stays open.
        """,
-       fix="Write the reason after the word 'because': `# waive RULE-ID because REASON` (why it is acceptable here).",
+       fix="Write the reason after the word 'because': `# waive RULE-ID because REASON` (why it is "
+           "acceptable here).",
        source="speccheck waiver syntax",
        verify="Re-run the check: the finding shows as waived with your reason, and this finding is gone.")
 
@@ -28,7 +29,8 @@ define("review.waiver-unused", level="warning",
        fix="Delete the waiver if the finding is gone, or move it onto (or directly above) the line the "
            "finding points at.",
        source="speccheck waiver syntax",
-       verify="Re-run the check without the waiver: if nothing of that rule appears there, the waiver was stale.")
+       verify="Re-run the check without the waiver: if nothing of that rule appears there, the waiver was "
+              "stale.")
 
 define("review.waiver-unknown-rule", level="warning",
        title="A waiver names no rule that can be waived",
@@ -37,7 +39,8 @@ define("review.waiver-unknown-rule", level="warning",
        input or review finding, which cannot be waived: input findings mean the plan could not be
        read, and review findings are about the waivers themselves.
        """,
-       fix="Correct the rule id (`speccheck rules` lists them), or fix the input problem instead of waiving it.",
+       fix="Correct the rule id (`speccheck rules` lists them), or fix the input problem instead of waiving "
+           "it.",
        source="speccheck waiver syntax",
        verify="`speccheck explain RULE-ID` prints the rule when the id is right.")
 

@@ -35,7 +35,7 @@ def main_path_input(build, tap) -> tuple[float | None, list]:
 def source_resistance(build, net: str):
     pin_of = split_pin(net)
     dev = build.device(pin_of[0]) if pin_of else None
-    pin = dev.pin(pin_of[1]) if dev is not None else None
+    pin = dev.pin(pin_of[1]) if dev is not None and pin_of else None
     return pin.output_impedance if pin is not None else None
 
 
@@ -52,21 +52,33 @@ def source_resistance(build, net: str):
       fix="Raise the tap's series resistor, or buffer the tap (an emitter or op-amp follower) so it draws "
           "no signal from the main path.",
       source="voltage divider V_out/V_in = R_load / (R_load + R_source)",
-      verify="Measure the audio level at the tap's source net with the tap's load connected and disconnected.",
+      verify="Measure the audio level at the tap's source net with the tap's load connected and "
+             "disconnected.",
       settings={"max_loss": 1.0})
 def loading(build, ctx):
     for i, tap in enumerate(build.taps):
         z = source_resistance(build, tap.net)
         series = build.part(tap.series)
         if z is None or tap.load is None:
-            what = f"taps[{i}].load" if tap.load is None else f"the output_impedance of {tap.net} (its profile pin)"
-            ctx.report(f"tap {tap.name}: {what} is not given, so what the tap costs the main path cannot be "
-                       "computed", tap.loc, level="note", stage="tap", fix=f"Give {what}.")
+            what = (
+                f"taps[{i}].load"
+                if tap.load is None
+                else f"the output_impedance of {tap.net} (its profile pin)"
+            )
+            ctx.report(
+                f"tap {tap.name}: {what} is not given, so what the tap costs the main path cannot be "
+                "computed",
+                tap.loc,
+                level="note",
+                stage="tap",
+                fix=f"Give {what}.",
+            )
             continue
         r_tap = tap.load.si + (series.value.si if series is not None and series.value is not None else 0.0)
         r_main, parts = main_path_input(build, tap)
-        delivered = divider_db(parallel(r_tap, r_main) if r_main else r_tap, z.si) + \
-            divider_db(tap.load.si, r_tap - tap.load.si)
+        delivered = divider_db(parallel(r_tap, r_main) if r_main else r_tap, z.si) + divider_db(
+            tap.load.si, r_tap - tap.load.si
+        )
         ctx.publish("tap", tap.name, "tap load (series + input)", r_tap, "Ω")
         ctx.publish("tap", tap.name, "level at the tap's load, from the open source", delivered, "dB")
         if r_main is None:
@@ -78,8 +90,16 @@ def loading(build, ctx):
         ctx.publish("tap", tap.name, "level the tap costs the main path", cost, "dB")
         if cost > ctx.setting("max_loss"):
             names = ", ".join(p.name for p in parts)
-            ctx.report(f"tap {tap.name} loads {tap.net} with {fmt(r_tap, 'Ω')} beside the main path's "
-                       f"{fmt(r_main, 'Ω')} ({names}), through the pin's {z.text}: the main path loses "
-                       f"{cost:.2g} dB", tap.at("load"),
-                       [Value("tap load", r_tap, "Ω"), Value("main path input", r_main, "Ω"),
-                        Value("source resistance", z.si, "Ω"), Value("main path loss", cost, "dB")], stage="tap")
+            ctx.report(
+                f"tap {tap.name} loads {tap.net} with {fmt(r_tap, 'Ω')} beside the main path's "
+                f"{fmt(r_main, 'Ω')} ({names}), through the pin's {z.text}: the main path loses "
+                f"{cost:.2g} dB",
+                tap.at("load"),
+                [
+                    Value("tap load", r_tap, "Ω"),
+                    Value("main path input", r_main, "Ω"),
+                    Value("source resistance", z.si, "Ω"),
+                    Value("main path loss", cost, "dB"),
+                ],
+                stage="tap",
+            )

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import weakref
 from dataclasses import dataclass, field
+from typing import Any
 
 from speccheck.formulas.amplifiers import class_b_full_output
 
@@ -68,13 +69,13 @@ def bulk_capacitors(build, rail: str | None) -> list:
 
 @dataclass
 class AmpPoint:
-    device: object
+    device: Any
     topology: str
     v_supply: float
     v_negative: float | None
     r_load: float
     load_text: str
-    stage: object
+    stage: Any
 
     @property
     def label(self) -> str:
@@ -89,7 +90,8 @@ def amp_point(build, dev) -> tuple[AmpPoint | None, list]:
     topology = prof.output_topology
     if not topology:
         missing.append((f"profile {prof.name} of {dev.name} does not state output_topology "
-                        f"(profiles.{prof.name}.output_topology: single-ended, bridge or split-supply)", prof.loc))
+                        f"(profiles.{prof.name}.output_topology: single-ended, bridge or split-supply)",
+                        prof.loc))
     v_supply = rail_volts(build, dev.rail)
     if v_supply is None:
         missing.append((f"{dev.name} has no supply rail with a voltage (devices.{dev.name}.rail)", dev.loc))
@@ -97,8 +99,8 @@ def amp_point(build, dev) -> tuple[AmpPoint | None, list]:
     if topology == "split-supply":
         v_negative = rail_volts(build, dev.negative_rail)
         if v_negative is None:
-            missing.append((f"{dev.name} is a split-supply amplifier but devices.{dev.name}.negative_rail does not "
-                            f"name a rail with a voltage", dev.at("negative_rail")))
+            missing.append((f"{dev.name} is a split-supply amplifier but devices.{dev.name}.negative_rail "
+                            "does not name a rail with a voltage", dev.at("negative_rail")))
     r_load, load_text = None, ""
     load = build.part(stage.load) if stage else None
     if load is not None and load.value is not None and load.kind in ("speaker", "resistor"):
@@ -110,7 +112,7 @@ def amp_point(build, dev) -> tuple[AmpPoint | None, list]:
         where = stage.at("load") if stage else dev.loc
         missing.append((f"no load impedance for {dev.name}: name its speaker in the audio-amp stage "
                         f"(chain[].load, with the speaker's value)", where))
-    if missing or v_supply == 0:
+    if missing or v_supply == 0 or v_supply is None or r_load is None:
         return None, missing
     return AmpPoint(dev, topology, v_supply, v_negative, r_load, load_text, stage), []
 
@@ -140,7 +142,7 @@ class Budget:
         return ", ".join(parts)
 
 
-_BUDGETS: "weakref.WeakKeyDictionary" = weakref.WeakKeyDictionary()
+_BUDGETS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
 
 
 def regulator_outputs(build, dev) -> list:
@@ -189,7 +191,7 @@ def budget(build) -> Budget:
         elif prof.cls == REGULATOR:
             regulators.append(dev)
 
-    feeding = {}
+    feeding: dict[str, list[Any]] = {}
     for reg in regulators:
         for out in regulator_outputs(build, reg):
             feeding.setdefault(reg.rail, []).append((reg, out))

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import weakref
 from dataclasses import dataclass, field
+from typing import Any
 
 from speccheck import units
 from speccheck.formulas import bandwidth, resonators, shapes
@@ -50,9 +51,9 @@ class PathBand:
     name: str
     center: float | None
     width: float | None
-    path: object
-    part: object
-    stage: object
+    path: Any
+    part: Any
+    stage: Any
     shape: shapes.Shape | None = None
 
     def attenuation(self, f: float) -> float:
@@ -78,12 +79,16 @@ class PathBand:
         what = f"{self.part.name}" if self.part is not None else "no filter part"
         if self.width is None:
             return what
-        return f"{what}, {khz(self.center)} ± {khz(self.width / 2)}" if self.center else f"{what}, {khz(self.width)}"
+        return (
+            f"{what}, {khz(self.center)} ± {khz(self.width / 2)}"
+            if self.center
+            else f"{what}, {khz(self.width)}"
+        )
 
 
 @dataclass
 class Conversion:
-    stage: object
+    stage: Any
     owner: str
     f_in: float | None
     in_unc: float
@@ -92,8 +97,8 @@ class Conversion:
     lo_unc: float = 0.0
     f_osc: float | None = None
     pull: float = 0.0  # fractional shift of the crystal from its load capacitance
-    crystal: object = None
-    lo_at: object = None  # Location of the value that sets the LO
+    crystal: Any = None
+    lo_at: Any = None  # Location of the value that sets the LO
     side: str | None = None
     f_if: float | None = None
     if_unc: float = 0.0
@@ -109,7 +114,7 @@ class Conversion:
 
 @dataclass
 class FilterPoint:
-    stage: object
+    stage: Any
     f: float | None
     unc: float
     paths: dict
@@ -141,6 +146,7 @@ def response_shape(width: float, *holders, default: str = shapes.DEFAULT_CLASS) 
     states a key wins: an IF path over its filter part): bandwidth_at, response (the class),
     stopband with stopband_at, or shape_factor. What is not stated comes from the class's
     typical shape (speccheck.formulas.shapes.TYPICAL)."""
+
     def pick(name):
         for h in holders:
             value = getattr(h, name, None) if h is not None else None
@@ -158,8 +164,13 @@ def response_shape(width: float, *holders, default: str = shapes.DEFAULT_CLASS) 
         stop_db = stop_at.si if stop_at is not None else (typical.stop_db or 40.0)
         stop_width = stop.si if stop is not None else factor * width
         try:
-            return shapes.from_stopband(width, at_db, stop_width, stop_db,
-                                        what=f"{khz(width)} at {at_db:g} dB, {khz(stop_width)} at {stop_db:g} dB")
+            return shapes.from_stopband(
+                width,
+                at_db,
+                stop_width,
+                stop_db,
+                what=f"{khz(width)} at {at_db:g} dB, {khz(stop_width)} at {stop_db:g} dB",
+            )
         except ValueError:
             pass  # a stopband no wider than the passband: the class's typical shape stands in
     return shapes.from_class(cls, width, at_db)
@@ -179,19 +190,33 @@ def _source_band(src) -> Band | None:
     bands = []
     if src.bandwidth is not None and src.frequency is not None:
         f, bw = src.frequency.si, src.bandwidth.si
-        bands.append(Band(f - bw / 2, f + bw / 2, f"the upstream bandwidth ({khz(bw)} around {hz(f)})",
-                          [(f, source_shape(src))]))
+        bands.append(
+            Band(
+                f - bw / 2,
+                f + bw / 2,
+                f"the upstream bandwidth ({khz(bw)} around {hz(f)})",
+                [(f, source_shape(src))],
+            )
+        )
     pre = src.preselector
     if pre is not None and pre.center is not None and pre.bandwidth is not None:
         c, bw = pre.center.si, pre.bandwidth.si
-        bands.append(Band(c - bw / 2, c + bw / 2, f"the preselector ({khz(bw)} around {hz(c)})",
-                          [(c, response_shape(bw, pre, default="lc"))]))
+        bands.append(
+            Band(
+                c - bw / 2,
+                c + bw / 2,
+                f"the preselector ({khz(bw)} around {hz(c)})",
+                [(c, response_shape(bw, pre, default="lc"))],
+            )
+        )
     if not bands:
         return None
     if len(bands) == 1:
         return bands[0]
     low, high = max(b.low for b in bands), min(b.high for b in bands)
-    return Band(low, max(low, high), " and ".join(b.what for b in bands), [r for b in bands for r in b.responses])
+    return Band(
+        low, max(low, high), " and ".join(b.what for b in bands), [r for b in bands for r in b.responses]
+    )
 
 
 def part_value(build, ref):
@@ -270,9 +295,16 @@ def crystal_load(build, osc):
 def crystal_shift(build, osc, x) -> float | None:
     """Fractional pulling of crystal x by the load the oscillator gives it, if computable."""
     load = crystal_load(build, osc)
-    if load is None or x.load_capacitance is None or x.motional_capacitance is None or x.shunt_capacitance is None:
+    if (
+        load is None
+        or x.load_capacitance is None
+        or x.motional_capacitance is None
+        or x.shunt_capacitance is None
+    ):
         return None
-    return resonators.pulling_shift(x.motional_capacitance.si, x.shunt_capacitance.si, load[0], x.load_capacitance.si)
+    return resonators.pulling_shift(
+        x.motional_capacitance.si, x.shunt_capacitance.si, load[0], x.load_capacitance.si
+    )
 
 
 def _paths(build, stage, default_center) -> dict:
@@ -347,8 +379,12 @@ def frequency_plan(build) -> Plan:
             if bands:
                 names = ", ".join(p.name for p in bands)
                 widest = max(bands, key=lambda p: p.width)  # the path that lets most through
-                ahead = Band(min(p.low for p in bands), max(p.high for p in bands), f"the IF path ({names})",
-                             [(widest.center, widest.shape)] if widest.shape else [])
+                ahead = Band(
+                    min(p.low for p in bands),
+                    max(p.high for p in bands),
+                    f"the IF path ({names})",
+                    [(widest.center, widest.shape)] if widest.shape else [],
+                )
     plan.at["final"] = (f, unc)
     _PLANS[build] = plan
     return plan
@@ -361,5 +397,7 @@ def necessary(sig):
     bn = bandwidth.necessary_bandwidth(sig.modulation, dev, top)
     if not bn:
         return None
-    carson = bandwidth.carson_bandwidth(dev, top) if sig.modulation == "fm" else None
+    carson = None
+    if sig.modulation == "fm" and dev is not None and top is not None:
+        carson = bandwidth.carson_bandwidth(dev, top)
     return bn, carson, bandwidth.emission_designator(bn, sig.modulation, sig.service)

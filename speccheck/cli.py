@@ -71,7 +71,8 @@ def _write(output: str, text: str, force: bool, protected, what: str):
 
     for other in protected:
         if other and files.same_file(output, other):
-            _trouble(f"{plain(output)}: refusing to write the {what} onto {plain(other)}, which this run reads")
+            _trouble(f"{plain(output)}: refusing to write the {what} onto {plain(other)}, which this run "
+                     "reads")
     try:
         files.write_atomic(output, text, force=force)
     except files.FileTrouble as exc:
@@ -88,10 +89,16 @@ def _jobs_option(fn):
 
 
 def _project_options(fn):
-    fn = click.option("--no-config", is_flag=True, help="Ignore any project file; use the built-in defaults.")(fn)
-    fn = click.option("--config", type=click.Path(dir_okay=False), default=None,
-                      help="The project file to use [default: speccheck-project.yaml found by walking up "
-                           "from the checked paths].")(fn)
+    fn = click.option(
+        "--no-config", is_flag=True, help="Ignore any project file; use the built-in defaults."
+    )(fn)
+    fn = click.option(
+        "--config",
+        type=click.Path(dir_okay=False),
+        default=None,
+        help="The project file to use [default: speccheck-project.yaml found by walking up "
+        "from the checked paths].",
+    )(fn)
     return fn
 
 
@@ -103,22 +110,47 @@ def main():
 
 @main.command()
 @click.argument("paths", nargs=-1, required=True, type=click.Path())
-@click.option("--format", "fmt", type=click.Choice(REPORT_FORMATS), default="text", show_default=True,
-              help="How to write the report (sarif: for code-scanning views; markdown: for a pull-request "
-                   "comment or a mentor).")
-@click.option("--fail-level", type=click.Choice(LEVELS), default=None,
-              help="Exit 1 when a finding at this level or above remains [default: the project file's, "
-                   "else error].")
-@click.option("--output", "-o", type=click.Path(dir_okay=False, writable=True), default=None,
-              help="Write the report to this file instead of standard output.")
+@click.option(
+    "--format",
+    "fmt",
+    type=click.Choice(REPORT_FORMATS),
+    default="text",
+    show_default=True,
+    help="How to write the report (sarif: for code-scanning views; markdown: for a pull-request "
+    "comment or a mentor).",
+)
+@click.option(
+    "--fail-level",
+    type=click.Choice(LEVELS),
+    default=None,
+    help="Exit 1 when a finding at this level or above remains [default: the project file's, else error].",
+)
+@click.option(
+    "--output",
+    "-o",
+    type=click.Path(dir_okay=False, writable=True),
+    default=None,
+    help="Write the report to this file instead of standard output.",
+)
 @_project_options
-@click.option("--skip", multiple=True, metavar="RULE",
-              help="Do not run this rule or family (repeatable); adds to the project file's rules.skip.")
-@click.option("--baseline", type=click.Path(dir_okay=False), default=None,
-              help="Report only findings that are not in this baseline file (see `speccheck baseline`).")
-@click.option("--build-files-only", is_flag=True,
-              help="Skip named files that are not build files (no 'build_spec:' key), as in folders; "
-                   "for hooks that pass every changed YAML file.")
+@click.option(
+    "--skip",
+    multiple=True,
+    metavar="RULE",
+    help="Do not run this rule or family (repeatable); adds to the project file's rules.skip.",
+)
+@click.option(
+    "--baseline",
+    type=click.Path(dir_okay=False),
+    default=None,
+    help="Report only findings that are not in this baseline file (see `speccheck baseline`).",
+)
+@click.option(
+    "--build-files-only",
+    is_flag=True,
+    help="Skip named files that are not build files (no 'build_spec:' key), as in folders; "
+    "for hooks that pass every changed YAML file.",
+)
 @_force_option
 @_jobs_option
 def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, build_files_only, force, jobs):
@@ -138,8 +170,8 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
 
         baseline = settings.baseline
         if files_mod.not_regular(baseline):
-            _trouble(f"{_plain(baseline)}: the project file names this baseline, but it cannot be read; write it "
-                     "with `speccheck baseline PATHS`")
+            _trouble(f"{_plain(baseline)}: the project file names this baseline, but it cannot be read; "
+                     "write it with `speccheck baseline PATHS`")
     if baseline:
         from speccheck import baseline as baseline_mod
 
@@ -171,8 +203,13 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
 
 @main.command("baseline")
 @click.argument("paths", nargs=-1, required=True, type=click.Path())
-@click.option("--output", "-o", type=click.Path(dir_okay=False), default=None,
-              help="The baseline file to write (JSON) [default: the one the project file names].")
+@click.option(
+    "--output",
+    "-o",
+    type=click.Path(dir_okay=False),
+    default=None,
+    help="The baseline file to write (JSON) [default: the one the project file names].",
+)
 @_project_options
 @_force_option
 @_jobs_option
@@ -195,8 +232,11 @@ def baseline_cmd(paths, output, config, no_config, force, jobs):
     text = baseline_mod.dumps(results, settings)
     _write(output, text, force, [*files, settings.source], "baseline")
     count = sum(len(r.findings) for r in results)
-    click.echo(f"speccheck: wrote {count} finding{'' if count == 1 else 's'} from {len(results)} "
-               f"file{'' if len(results) == 1 else 's'} to {_plain(output)}", err=True)
+    click.echo(
+        f"speccheck: wrote {count} finding{'' if count == 1 else 's'} from {len(results)} "
+        f"file{'' if len(results) == 1 else 's'} to {_plain(output)}",
+        err=True,
+    )
     if any(f.rule == "input.unreadable" for r in results for f in r.findings):
         sys.exit(EXIT_TROUBLE)
 
@@ -241,8 +281,14 @@ def list_rules(family):
 
 @main.command()
 @click.argument("path", type=click.Path(dir_okay=False))
-@click.option("--format", "fmt", type=click.Choice(["text", "json", "markdown"]), default="text",
-              show_default=True, help="How to write the sheet.")
+@click.option(
+    "--format",
+    "fmt",
+    type=click.Choice(["text", "json", "markdown"]),
+    default="text",
+    show_default=True,
+    help="How to write the sheet.",
+)
 @_project_options
 def sheet(path, fmt, config, no_config):
     """Print the design sheet of one build: every value the rules derived, with units."""
@@ -261,14 +307,25 @@ def sheet(path, fmt, config, no_config):
     blocking = [f for f in result.findings if f.rule.startswith("input.")]
     for f in blocking:
         click.echo(finding_lines(f)[0], err=True)
-    sys.exit(EXIT_TROUBLE if any(f.rule == "input.unreadable" for f in blocking) else
-             EXIT_FINDINGS if blocking else EXIT_CLEAN)
+    sys.exit(
+        EXIT_TROUBLE
+        if any(f.rule == "input.unreadable" for f in blocking)
+        else EXIT_FINDINGS
+        if blocking
+        else EXIT_CLEAN
+    )
 
 
 @main.command()
 @click.argument("kind", type=click.Choice(["build", "project"]), default="build", required=False)
-@click.option("--version", "version", type=click.Choice(["1", "2"]), default="2", show_default=True,
-              help="Which build format version to print.")
+@click.option(
+    "--version",
+    "version",
+    type=click.Choice(["1", "2"]),
+    default="2",
+    show_default=True,
+    help="Which build format version to print.",
+)
 def schema(kind, version):
     """Print a JSON Schema: of the build format (default), or of the project file."""
     from importlib import resources
@@ -277,15 +334,21 @@ def schema(kind, version):
     from speccheck.schema import SCHEMA_FILES
 
     name = SCHEMA_FILES[int(version)] if kind == "build" else PROJECT_SCHEMA
-    click.echo(resources.files("speccheck").joinpath("schema", name).read_text("utf-8"), nl=False)
+    click.echo(resources.files("speccheck").joinpath("schema").joinpath(name).read_text("utf-8"), nl=False)
 
 
 @main.command()
-@click.option("--layout", default=None, metavar="NAME",
-              help="Which configuration to start from; `--list` shows them.")
+@click.option(
+    "--layout", default=None, metavar="NAME", help="Which configuration to start from; `--list` shows them."
+)
 @click.option("--list", "list_layouts", is_flag=True, help="List the layouts and exit.")
-@click.option("--output", "-o", type=click.Path(dir_okay=False, writable=True), default=None,
-              help="Write the starter to this file instead of standard output.")
+@click.option(
+    "--output",
+    "-o",
+    type=click.Path(dir_okay=False, writable=True),
+    default=None,
+    help="Write the starter to this file instead of standard output.",
+)
 @click.option("--force", is_flag=True, help="Overwrite the output file if it exists.")
 def starter(layout, list_layouts, output, force):
     """Write a commented starter build file that checks clean as written."""
@@ -309,14 +372,23 @@ def starter(layout, list_layouts, output, force):
         click.echo(text, nl=False)
         return
     _write(output, text, force, [], "starter")
-    click.echo(f"speccheck: wrote the {layout} starter to {_plain(output)}; check it with "
-               f"`speccheck check {_plain(output)}`", err=True)
+    click.echo(
+        f"speccheck: wrote the {layout} starter to {_plain(output)}; check it with "
+        f"`speccheck check {_plain(output)}`",
+        err=True,
+    )
 
 
 @main.command()
 @click.argument("path", type=click.Path(dir_okay=False))
-@click.option("--output", "-o", "folder", type=click.Path(file_okay=False), required=True,
-              help="The folder to write the decks into (made if missing).")
+@click.option(
+    "--output",
+    "-o",
+    "folder",
+    type=click.Path(file_okay=False),
+    required=True,
+    help="The folder to write the decks into (made if missing).",
+)
 @click.option("--force", is_flag=True, help="Replace deck files that already exist.")
 @_project_options
 def spice(path, folder, force, config, no_config):
@@ -357,21 +429,33 @@ def spice(path, folder, force, config, no_config):
         target.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
         _trouble(f"{folder}: cannot make the folder: {exc.strerror}")
-    for deck, deck_file in zip(decks, paths):
+    for deck, deck_file in zip(decks, paths, strict=True):
         try:
             write_atomic(deck_file, deck.text(result.build_name, str(path)), force=force)
         except FileTrouble as exc:
             _trouble(f"{_plain(deck_file)} {exc}")
-    click.echo(f"speccheck: wrote {len(decks)} deck{'' if len(decks) == 1 else 's'} to {folder}: "
-               f"{', '.join(p.name for p in paths)}; run one with `ngspice -b DECK`", err=True)
+    click.echo(
+        f"speccheck: wrote {len(decks)} deck{'' if len(decks) == 1 else 's'} to {folder}: "
+        f"{', '.join(p.name for p in paths)}; run one with `ngspice -b DECK`",
+        err=True,
+    )
 
 
 @main.command()
 @click.argument("path", type=click.Path(dir_okay=False))
-@click.option("--series", type=click.Choice(["E12", "E24", "E96"]), default="E12", show_default=True,
-              help="The IEC 60063 series to pick resistors, capacitors and coils from (coils stop at E24).")
-@click.option("--apply", "apply_changes", is_flag=True,
-              help="Write the proposed changes into the plan (atomically), then check it again.")
+@click.option(
+    "--series",
+    type=click.Choice(["E12", "E24", "E96"]),
+    default="E12",
+    show_default=True,
+    help="The IEC 60063 series to pick resistors, capacitors and coils from (coils stop at E24).",
+)
+@click.option(
+    "--apply",
+    "apply_changes",
+    is_flag=True,
+    help="Write the proposed changes into the plan (atomically), then check it again.",
+)
 @_project_options
 def solve(path, series, apply_changes, config, no_config):
     """Propose buyable part values that clear the plan's findings, as a diff of the plan.

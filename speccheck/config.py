@@ -14,10 +14,11 @@ from __future__ import annotations
 import difflib
 import math
 import os
-from functools import lru_cache
 import re
 from dataclasses import dataclass, field
+from functools import lru_cache
 from pathlib import Path
+from typing import Any
 
 PROJECT_FILE = "speccheck-project.yaml"
 PROJECT_SCHEMA = "project-v1.json"
@@ -147,7 +148,8 @@ def _schema():
     import json
     from importlib import resources
 
-    return json.loads(resources.files("speccheck").joinpath("schema", PROJECT_SCHEMA).read_text("utf-8"))
+    schema_file = resources.files("speccheck").joinpath("schema").joinpath(PROJECT_SCHEMA)
+    return json.loads(schema_file.read_text("utf-8"))
 
 
 def _suggest(word, choices) -> str:
@@ -157,7 +159,9 @@ def _suggest(word, choices) -> str:
 
 class _Reader:
     def __init__(self, file: str, doc):
-        self.file, self.doc, self.errors, self._at = file, doc, [], []
+        self.file, self.doc = file, doc
+        self.errors: list[Any] = []
+        self._at: list[tuple[int, int]] = []
 
     def error(self, path, message: str, at_key: bool = False):
         mark = self.doc.key_mark(tuple(path)) if at_key else self.doc.mark(tuple(path))
@@ -166,7 +170,7 @@ class _Reader:
 
     def sorted(self) -> list[str]:
         at = self._at + [(0, 0)] * (len(self.errors) - len(self._at))
-        return [e for _, e in sorted(zip(at, self.errors), key=lambda pair: pair[0])]
+        return [e for _, e in sorted(zip(at, self.errors, strict=True), key=lambda pair: pair[0])]
 
 
 def _schema_errors(reader: _Reader, data):
@@ -181,8 +185,13 @@ def _schema_errors(reader: _Reader, data):
         if (error.validator == "pattern" and isinstance(container, dict) and isinstance(error.instance, str)
                 and error.instance in container):  # from propertyNames: point at the key itself
             what = error.schema.get("description", "a rule id").split(":")[0]
-            explained = [(path + (error.instance,), f"'{error.instance}' is not a valid name here: expected {what}",
-                          True)]
+            explained = [
+                (
+                    path + (error.instance,),
+                    f"'{error.instance}' is not a valid name here: expected {what}",
+                    True,
+                )
+            ]
         else:
             explained = build_schema_mod.explain(error)
         for where, message, at_key in explained:
@@ -210,7 +219,9 @@ def _names_check(reader: _Reader, rules: dict, names, path, what: str, at_key: b
         where = path + ((name,) if at_key else (i,))
         if not _known(name, rules):
             kind = "rule id" if "." in name else "rule family"
-            reader.error(where, f"unknown {kind} '{name}' in {what}{_suggest(name, [*rules, *families])}", at_key)
+            reader.error(
+                where, f"unknown {kind} '{name}' in {what}{_suggest(name, [*rules, *families])}", at_key
+            )
 
 
 def _expand(name: str, rules: dict) -> list[str]:
@@ -284,8 +295,12 @@ def load_project(path) -> Settings:
     if data is None:
         data = {}
     if not isinstance(data, dict):
-        raise ConfigError([f"{file}:1:1: the project file should be a mapping of keys (speccheck_project, rules, "
-                           "files, fail_level)"])
+        raise ConfigError(
+            [
+                f"{file}:1:1: the project file should be a mapping of keys (speccheck_project, "
+                "rules, files, fail_level)"
+            ]
+        )
     _schema_errors(reader, data)
     if reader.errors:
         raise ConfigError(reader.sorted())
@@ -298,13 +313,18 @@ def load_project(path) -> Settings:
     _names_check(reader, rules, list(section.get("levels") or {}), ("rules", "levels"), "rules.levels", True)
     for i, name in enumerate(section.get("skip") or []):
         if name.split(".", 1)[0] == "input":
-            reader.error(("rules", "skip", i), f"'{name}' cannot be skipped: input findings say the file could "
-                         "not be read as a build plan, and every other rule depends on that")
+            reader.error(
+                ("rules", "skip", i),
+                f"'{name}' cannot be skipped: input findings say the file could "
+                "not be read as a build plan, and every other rule depends on that",
+            )
     for rule_id, values in (section.get("settings") or {}).items():
         found = rules.get(rule_id)
         where = ("rules", "settings", rule_id)
         if found is None:
-            reader.error(where, f"unknown rule id '{rule_id}' in rules.settings{_suggest(rule_id, rules)}", True)
+            reader.error(
+                where, f"unknown rule id '{rule_id}' in rules.settings{_suggest(rule_id, rules)}", True
+            )
             continue
         if not found.settings:
             reader.error(where, f"rule {rule_id} has no settings", True)
@@ -312,15 +332,23 @@ def load_project(path) -> Settings:
         for name, value in (values or {}).items():
             if name not in found.settings:
                 have = ", ".join(sorted(found.settings))
-                reader.error(where + (name,), f"rule {rule_id} has no setting '{name}' (it has: {have})"
-                             f"{_suggest(name, found.settings)}", True)
+                reader.error(
+                    where + (name,),
+                    f"rule {rule_id} has no setting '{name}' (it has: {have})"
+                    f"{_suggest(name, found.settings)}",
+                    True,
+                )
             elif not _type_ok(value, found.settings[name]):
                 default = found.settings[name]
-                reader.error(where + (name,), f"{rule_id}.{name} should be {_kind(default)} like its default "
-                             f"{default!r}, got {value!r}")
+                reader.error(
+                    where + (name,),
+                    f"{rule_id}.{name} should be {_kind(default)} like its default "
+                    f"{default!r}, got {value!r}",
+                )
             elif _range_problem(name, value):
-                reader.error(where + (name,), f"{rule_id}.{name} is {value!r}, but it "
-                             f"{_range_problem(name, value)}")
+                reader.error(
+                    where + (name,), f"{rule_id}.{name} is {value!r}, but it {_range_problem(name, value)}"
+                )
     if reader.errors:
         raise ConfigError(reader.sorted())
 
@@ -338,8 +366,9 @@ def load_project(path) -> Settings:
     only = section.get("only") or []
     if only:
         wanted = {rid for name in only for rid in _expand(name, rules)}
-        settings.disabled |= {rid for rid in rules if rid not in wanted
-                              and rules[rid].family not in FAMILY_ONLY_PROTECTED}
+        settings.disabled |= {
+            rid for rid in rules if rid not in wanted and rules[rid].family not in FAMILY_ONLY_PROTECTED
+        }
     for name in section.get("skip") or []:
         settings.disabled |= set(_expand(name, rules))
     for name, level in (section.get("levels") or {}).items():
@@ -347,9 +376,9 @@ def load_project(path) -> Settings:
             settings.levels[rid] = level
     for rule_id, values in (section.get("settings") or {}).items():
         settings.rule_settings[rule_id] = dict(values or {})
-    files = data.get("files") or {}
-    settings.include = list(files.get("include") or [])
-    settings.exclude = list(files.get("exclude") or [])
+    globs = data.get("files") or {}
+    settings.include = list(globs.get("include") or [])
+    settings.exclude = list(globs.get("exclude") or [])
     return settings
 
 
@@ -365,7 +394,9 @@ def apply_options(settings: Settings, *, fail_level: str | None = None, skip=())
         for name in skip:
             if not _known(name, rules):
                 families = sorted({r.family for r in rules.values()})
-                problems.append(f"--skip: unknown rule id or family '{name}'{_suggest(name, [*rules, *families])}")
+                problems.append(
+                    f"--skip: unknown rule id or family '{name}'{_suggest(name, [*rules, *families])}"
+                )
             elif name.split(".", 1)[0] == "input":
                 problems.append(f"--skip: '{name}' cannot be skipped")
             else:
@@ -383,15 +414,19 @@ def for_paths(paths, config: str | None = None, use_file: bool = True) -> Settin
             raise ConfigError([f"{config}: no such project file"])
         return load_project(config)
     if use_file:
-        found = {}
+        found: dict[Any, Any] = {}
         for raw in paths:
             hit = find_project_file(raw) if os.path.exists(raw) else None
             if hit is not None:
                 found.setdefault(str(hit.resolve()), hit)
         if len(found) > 1:
             names = ", ".join(sorted(str(p) for p in found.values()))
-            raise ConfigError([f"the paths belong to different projects ({names}); check them separately or name "
-                               f"one project file with --config"])
+            raise ConfigError(
+                [
+                    f"the paths belong to different projects ({names}); check them separately or "
+                    "name one project file with --config"
+                ]
+            )
         if found:
             return load_project(next(iter(found.values())))
     settings = Settings()

@@ -18,6 +18,7 @@ import copy
 import itertools
 import weakref
 from dataclasses import dataclass
+from typing import Any
 
 from speccheck.findings import Finding
 
@@ -34,14 +35,14 @@ MAX_CONFIGURATIONS = 64  # a plan with more combinations is checked on the first
 
 @dataclass(frozen=True)
 class Configuration:
-    signal: object  # a model Signal, or None when the build declares none
+    signal: Any  # a model Signal, or None when the build declares none
     positions: tuple  # ((switch ref, position), ...) in switch order
     upstream: str | None  # the source bandwidth setting's name
     unstated: tuple = ()  # switches the signal does not name (taken in every position)
 
     @property
     def signal_name(self) -> str:
-        return self.signal.name if self.signal is not None else ""
+        return str(self.signal.name) if self.signal is not None else ""
 
     @property
     def position_label(self) -> str:

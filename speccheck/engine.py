@@ -7,8 +7,10 @@ import hashlib
 import os
 import re
 import traceback
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 from speccheck import loader, registry
 from speccheck.config import Settings
@@ -18,13 +20,13 @@ from speccheck.findings import RANK, Finding, Location, SheetEntry, Value
 @dataclass
 class FileResult:
     path: str
-    findings: list = field(default_factory=list)
-    sheet: list = field(default_factory=list)  # SheetEntry
-    cautions: list = field(default_factory=list)  # safety texts, shown first in every format
+    findings: list[Finding] = field(default_factory=list)
+    sheet: list[SheetEntry] = field(default_factory=list)
+    cautions: list[str] = field(default_factory=list)  # safety texts, shown first in every format
     checked: bool = False  # False when the file could not be read or parsed far enough for rules
     build_name: str = ""
 
-    def counts(self, include_waived: bool = False) -> dict:
+    def counts(self, include_waived: bool = False) -> dict[str, int]:
         out = {"error": 0, "warning": 0, "note": 0}
         for f in self.findings:
             if include_waived or not f.waived:
@@ -35,51 +37,65 @@ class FileResult:
 class Context:
     """What a rule gets besides the model: a way to report, publish and read its settings."""
 
-    def __init__(self, result: FileResult, rule: registry.Rule, settings: Settings, build):
+    def __init__(self, result: FileResult, rule: registry.Rule, settings: Settings, build: Any):
         self.result, self.rule, self.settings, self.build = result, rule, settings, build
 
-    def setting(self, name: str, of: str | None = None):
+    def setting(self, name: str, of: str | None = None) -> Any:
         """A setting of this rule, or of rule `of` (the fuse rules share power.fuse-size's):
         the project file's value first, then the rule's default."""
         rule = self.rule if of is None else registry.RULES[of]
         return self.settings.rule_settings.get(rule.id, {}).get(name, rule.settings[name])
 
-    def report(self, message: str, at: Location, values=(), fix: str | None = None, level: str | None = None,
-               stage: str = "") -> Finding:
+    def report(self, message: str, at: Location, values: Iterable[Value] = (), fix: str | None = None,
+               level: str | None = None, stage: str = "") -> Finding:
         if fix is None:
             # A note a rule lowers itself to says what it could not check; the rule's fix (for
             # the mistake it looks for) would read as advice about something not found.
             fix = "" if level == "note" and self.rule.level != "note" else self.rule.fix
-        found = Finding(self.rule.id, self.settings.level_for(self.rule.id, level or self.rule.level), message,
-                        at or Location(self.result.path), list(values), fix, stage)
+        found = Finding(
+            self.rule.id,
+            self.settings.level_for(self.rule.id, level or self.rule.level),
+            message,
+            at or Location(self.result.path),
+            list(values),
+            fix,
+            stage,
+        )
         self.result.findings.append(found)
         return found
 
-    def publish(self, section: str, owner: str, name: str, value, unit: str = "") -> Value:
+    def publish(self, section: str, owner: str, name: str, value: float | str, unit: str = "") -> Value:
         shown = Value(name, value, unit)
         self.result.sheet.append(SheetEntry(section, owner, shown, self.rule.id))
         return shown
 
-    def caution(self, text: str):
+    def caution(self, text: str) -> None:
         if text not in self.result.cautions:
             self.result.cautions.append(text)
 
 
-def _run_one(rule, build, result: FileResult, settings: Settings) -> bool:
+def _run_one(rule: registry.Rule, build: Any, result: FileResult, settings: Settings) -> bool:
     ctx = Context(result, rule, settings, build)
+    assert rule.check is not None  # run_rules passes only rules that run on the model
     try:
         rule.check(build, ctx)
     except Exception as exc:  # a rule bug must not hide the other findings, nor crash the run
         where = traceback.extract_tb(exc.__traceback__)[-1]
-        result.findings.append(Finding(
-            rule.id, "error", f"internal error in rule {rule.id}: {type(exc).__name__}: {exc} "
-            f"({Path(where.filename).name}:{where.lineno}); please report it", Location(result.path),
-            stage="internal"))
+        result.findings.append(
+            Finding(
+                rule.id,
+                "error",
+                f"internal error in rule {rule.id}: {type(exc).__name__}: {exc} "
+                f"({Path(where.filename).name}:{where.lineno}); please report it",
+                Location(result.path),
+                stage="internal",
+            )
+        )
         return False
     return True
 
 
-def run_rules(build, result: FileResult, settings: Settings):
+def run_rules(build: Any, result: FileResult, settings: Settings) -> None:
     from speccheck import configs
 
     switched = build.switched
@@ -92,7 +108,7 @@ def run_rules(build, result: FileResult, settings: Settings):
             _run_one(rule, build, result, settings)
 
 
-def _run_per_configuration(rule, build, result: FileResult, settings: Settings):
+def _run_per_configuration(rule: registry.Rule, build: Any, result: FileResult, settings: Settings) -> None:
     """Run a rule once per (signal, positions) on the view of the build that is in circuit
     there; name the signal and positions in what it finds, unless every configuration found
     the same (then it is said once, for all)."""
@@ -112,17 +128,17 @@ def _run_per_configuration(rule, build, result: FileResult, settings: Settings):
     result.sheet.extend(_tagged(per_cfg, 2, len(cfgs)))
 
 
-def _tagged(per_cfg: list, which: int, count: int) -> list:
-    def key(item):
+def _tagged(per_cfg: list[Any], which: int, count: int) -> list[Any]:
+    def key(item: Any) -> tuple[Any, ...]:
         if isinstance(item, Finding):
             return item.rule, item.location, item.message
         return item.section, item.owner, item.value.name, repr(item.value.value)
 
-    seen: dict = {}
+    seen: dict[tuple[Any, ...], list[Any]] = {}
     for cfg, *found in per_cfg:
         for item in found[which - 1]:
             seen.setdefault(key(item), []).append((cfg, item))
-    out = []
+    out: list[Any] = []
     for hits in seen.values():
         if len(hits) == count:  # the same in every configuration: said once, for all
             out.append(hits[0][1])
@@ -133,8 +149,11 @@ def _tagged(per_cfg: list, which: int, count: int) -> list:
                 item.message = f"{item.message} [{cfg.label}]"
                 out.append(item)
             else:
-                out.append(SheetEntry(item.section, item.owner, item.value, item.rule, cfg.signal_name,
-                                      cfg.position_label))
+                out.append(
+                    SheetEntry(
+                        item.section, item.owner, item.value, item.rule, cfg.signal_name, cfg.position_label
+                    )
+                )
     return out
 
 
@@ -150,7 +169,7 @@ def fingerprint_file(file: str, settings: Settings) -> str:
     return rel if rel is not None else Path(os.path.normpath(file)).as_posix()
 
 
-def _fingerprint(f: Finding, seen: dict, file: str) -> str:
+def _fingerprint(f: Finding, seen: dict[str, int], file: str) -> str:
     """Stable across unrelated edits: rule, file (from the project root), document path and the
     message with its numbers blanked; never the line or column, which move when lines are
     inserted above. Equal bases are told apart by their order in the file."""
@@ -161,20 +180,21 @@ def _fingerprint(f: Finding, seen: dict, file: str) -> str:
     return hashlib.sha256(f"{base}|{n}".encode()).hexdigest()[:32]
 
 
-def finish(result: FileResult, settings: Settings):
+def finish(result: FileResult, settings: Settings) -> None:
     result.findings = [f for f in result.findings if settings.enabled(f.rule)]
     for f in result.findings:
         f.level = settings.level_for(f.rule, f.level)
     result.findings.sort(key=Finding.sort_key)
-    unique, said = [], set()
+    unique: list[Finding] = []
+    said: set[tuple[str, int, int, str]] = set()
     for f in result.findings:  # two stages may see the same slip (schema and units): say it once
         key = (f.rule, f.location.line, f.location.col, f.message)
         if key not in said:
             said.add(key)
             unique.append(f)
     result.findings = unique
-    seen: dict = {}
-    files: dict = {}
+    seen: dict[str, int] = {}
+    files: dict[str, str] = {}
     for f in result.findings:
         file = files.get(f.location.file)
         if file is None:
@@ -185,7 +205,7 @@ def finish(result: FileResult, settings: Settings):
 _WARM = False
 
 
-def warm_up():
+def warm_up() -> None:
     """Load once what every check needs (rules, unit registry, schema validator, built-in
     profiles), then hide those long-lived objects from the garbage collector (gc.freeze):
     a many-file check otherwise spends a fifth of its time re-scanning them."""
@@ -212,7 +232,7 @@ def check_loaded(loaded: loader.Loaded, settings: Settings) -> FileResult:
         result.checked = True
     from speccheck import waivers
 
-    waivers.apply(result, loaded, settings)
+    waivers.apply(result, loaded, settings)  # type: ignore[no-untyped-call]
     finish(result, settings)
     return result
 
@@ -226,6 +246,6 @@ def check_text(text: str, file: str = "<text>", settings: Settings | None = None
     return check_loaded(loader.load_text(text, file), settings or Settings())
 
 
-def worst(results) -> str | None:
+def worst(results: Iterable[FileResult]) -> str | None:
     levels = [f.level for r in results for f in r.findings if not f.waived]
-    return max(levels, key=RANK.get) if levels else None
+    return max(levels, key=lambda level: RANK[level]) if levels else None

@@ -17,6 +17,7 @@ itself is replaced: a link is never followed to create a file somewhere else.
 
 from __future__ import annotations
 
+import contextlib
 import os
 import stat
 from pathlib import Path
@@ -160,10 +161,8 @@ def write_atomic(path: str | Path, text: str, *, force: bool = False, mode: int 
         os.chmod(tmp, mode if mode is not None else 0o666 & ~_umask())  # mkstemp makes 0600
         os.replace(tmp, path)
     except OSError as exc:
-        try:
+        with contextlib.suppress(OSError):
             os.unlink(tmp)
-        except OSError:
-            pass
         raise FileTrouble(f"cannot be written: {exc.strerror}") from None
 
 

@@ -35,8 +35,8 @@ class Value:
             return self.value
         return units.fmt(self.value, self.unit)
 
-    def as_dict(self) -> dict:
-        value = self.value
+    def as_dict(self) -> dict[str, object]:
+        value: float | str | None = self.value
         if isinstance(value, float) and not math.isfinite(value):
             value = None  # JSON has no infinity; the text says it
         return {"name": self.name, "value": value, "unit": self.unit, "text": self.text}
@@ -48,7 +48,7 @@ class Finding:
     level: str
     message: str
     location: Location
-    values: list = field(default_factory=list)
+    values: list[Value] = field(default_factory=list)
     fix: str = ""
     stage: str = ""  # the signal-chain stage or section it belongs to, for grouping in reports
     waived: str | None = None  # the reason, when a waiver covers it
@@ -56,7 +56,7 @@ class Finding:
     signal: str = ""  # v2: the signal it was found for, when what is in circuit depends on it
     position: str = ""  # v2: the switch positions and upstream setting, e.g. "S1 wide; upstream 1m"
 
-    def sort_key(self):
+    def sort_key(self) -> tuple[str, int, int, str, str]:
         loc = self.location
         return (loc.file, loc.line, loc.col, self.rule, self.message)
 

@@ -13,7 +13,7 @@ import dataclasses
 import os
 import re
 from dataclasses import dataclass, field
-from functools import lru_cache
+from functools import cache, lru_cache
 from importlib import resources
 from pathlib import Path
 
@@ -26,7 +26,9 @@ POSITIVE_DIMS = {"frequency", "capacitance", "inductance", "resistance", "curren
 
 
 def _level(rule_id: str) -> str:
-    return registry.RULES[rule_id].level if rule_id in registry.RULES else registry.load_rules()[rule_id].level
+    return (
+        registry.RULES[rule_id].level if rule_id in registry.RULES else registry.load_rules()[rule_id].level
+    )
 
 
 def _fix(rule_id: str) -> str:
@@ -45,13 +47,16 @@ class Loaded:
     def can_check(self) -> bool:
         """Rules run only on a file with no input error: on a broken one they would guess, or
         call a value that was given but refused 'not given'."""
-        return self.build is not None and not any(f.rule.startswith("input.") and f.level == "error"
-                                                  for f in self.findings)
+        return self.build is not None and not any(
+            f.rule.startswith("input.") and f.level == "error" for f in self.findings
+        )
 
     @property
     def name(self) -> str:
         """The build's name, even when the file did not get as far as a model."""
-        info = self.doc.data.get("build") if self.doc is not None and isinstance(self.doc.data, dict) else None
+        info = (
+            self.doc.data.get("build") if self.doc is not None and isinstance(self.doc.data, dict) else None
+        )
         name = info.get("name") if isinstance(info, dict) else None
         return name if isinstance(name, str) else ""
 
@@ -73,8 +78,9 @@ class _Context:
 
     def report(self, rule: str, message: str, path, at_key: bool = False):
         level = _level(rule)
-        self.findings.append(Finding(rule, level, message, self.loc(path, at_key), fix=_fix(rule),
-                                     stage="input"))
+        self.findings.append(
+            Finding(rule, level, message, self.loc(path, at_key), fix=_fix(rule), stage="input")
+        )
 
     def quantity(self, raw, dim: str, path, name: str):
         try:
@@ -83,8 +89,11 @@ class _Context:
             self.report("input.unit", f"{schema.dotted(path)}: {exc}", path)
             return None
         if dim in POSITIVE_DIMS and (si < 0 or (si == 0 and name not in ZERO_ALLOWED)):
-            self.report("input.value-range", f"{schema.dotted(path)} is {raw}: {units.article(dim)} "
-                        f"here must be greater than zero", path)
+            self.report(
+                "input.value-range",
+                f"{schema.dotted(path)} is {raw}: {units.article(dim)} here must be greater than zero",
+                path,
+            )
             return None
         why = units.implausible(si, dim)
         if why:
@@ -93,7 +102,7 @@ class _Context:
         return model.Q(si, dim, str(raw).strip(), self, path)
 
 
-@lru_cache(maxsize=None)
+@cache
 def _field_specs(cls) -> dict:
     """YAML key -> (field name, metadata) of a model class."""
     specs: dict = {}
@@ -127,11 +136,17 @@ def _build_obj(cls, data, path, ctx: _Context, **extra):
         elif "node" in meta:
             value = _build_obj(meta["node"], raw, here, ctx)
         elif "nodes" in meta:
-            value = {k: _build_obj(meta["nodes"], v, here + (k,), ctx, name=k)
-                     for k, v in raw.items()} if isinstance(raw, dict) else {}
+            value = (
+                {k: _build_obj(meta["nodes"], v, here + (k,), ctx, name=k) for k, v in raw.items()}
+                if isinstance(raw, dict)
+                else {}
+            )
         elif "items" in meta:
-            value = [_build_obj(meta["items"], v, here + (i,), ctx) for i, v in enumerate(raw)] \
-                if isinstance(raw, list) else []
+            value = (
+                [_build_obj(meta["items"], v, here + (i,), ctx) for i, v in enumerate(raw)]
+                if isinstance(raw, list)
+                else []
+            )
         else:
             value = raw
         setattr(obj, name, value)
@@ -147,8 +162,13 @@ def _special_fields(obj, data, path, ctx: _Context):
             if dim:
                 obj.value = ctx.quantity(data["value"], dim, path + ("value",), "value")
             else:
-                ctx.report("input.schema", f"{schema.dotted(path)}: a {obj.kind} has no 'value'; use the "
-                           "fields of its kind (frequency, center, current_rating ...)", path + ("value",), True)
+                ctx.report(
+                    "input.schema",
+                    f"{schema.dotted(path)}: a {obj.kind} has no 'value'; use the "
+                    "fields of its kind (frequency, center, current_rating ...)",
+                    path + ("value",),
+                    True,
+                )
         adjust = data.get("adjust")
         if isinstance(adjust, dict) and dim:
             obj.adjust = model.Adjust(src=ctx, doc_path=path + ("adjust",))
@@ -169,14 +189,18 @@ def _special_fields(obj, data, path, ctx: _Context):
             if isinstance(refs, list):  # v2: several parts, those in circuit acting together
                 obj.choices[name] = [str(r) for r in refs]
                 setattr(obj, name, "+".join(obj.choices[name]) if len(refs) > 1 else str(refs[0]))
-    elif isinstance(obj, model.Pin) and isinstance(obj.dc, str) and obj.dc not in ("supply", "half-supply",
-                                                                                     "ground", "none"):
+    elif (
+        isinstance(obj, model.Pin)
+        and isinstance(obj.dc, str)
+        and obj.dc not in ("supply", "half-supply", "ground", "none")
+    ):
         obj.dc = ctx.quantity(obj.dc, "voltage", path + ("dc",), "dc")
     if isinstance(obj, model.Stage):
         obj.index = path[-1] if path and isinstance(path[-1], int) else 0
     if isinstance(obj, (model.Part, model.IfPath)) and isinstance(obj.in_circuit, dict):
-        obj.in_circuit = {str(k): [str(p) for p in (v if isinstance(v, list) else [v])]
-                          for k, v in obj.in_circuit.items()}
+        obj.in_circuit = {
+            str(k): [str(p) for p in (v if isinstance(v, list) else [v])] for k, v in obj.in_circuit.items()
+        }
 
 
 def _terminals(part: model.Part, data: dict):
@@ -212,6 +236,7 @@ def _terminals(part: model.Part, data: dict):
 
 # ---- profiles --------------------------------------------------------------------------
 
+
 def _profiles_from(data, file: str, doc, findings: list, builtin: bool) -> dict:
     ctx = _Context(file, doc, findings)
     out = {}
@@ -228,11 +253,23 @@ def _parse_file(text: str, file: str, kind: str, findings: list):
     if kind == "build" and schema.version_of(doc.data) == 2:
         kind = "build-2"
     for p in doc.problems:
-        rule = {"duplicate-key": "input.duplicate-key", "alias": "input.not-accepted",
-                "tag": "input.not-accepted"}.get(p.kind, "input.yaml-syntax")
-        findings.append(Finding(rule, "error", p.message,
-                                Location(file, p.mark.line, p.mark.col, schema.dotted(p.path), p.mark.end_line,
-                                         p.mark.end_col), fix=_fix(rule), stage="input"))
+        rule = {
+            "duplicate-key": "input.duplicate-key",
+            "alias": "input.not-accepted",
+            "tag": "input.not-accepted",
+        }.get(p.kind, "input.yaml-syntax")
+        findings.append(
+            Finding(
+                rule,
+                "error",
+                p.message,
+                Location(
+                    file, p.mark.line, p.mark.col, schema.dotted(p.path), p.mark.end_line, p.mark.end_col
+                ),
+                fix=_fix(rule),
+                stage="input",
+            )
+        )
     if any(f.rule == "input.yaml-syntax" for f in findings):
         return doc, False
     if not isinstance(doc.data, dict):
@@ -240,27 +277,39 @@ def _parse_file(text: str, file: str, kind: str, findings: list):
         return doc, False
     schema_ok = True
     problems = schema.problems(doc.data, kind)
-    for path, message, at_key in problems[:schema.MAX_SCHEMA_FINDINGS]:
-        rule = "input.unit" if message.startswith(schema.dotted(path) + ":") and "expected" in message else "input.schema"
+    for path, message, at_key in problems[: schema.MAX_SCHEMA_FINDINGS]:
+        rule = (
+            "input.unit"
+            if message.startswith(schema.dotted(path) + ":") and "expected" in message
+            else "input.schema"
+        )
         ctx.report(rule, message, path, at_key)
         schema_ok = False
     if len(problems) > schema.MAX_SCHEMA_FINDINGS:
-        ctx.report("input.schema", f"{len(problems) - schema.MAX_SCHEMA_FINDINGS} more format errors not shown", ())
+        ctx.report(
+            "input.schema", f"{len(problems) - schema.MAX_SCHEMA_FINDINGS} more format errors not shown", ()
+        )
     return doc, schema_ok
 
 
 @lru_cache(maxsize=1)
 def builtin_profiles() -> dict:
-    text = resources.files("speccheck").joinpath("profiles", "builtin.yaml").read_text("utf-8")
+    text = resources.files("speccheck").joinpath("profiles").joinpath("builtin.yaml").read_text("utf-8")
     findings: list = []
-    doc, ok = _parse_file(text, "<built-in profiles>", "parts", findings)
+    doc, _ok = _parse_file(text, "<built-in profiles>", "parts", findings)
     if findings:
         raise RuntimeError(f"built-in profiles are broken: {findings[0].message}")
     return _profiles_from(doc.data, "<built-in profiles>", doc, findings, builtin=True)
 
 
-def _read(path: Path, findings: list, file: str, at: Location | None = None, shown: str | None = None,
-          marker: re.Pattern | None = None) -> str | None:
+def _read(
+    path: Path,
+    findings: list,
+    file: str,
+    at: Location | None = None,
+    shown: str | None = None,
+    marker: re.Pattern | None = None,
+) -> str | None:
     """The file's text, or None with an input finding. `shown` names the file in messages (a parts
     file by its entry as written); with `marker`, a file without that line is refused unread."""
     name = shown or "the file"  # the finding points at the file already; no path of the machine in it
@@ -271,18 +320,31 @@ def _read(path: Path, findings: list, file: str, at: Location | None = None, sho
         findings.append(Finding(rule, "error", f"{name} {exc}", at or Location(file), stage="input"))
         return None
     if marker is not None and not marker.search(raw):
-        findings.append(Finding("input.parts-file", "error", f"{name} is not a parts file (it has no line "
-                                "'parts_spec: 1'); nothing of it was read", at or Location(file), stage="input",
-                                fix=_fix("input.parts-file")))
+        findings.append(
+            Finding(
+                "input.parts-file",
+                "error",
+                f"{name} is not a parts file (it has no line 'parts_spec: 1'); nothing of it was read",
+                at or Location(file),
+                stage="input",
+                fix=_fix("input.parts-file"),
+            )
+        )
         return None
     try:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
         line = raw.count(b"\n", 0, exc.start) + 1
         col = exc.start - (raw.rfind(b"\n", 0, exc.start) + 1) + 1
-        findings.append(Finding("input.unreadable", "error", f"{name} is not UTF-8 text: byte "
-                                f"0x{raw[exc.start]:02x} at line {line}, col {col}",
-                                at or Location(file, line, col), stage="input"))
+        findings.append(
+            Finding(
+                "input.unreadable",
+                "error",
+                f"{name} is not UTF-8 text: byte 0x{raw[exc.start]:02x} at line {line}, col {col}",
+                at or Location(file, line, col),
+                stage="input",
+            )
+        )
         return None
 
 
@@ -335,13 +397,22 @@ def _all_profiles(build, doc, file: str, findings: list, base_dir: Path | None, 
     if build.parts_files:
         root = parts_root(base_dir, root)
     for i, name in enumerate(build.parts_files):
-        at = Location(file, *_line_col(doc, ("parts_files", i)), path=f"parts_files[{i}]")
+        line, col = _line_col(doc, ("parts_files", i))
+        at = Location(file, line, col, path=f"parts_files[{i}]")
         shown = f"parts_files[{i}] {_quoted(name)}"
         more: list = []
         target, why = files.confined(str(name), base_dir or Path("."), root)
         if target is None:
-            more.append(Finding("input.parts-file", "error", f"{shown} {why}", at, stage="input",
-                                fix=_fix("input.parts-file")))
+            more.append(
+                Finding(
+                    "input.parts-file",
+                    "error",
+                    f"{shown} {why}",
+                    at,
+                    stage="input",
+                    fix=_fix("input.parts-file"),
+                )
+            )
             findings.extend(more)
             continue
         text = _read(target, more, file, at, shown, _PARTS_MARKER)
@@ -365,12 +436,21 @@ def _line_col(doc, path):
 
 # ---- references ------------------------------------------------------------------------
 
+
 def _resolve(build: model.Build, ctx: _Context):
     def missing(what, name, obj, field_name, known):
         close = schema._suggest(name, known)
         loc = obj.at(field_name)
-        ctx.findings.append(Finding("input.reference", "error", f"{what} '{name}' is not declared{close}", loc,
-                                    fix=_fix("input.reference"), stage="input"))
+        ctx.findings.append(
+            Finding(
+                "input.reference",
+                "error",
+                f"{what} '{name}' is not declared{close}",
+                loc,
+                fix=_fix("input.reference"),
+                stage="input",
+            )
+        )
 
     for dev in build.devices.values():
         dev.profile = build.profiles.get(dev.profile_name)
@@ -388,18 +468,33 @@ def _resolve(build: model.Build, ctx: _Context):
                 if dev is None:
                     missing("device", pin_of[0], part, "ends", build.devices)
                 elif dev.profile and pin_of[1] not in dev.profile.pins:
-                    missing(f"pin of {dev.name} ({dev.profile.name})", pin_of[1], part, "ends", dev.profile.pins)
+                    missing(
+                        f"pin of {dev.name} ({dev.profile.name})", pin_of[1], part, "ends", dev.profile.pins
+                    )
         for pair_name in ("ends", "primary", "secondary"):
             pair = getattr(part, pair_name)
             if len(pair) == 2 and pair[0] == pair[1]:
-                ctx.findings.append(Finding("input.shorted-part", "error",
-                                            f"both {pair_name} of {part.name} connect to {pair[0]}: the part is "
-                                            f"shorted out", part.at(pair_name),
-                                            fix=_fix("input.shorted-part"), stage="input"))
+                ctx.findings.append(
+                    Finding(
+                        "input.shorted-part",
+                        "error",
+                        f"both {pair_name} of {part.name} connect to {pair[0]}: the part is shorted out",
+                        part.at(pair_name),
+                        fix=_fix("input.shorted-part"),
+                        stage="input",
+                    )
+                )
         if part.positive and part.positive not in part.ends:
-            ctx.findings.append(Finding("input.reference", "error",
-                                        f"{part.name}.positive is '{part.positive}', which is not one of its ends "
-                                        f"({', '.join(part.ends)})", part.at("positive"), stage="input"))
+            ctx.findings.append(
+                Finding(
+                    "input.reference",
+                    "error",
+                    f"{part.name}.positive is '{part.positive}', which is not one of "
+                    f"its ends ({', '.join(part.ends)})",
+                    part.at("positive"),
+                    stage="input",
+                )
+            )
     supply = build.supply
     if supply:
         for field_name in ("fuse", "series_resistor"):
@@ -423,14 +518,26 @@ def _resolve(build: model.Build, ctx: _Context):
     for stage in build.chain:
         if stage.device and stage.device not in build.devices:
             missing("device", stage.device, stage, "device", build.devices)
-        for i, ref in enumerate(stage.parts):
+        for ref in stage.parts:
             if ref not in build.parts:
                 missing("part", ref, stage, "parts", build.parts)
         for holder in (stage, stage.tank, stage.output_network, stage.oscillator):
             if holder is None:
                 continue
-            for field_name in ("resistor", "capacitor", "load", "coupling", "input_bypass", "inductor",
-                               "damping", "crystal", "control", "series", "shunt", "hysteresis"):
+            for field_name in (
+                "resistor",
+                "capacitor",
+                "load",
+                "coupling",
+                "input_bypass",
+                "inductor",
+                "damping",
+                "crystal",
+                "control",
+                "series",
+                "shunt",
+                "hysteresis",
+            ):
                 if field_name in getattr(holder, "choices", {}):
                     for ref in holder.choices[field_name]:
                         if ref not in build.parts:
@@ -456,10 +563,16 @@ def _rail_loops(build: model.Build, ctx: _Context):
                 break
             seen.append(f"{rail.name} from {dev.name} on {dev.rail}")
             if dev.rail == start.name:
-                ctx.findings.append(Finding("input.rail-loop", "error",
-                                            f"rail {start.name} feeds itself: {'; '.join(seen)}",
-                                            start.at("source"), fix=_fix("input.rail-loop"),
-                                            stage="input"))
+                ctx.findings.append(
+                    Finding(
+                        "input.rail-loop",
+                        "error",
+                        f"rail {start.name} feeds itself: {'; '.join(seen)}",
+                        start.at("source"),
+                        fix=_fix("input.rail-loop"),
+                        stage="input",
+                    )
+                )
                 break
             rail = build.rails.get(dev.rail)
             if len(seen) > len(build.rails):
@@ -472,11 +585,19 @@ def _meaningless_voltages(build: model.Build, ctx: _Context):
     supply = build.supply
     if supply is None or supply.voltage is None or supply.voltage.si > 0:
         return
-    why = "powers nothing" if supply.voltage.si == 0 else (
-        "is not what a supply delivers: give its positive output here, and declare a negative side as a rail "
-        "(from: supply)")
-    ctx.report("input.value-range", f"supply.voltage is {supply.voltage.text}: a supply of {supply.voltage.text} "
-               f"{why}", supply.doc_path + ("voltage",))
+    why = (
+        "powers nothing"
+        if supply.voltage.si == 0
+        else (
+            "is not what a supply delivers: give its positive output here, and declare a negative side as a "
+            "rail (from: supply)"
+        )
+    )
+    ctx.report(
+        "input.value-range",
+        f"supply.voltage is {supply.voltage.text}: a supply of {supply.voltage.text} {why}",
+        supply.doc_path + ("voltage",),
+    )
 
 
 def _check_part(build, holder, field_name, missing):

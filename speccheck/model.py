@@ -15,10 +15,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from functools import cached_property
+from typing import Any
 
 from speccheck import units
 from speccheck.findings import Location
-
 
 NOWHERE = Location("")
 
@@ -28,7 +28,7 @@ class Q:
     si: float
     dim: str
     text: str
-    src: object = field(default=None, repr=False, compare=False)  # the loader's position source
+    src: Any = field(default=None, repr=False, compare=False)  # the loader's position source
     doc_path: tuple = field(default=(), repr=False, compare=False)
 
     @property
@@ -71,7 +71,7 @@ class Located:
     """Knows where it and each of its fields sit in the file. Positions become Locations only
     when asked for (most are never pointed at), through `src`, the loader's position source."""
 
-    src: object = field(default=None, repr=False)
+    src: Any = field(default=None, repr=False)
     doc_path: tuple = field(default=(), repr=False)
     places: dict = field(default_factory=dict, repr=False)  # field name -> document path of its value
 
@@ -265,7 +265,8 @@ class Device(Located):
     heat_sink: HeatSink = sub(HeatSink)
     load_current: Q = qty("current")
     note: str = plain(None)
-    profile: Profile = field(default=None, repr=False, metadata={"derived": True})  # resolved by the loader
+    # resolved by the loader
+    profile: Profile | None = field(default=None, repr=False, metadata={"derived": True})
 
     def pin(self, name: str) -> Pin | None:
         return self.profile.pins.get(name) if self.profile else None
@@ -280,8 +281,8 @@ POLARIZED_DIELECTRICS = ("electrolytic", "tantalum")
 
 @dataclass(eq=False)
 class Adjust(Located):
-    min: Q = None
-    max: Q = None
+    min: Q | None = None
+    max: Q | None = None
 
 
 @dataclass(eq=False)
@@ -302,7 +303,7 @@ class Pole(Located):
 class Part(Located):
     name: str = plain("")  # the reference designator
     kind: str = plain("")
-    value: Q = None  # dimension depends on kind (VALUE_DIMENSION)
+    value: Q | None = None  # dimension depends on kind (VALUE_DIMENSION)
     ends: list = plain([])
     positive: str = plain(None)
     terminals: dict = plain({})  # v2: terminal name -> net; the loader fills it for every part
@@ -324,7 +325,7 @@ class Part(Located):
     load_capacitance: Q = qty("capacitance")
     motional_capacitance: Q = qty("capacitance")
     shunt_capacitance: Q = qty("capacitance")
-    adjust: Adjust = None  # dimension of min/max follows the part's value
+    adjust: Adjust | None = None  # dimension of min/max follows the part's value
     q: float = plain(None)
     turns: int = plain(None)
     core: Core = sub(Core)

@@ -13,6 +13,7 @@ from __future__ import annotations
 import heapq
 import weakref
 from dataclasses import dataclass
+from typing import Any
 
 ZERO_DROP = {"inductor", "fuse", "switch", "speaker", "connector", "transformer"}
 SMALL_DROP = {"resistor", "potentiometer"}
@@ -73,9 +74,12 @@ class NetGraph:
             spans[part.wiper] = (min(a.volts, b.volts), max(a.volts, b.volts), part)
             spread = self.potentials.get(part.wiper)
             if spread is not None and spread.origin != part.wiper and abs(a.volts - b.volts) >= 1e-9:
-                del self.potentials[part.wiper]  # a guess through resistors; the wiper's range is what is known
+                # a guess through resistors; the wiper's range is what is known
+                del self.potentials[part.wiper]
             if part.wiper not in self.potentials and abs(a.volts - b.volts) < 1e-9:
-                self.potentials[part.wiper] = Potential(a.volts, f"{a.why}, at both ends of {part.name}", a.origin)
+                self.potentials[part.wiper] = Potential(
+                    a.volts, f"{a.why}, at both ends of {part.name}", a.origin
+                )
         return spans
 
     def span(self, net: str | None) -> tuple | None:
@@ -120,11 +124,17 @@ class NetGraph:
         if pin.dc == "ground":
             return Potential(0.0, f"pin {pin.name} of {device.name} sits at ground", net)
         if pin.dc == "supply" and supply is not None:
-            return Potential(supply, f"pin {pin.name} of {device.name} sits at its supply {device.rail} "
-                                     f"({supply:g} V)", net)
+            return Potential(
+                supply,
+                f"pin {pin.name} of {device.name} sits at its supply {device.rail} ({supply:g} V)",
+                net,
+            )
         if pin.dc == "half-supply" and supply is not None:
-            return Potential(supply / 2, f"pin {pin.name} of {device.name} sits at half its supply "
-                                         f"({supply / 2:g} V of {supply:g} V)", net)
+            return Potential(
+                supply / 2,
+                f"pin {pin.name} of {device.name} sits at half its supply ({supply / 2:g} V of {supply:g} V)",
+                net,
+            )
         if hasattr(pin.dc, "si"):
             return Potential(pin.dc.si, f"pin {pin.name} of {device.name} is biased at {pin.dc.text}", net)
         return None
@@ -133,7 +143,7 @@ class NetGraph:
     def _solve(self) -> dict:
         nets = set(self.members) | set(self.build.rails) | set(self.build.nodes)
         best: dict[str, tuple] = {}
-        heap = []
+        heap: list[tuple[Any, ...]] = []
         for net in sorted(nets):
             pot = self.stated(net)
             if pot:
@@ -152,7 +162,11 @@ class NetGraph:
                     best[other] = (new_cost, new)
                     conflicted.discard(other)
                     heapq.heappush(heap, (new_cost, other))
-                elif best[other][0] == new_cost and new_cost > 0 and abs(best[other][1].volts - pot.volts) > 1e-9:
+                elif (
+                    best[other][0] == new_cost
+                    and new_cost > 0
+                    and abs(best[other][1].volts - pot.volts) > 1e-9
+                ):
                     conflicted.add(other)
         return {net: p for net, (c, p) in best.items() if net not in conflicted}
 

@@ -7,9 +7,9 @@ from __future__ import annotations
 import importlib
 import importlib.util
 import sys
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Callable
 
 from speccheck.findings import LEVELS
 
@@ -81,6 +81,7 @@ def _import_families():
         here = Path(__file__).resolve().parent.parent / "rules" / "__init__.py"
         spec = importlib.util.spec_from_file_location("speccheck.rules", here,
                                                       submodule_search_locations=[str(here.parent)])
+        assert spec is not None and spec.loader is not None
         module = importlib.util.module_from_spec(spec)
         sys.modules["speccheck.rules"] = module
         spec.loader.exec_module(module)

@@ -19,7 +19,7 @@ RENAMED = {"load_impedance": "; format 2 calls it works_into on an input-match s
 @lru_cache(maxsize=2)
 def build_schema(version: int = 1) -> dict:
     name = SCHEMA_FILES[version]
-    return json.loads(resources.files("speccheck").joinpath("schema", name).read_text("utf-8"))
+    return json.loads(resources.files("speccheck").joinpath("schema").joinpath(name).read_text("utf-8"))
 
 
 def version_of(data) -> int:
@@ -123,8 +123,10 @@ def explain(error) -> list[tuple[tuple, str, bool]]:
     if kind == "additionalProperties" and isinstance(inst, dict):
         allowed = sorted(schema.get("properties", {}))
         extra = [k for k in inst if k not in schema.get("properties", {})]
-        return [(path + (k,), f"unknown key '{k}'{_where(path)}{RENAMED.get(k) or _suggest(k, allowed)}", True)
-                for k in extra]
+        return [
+            (path + (k,), f"unknown key '{k}'{_where(path)}{RENAMED.get(k) or _suggest(k, allowed)}", True)
+            for k in extra
+        ]
     if kind == "required":
         missing = error.message.split("'")[1] if "'" in error.message else error.message
         return [(path, f"missing key '{missing}'{_where(path)}", False)]
@@ -143,8 +145,14 @@ def explain(error) -> list[tuple[tuple, str, bool]]:
                 return [(path, f"{dotted(path)}: {exc}", False)]
         want = error.validator_value
         want = " or ".join(want) if isinstance(want, list) else want
-        return [(path, f"{dotted(path) or 'the file'} should be {'an' if want[0] in 'aeiou' else 'a'} {want}, "
-                       f"got {shown(inst)}", False)]
+        return [
+            (
+                path,
+                f"{dotted(path) or 'the file'} should be {'an' if want[0] in 'aeiou' else 'a'} {want}, "
+                f"got {shown(inst)}",
+                False,
+            )
+        ]
     if kind == "pattern":
         what = schema.get("description", "a name of letters, digits and _ - + .").split(":")[0]
         return [(path, f"{shown(inst)} is not a valid name here: expected {what}", False)]

@@ -24,6 +24,7 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
+from typing import Any
 
 from speccheck import yamlnodes
 
@@ -144,7 +145,7 @@ def _dotted(path: tuple) -> str:
 
 
 def _data_at(doc: yamlnodes.Document, path: tuple):
-    data = doc.data
+    data: Any = doc.data
     for part in path:
         try:
             data = data[part]

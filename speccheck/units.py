@@ -14,6 +14,7 @@ import math
 import re
 from functools import lru_cache
 from importlib import resources
+from typing import Any, cast
 
 MAX_TEXT = 64
 
@@ -82,7 +83,7 @@ def article(dim: str) -> str:
 
 
 @lru_cache(maxsize=1)
-def registry():
+def registry() -> Any:
     import pint
 
     path = resources.files("speccheck").joinpath("units.txt")
@@ -196,8 +197,8 @@ def parse(text: object, dim: str) -> float:
     if isinstance(text, str) and len(text) <= MAX_TEXT:
         ok, value = _parse_text(text, dim)
         if ok:
-            return value
-        raise UnitError(value)
+            return cast(float, value)
+        raise UnitError(str(value))
     return _parse(text, dim)
 
 
@@ -220,7 +221,8 @@ def _parse(text: object, dim: str) -> float:
         raise UnitError(f"expected {article(dim)} such as '{example}'")
     if isinstance(text, (int, float)):
         if dim != "fraction":
-            raise UnitError(f"expected {article(dim)} with its unit, such as '{example}', got a bare number {text}")
+            raise UnitError(f"expected {article(dim)} with its unit, such as '{example}', got a bare number "
+                            f"{text}")
         value = float(text)
         if not math.isfinite(value):
             raise UnitError("not a finite number")
@@ -278,7 +280,7 @@ def fmt(value: float, unit: str, digits: int | None = None) -> str:
     if unit in _NO_PREFIX or value == 0:
         return f"{value:.{digits or 4}g} {unit}".strip()
     mag = abs(value)
-    for scale, prefix in _PREFIXES:
+    for scale, prefix in _PREFIXES:  # noqa: B007 (the pair found is used after the loop)
         if mag >= scale:
             break
     else:
@@ -313,7 +315,8 @@ def plan_text(value: float, unit: str, like: str = "") -> str:
     spelled = _PLAN_SPELLING.get(unit, unit)
     if unit == "Ω" and "Ω" in like:
         spelled = "Ω"
-    prefixes = _PLAN_PREFIXES.get(unit, tuple((s, p if p != "µ" else "u") for s, p in _PREFIXES if s >= 1e-12))
+    ascii_prefixes = tuple((s, p if p != "µ" else "u") for s, p in _PREFIXES if s >= 1e-12)
+    prefixes = _PLAN_PREFIXES.get(unit, ascii_prefixes)
     scale, prefix = 1.0, ""
     for candidate, letter in prefixes:
         if abs(value) >= candidate * (1 - 1e-9):

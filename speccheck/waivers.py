@@ -10,10 +10,10 @@ line just above it (a run of comment lines directly above counts; a blank line e
     X1:
       kind: crystal
 
-The comment starts with the word `waive`, names one or more rule ids (comma separated),
-optionally the one signal it is limited to (`for broadcast FM`, format v2: findings found
-per signal and switch position name their signal), and gives the reason after `because`. It covers the findings of those rules that point at that
-line, or anywhere inside the part, device, stage or section whose key is on that line.
+The comment starts with the word `waive`, names one or more rule ids (comma separated), optionally the one
+signal it is limited to (`for broadcast FM`, format v2: findings found per signal and switch position name
+their signal), and gives the reason after `because`. It covers the findings of those rules that point at
+that line, or anywhere inside the part, device, stage or section whose key is on that line.
 
 A waived finding stays in every report, marked waived with its reason, and is counted as
 waived; it does not count toward the exit code. A waiver with no reason waives nothing and is
@@ -24,8 +24,8 @@ from __future__ import annotations
 
 import re
 
-from speccheck.findings import Finding, Location
 from speccheck import registry
+from speccheck.findings import Finding, Location
 
 _ID = r"[a-z][a-z0-9-]*\.[a-z0-9][a-z0-9-]*"
 WAIVER = re.compile(rf"^waive\s+(?P<ids>{_ID}(?:\s*,\s*{_ID})*)(?P<rest>.*)$", re.IGNORECASE | re.DOTALL)
@@ -34,7 +34,7 @@ FOR_SIGNAL = re.compile(r"^for\s+(?P<signal>.+?)\s+(?=because\b)", re.IGNORECASE
 NOT_WAIVABLE = ("input", "review")
 STAGE = "review"
 class Waiver:
-    __slots__ = ("line", "col", "end_col", "ids", "reason", "problem", "target", "covers", "used", "signal")
+    __slots__ = ("col", "covers", "end_col", "ids", "line", "problem", "reason", "signal", "target", "used")
 
     def __init__(self, line, col, end_col, ids, reason, problem, signal=""):
         self.line, self.col, self.end_col = line, col, end_col
@@ -114,19 +114,27 @@ def _dotted(path) -> str:
 def _covered_paths(doc, line: int) -> list[str]:
     """Document paths whose key (or list item) starts on this line."""
     out = [_dotted(p) for p, mark in doc.keys.items() if mark.line == line]
-    out += [_dotted(p) for p, mark in doc.values.items() if p and isinstance(p[-1], int) and mark.line == line]
+    out += [_dotted(p) for p, mark in doc.values.items()
+            if p and isinstance(p[-1], int) and mark.line == line]
     return [p for p in out if p]
 
 
 def _inside(path: str, holder: str) -> bool:
-    return path == holder or path.startswith(holder + ".") or path.startswith(holder + "[")
+    return path == holder or path.startswith((holder + ".", holder + "["))
 
 
 def _report(result, settings, rule_id, message, w: Waiver, path=""):
-    own = registry.get(rule_id)
-    result.findings.append(Finding(rule_id, settings.level_for(rule_id, own.level), message,
-                                   Location(result.path, w.line, w.col, path, w.line, w.end_col),
-                                   stage=STAGE, fix=own.fix))
+    own = registry.RULES[rule_id] if rule_id in registry.RULES else registry.load_rules()[rule_id]
+    result.findings.append(
+        Finding(
+            rule_id,
+            settings.level_for(rule_id, own.level),
+            message,
+            Location(result.path, w.line, w.col, path, w.line, w.end_col),
+            stage=STAGE,
+            fix=own.fix,
+        )
+    )
 
 
 def apply(result, loaded, settings):
@@ -146,10 +154,19 @@ def apply(result, loaded, settings):
         for rule_id in w.ids:
             family = rule_id.split(".", 1)[0]
             if rule_id not in rules or family in NOT_WAIVABLE:
-                why = (f"{family} findings cannot be waived" if rule_id in rules or family in NOT_WAIVABLE
-                       else f"there is no rule '{rule_id}'{_suggest(rule_id, rules)}")
-                _report(result, settings, "review.waiver-unknown-rule",
-                        f"waiver for {rule_id}: {why}", w, target_path)
+                why = (
+                    f"{family} findings cannot be waived"
+                    if rule_id in rules or family in NOT_WAIVABLE
+                    else f"there is no rule '{rule_id}'{_suggest(rule_id, rules)}"
+                )
+                _report(
+                    result,
+                    settings,
+                    "review.waiver-unknown-rule",
+                    f"waiver for {rule_id}: {why}",
+                    w,
+                    target_path,
+                )
                 continue
             if w.problem:
                 continue
@@ -158,18 +175,32 @@ def apply(result, loaded, settings):
                     continue
                 if w.signal and f.signal.lower() != w.signal.lower():
                     continue
-                if w.target and (f.location.line == w.target or any(_inside(f.location.path, c) for c in covers)):
+                if w.target and (
+                    f.location.line == w.target or any(_inside(f.location.path, c) for c in covers)
+                ):
                     f.waived = w.reason
                     w.used.add(rule_id)
             if rule_id not in w.used and ran and settings.enabled(rule_id):
-                where = (f"line {w.target}" if w.target else "nothing (no line follows it directly)")
-                _report(result, settings, "review.waiver-unused",
-                        f"waiver for {rule_id} matches no finding: it covers {where}, where {rule_id} "
-                        "found nothing", w, target_path)
+                where = f"line {w.target}" if w.target else "nothing (no line follows it directly)"
+                _report(
+                    result,
+                    settings,
+                    "review.waiver-unused",
+                    f"waiver for {rule_id} matches no finding: it covers {where}, where {rule_id} "
+                    "found nothing",
+                    w,
+                    target_path,
+                )
         if w.problem:
-            _report(result, settings, "review.waiver-reason",
-                    f"waiver for {', '.join(w.ids)} {w.problem}, so it waives nothing; a waiver needs a reason: "
-                    f"'# waive {w.ids[0]} because ...'", w, target_path)
+            _report(
+                result,
+                settings,
+                "review.waiver-reason",
+                f"waiver for {', '.join(w.ids)} {w.problem}, so it waives nothing; a waiver needs a "
+                f"reason: '# waive {w.ids[0]} because ...'",
+                w,
+                target_path,
+            )
     return None
 
 
@@ -178,4 +209,3 @@ def _suggest(word, choices) -> str:
 
     close = difflib.get_close_matches(word, list(choices), n=1)
     return f"; did you mean '{close[0]}'?" if close else ""
-

@@ -10,13 +10,13 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 MAX_BYTES = 1_000_000  # a hand-written build plan is a few kB; refuse anything absurd
 MAX_DEPTH = 32
 MAX_INT_DIGITS = 30
 MAX_BRACKETS = 15000  # the C composer recurses per level: fine at 20 000 deep, overflows near 50 000
-_COMPACT_DASHES = re.compile(r"(?:^|:[ \t])[ \t]*(?:[-?:][ \t]+){%d,}" % (MAX_DEPTH + 1), re.MULTILINE)
+_COMPACT_DASHES = re.compile(r"(?:^|:[ \t])[ \t]*(?:[-?:][ \t]+){" + str(MAX_DEPTH + 1) + ",}", re.MULTILINE)
 
 Path = tuple  # of str | int
 
@@ -44,7 +44,7 @@ class Document:
     and turning every node's marks into a Mark was a tenth of the time of a check.
     """
 
-    __slots__ = ("data", "value_nodes", "key_nodes", "problems", "comments", "_values", "_keys")
+    __slots__ = ("_keys", "_values", "comments", "data", "key_nodes", "problems", "value_nodes")
 
     def __init__(self):
         self.data = None
@@ -127,7 +127,6 @@ def _yaml():
     from ruamel.yaml import YAML
     from ruamel.yaml.nodes import ScalarNode, SequenceNode
     from ruamel.yaml.resolver import BaseResolver
-
     from ruamel.yaml.tag import Tag
 
     tags = {ScalarNode: Tag(suffix=STR), SequenceNode: Tag(suffix="tag:yaml.org,2002:seq")}
@@ -192,7 +191,8 @@ def _scalar(node, doc: Document, path: Path):
         return _BOOL[text]
     if _INT.fullmatch(text):
         if len(text) > MAX_INT_DIGITS:
-            doc.problems.append(Problem("limit", f"number '{text[:40]}' has too many digits", _mark(node), path))
+            doc.problems.append(Problem("limit", f"number '{text[:40]}' has too many digits", _mark(node),
+                                        path))
             return text
         return int(text, 0) if text[:2] in ("0o", "0x") else int(text)
     if text in _SPECIAL_FLOAT:
@@ -229,8 +229,15 @@ def _foreign_tag(node, doc: Document, path: Path) -> bool:
     if tag in CORE_TAGS:
         return False
     shown = tag.replace("tag:yaml.org,2002:", "!!")
-    doc.problems.append(Problem("tag", f"the YAML tag '{shown[:60]}' is not accepted in a build file; only plain "
-                                "values, lists and mappings are", _mark(node), path))
+    doc.problems.append(
+        Problem(
+            "tag",
+            f"the YAML tag '{shown[:60]}' is not accepted in a build file; only plain "
+            "values, lists and mappings are",
+            _mark(node),
+            path,
+        )
+    )
     return True
 
 
@@ -242,9 +249,14 @@ def _convert(node, doc: Document, path: Path, depth: int, seen: set):
         doc.problems.append(Problem("limit", f"nesting deeper than {MAX_DEPTH} levels", _mark(node), path))
         return None
     if id(node) in seen:
-        doc.problems.append(Problem("alias", "YAML anchors and aliases are not accepted in a build file; "
-                                    "write the value out", doc.key_mark(path) if path in doc.key_nodes
-                                    else _mark(node), path))
+        doc.problems.append(
+            Problem(
+                "alias",
+                "YAML anchors and aliases are not accepted in a build file; write the value out",
+                doc.key_mark(path) if path in doc.key_nodes else _mark(node),
+                path,
+            )
+        )
         return None
     seen.add(id(node))
     doc.value_nodes[path] = node
@@ -256,20 +268,29 @@ def _convert(node, doc: Document, path: Path, depth: int, seen: set):
     out: dict = {}
     for key_node, value_node in node.value:
         if key_node.id != "scalar":
-            doc.problems.append(Problem("syntax", "a mapping key must be a plain word", _mark(key_node), path))
+            doc.problems.append(
+                Problem("syntax", "a mapping key must be a plain word", _mark(key_node), path)
+            )
             continue
         key = key_node.value
         if key == "<<" and key_node.tag.endswith(":merge"):
-            doc.problems.append(Problem("alias", "YAML merge keys ('<<') are not accepted in a build file",
-                                        _mark(key_node), path))
+            doc.problems.append(
+                Problem(
+                    "alias", "YAML merge keys ('<<') are not accepted in a build file", _mark(key_node), path
+                )
+            )
             continue
         if key in out:
             first = _mark(doc.key_nodes[path + (key,)])
-            doc.problems.append(Problem(
-                "duplicate-key",
-                f"key '{key}' appears twice; the first is at line {first.line}, col {first.col}; "
-                "only one may stay",
-                _mark(key_node), path + (key,)))
+            doc.problems.append(
+                Problem(
+                    "duplicate-key",
+                    f"key '{key}' appears twice; the first is at line {first.line}, col {first.col}; "
+                    "only one may stay",
+                    _mark(key_node),
+                    path + (key,),
+                )
+            )
             continue
         doc.key_nodes[path + (key,)] = key_node
         out[key] = _convert(value_node, doc, path + (key,), depth + 1, seen)
@@ -290,7 +311,7 @@ def _comments(text: str) -> dict:
             elif ch in "'\"":
                 quote = ch
             elif ch == "#" and (i == 0 or line[i - 1] in " \t"):
-                found[no] = line[i + 1:].strip()
+                found[no] = line[i + 1 :].strip()
                 break
     return found
 

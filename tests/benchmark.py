@@ -120,7 +120,8 @@ def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--files", type=int, default=1000)
     ap.add_argument("--repeat", type=int, default=5, help="cold-start runs of each command (median)")
-    ap.add_argument("--rounds", type=int, default=3, help="interleaved timing rounds over the corpus (fastest kept)")
+    ap.add_argument("--rounds", type=int, default=3, help="interleaved timing rounds over the corpus "
+                                                          "(fastest kept)")
     args = ap.parse_args(argv)
     ok = True
     with tempfile.TemporaryDirectory() as tmp:
@@ -133,7 +134,8 @@ def main(argv=None) -> int:
         print(f"YAML loader alone (ruamel.yaml safe, C): {yaml_t * 1e3:.2f} ms/file (CPU time)")
         print(f"full check (speccheck engine):           {check_t * 1e3:.2f} ms/file (CPU time)")
         print(f"ratio check / YAML:                      {ratio:.2f}  (target <= 2.0)")
-        print(f"for reference, round-trip loader:        {rt_t * 1e3:.2f} ms/file (check is {check_t / rt_t:.2f} of it)")
+        print(f"for reference, round-trip loader:        {rt_t * 1e3:.2f} ms/file (check is "
+              f"{check_t / rt_t:.2f} of it)")
         for name, value in stages.items():
             print(f"  of the check, {name}: {value * 1e3:.2f} ms/file")
         ok &= ratio <= 2.0

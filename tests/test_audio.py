@@ -28,7 +28,9 @@ def test_coupling_corner_check_values():
     assert audio_formulas.rc_corner(8.0, 470e-6) == pytest.approx(42.3, abs=0.05)
     assert audio_formulas.rc_corner(8.0, 1000e-6) == pytest.approx(19.9, abs=0.05)
     # scipy: the response at the computed corner is 3.01 dB down
-    assert high_pass_gain_db(8.0, 470e-6, audio_formulas.rc_corner(8.0, 470e-6)) == pytest.approx(-10 * math.log10(2))
+    assert high_pass_gain_db(8.0, 470e-6, audio_formulas.rc_corner(8.0, 470e-6)) == pytest.approx(
+        -10 * math.log10(2)
+    )
 
 
 def test_output_network_turnover_check_value():
@@ -38,7 +40,9 @@ def test_output_network_turnover_check_value():
 
 def test_high_pass_loss_against_scipy():
     corner = audio_formulas.rc_corner(8.0, 47e-6)
-    assert audio_formulas.high_pass_loss_db(300.0, corner) == pytest.approx(-high_pass_gain_db(8.0, 47e-6, 300.0))
+    assert audio_formulas.high_pass_loss_db(300.0, corner) == pytest.approx(
+        -high_pass_gain_db(8.0, 47e-6, 300.0)
+    )
 
 
 def test_clean_plan_has_no_audio_finding(clean_text):
@@ -51,12 +55,15 @@ def test_clean_plan_has_no_audio_finding(clean_text):
 
 # ---- output network -----------------------------------------------------------------------------
 
+
 def test_missing_recommended_network_is_a_warning(clean_text):
     text = edited(clean_text, "    output_network: {resistor: R21, capacitor: C21}\n", "")
     found = of(check(text), "audio.output-network")
     assert [f.level for f in found] == ["warning"]
-    assert found[0].message.startswith("profile audio-power-amp-lv of U2 recommends a series R–C network across its "
-                                       "output and the audio-amp stage has none")
+    assert found[0].message.startswith(
+        "profile audio-power-amp-lv of U2 recommends a series R–C network "
+        "across its output and the audio-amp stage has none"
+    )
     assert found[0].location.line == line_of(text, "- stage: audio-amp")
 
 
@@ -68,8 +75,11 @@ def test_missing_required_network_is_an_error():
 
 
 def test_network_not_across_the_output(clean_text):
-    text = edited(clean_text, "R21: {kind: resistor, value: 10 ohm, ends: [U2.out, ZOBEL]}",
-                  "R21: {kind: resistor, value: 10 ohm, ends: [U2.in_plus, ZOBEL]}")
+    text = edited(
+        clean_text,
+        "R21: {kind: resistor, value: 10 ohm, ends: [U2.out, ZOBEL]}",
+        "R21: {kind: resistor, value: 10 ohm, ends: [U2.in_plus, ZOBEL]}",
+    )
     found = of(check(text), "audio.output-network")
     assert [f.level for f in found] == ["warning"]
     assert found[0].message.startswith("R21 and C21 do not form a series R–C from U2's output to ground")
@@ -81,18 +91,24 @@ def test_network_turning_over_inside_the_audio_band(clean_text):
     found = of(check(text), "audio.output-network")
     assert [f.level for f in found] == ["warning"]
     turnover = 1 / (2 * math.pi * 10 * 10e-6)
-    assert found[0].message.startswith(f"output network R21 (10 ohm) + C21 (10 uF) turns over at {turnover / 1e3:.4g} kHz")
+    assert found[0].message.startswith(
+        f"output network R21 (10 ohm) + C21 (10 uF) turns over at {turnover / 1e3:.4g} kHz"
+    )
 
 
 def test_electrolytic_in_the_network(clean_text):
-    text = edited(clean_text, "C21: {kind: capacitor, value: 100 nF, dielectric: film,",
-                  "C21: {kind: capacitor, value: 100 nF, dielectric: electrolytic, positive: ZOBEL,")
+    text = edited(
+        clean_text,
+        "C21: {kind: capacitor, value: 100 nF, dielectric: film,",
+        "C21: {kind: capacitor, value: 100 nF, dielectric: electrolytic, positive: ZOBEL,",
+    )
     found = of(check(text), "audio.output-network")
     assert [f.message.split(" in the")[0] for f in found] == ["C21"]
     assert found[0].location.line == line_of(text, "C21: {kind: capacitor")
 
 
 # ---- coupling corner ----------------------------------------------------------------------------
+
 
 def test_small_coupling_capacitor_cuts_the_bass(clean_text):
     text = edited(clean_text, "C20: {kind: capacitor, value: 470 uF", "C20: {kind: capacitor, value: 47 uF")
@@ -101,8 +117,11 @@ def test_small_coupling_capacitor_cuts_the_bass(clean_text):
     corner = 1 / (2 * math.pi * 8 * 47e-6)
     loss = -high_pass_gain_db(8.0, 47e-6, 300.0)
     need = 1 / (2 * math.pi * 8 * 300)
-    assert found[0].message == (f"C20 (47 uF) into SPK1 (8 ohm) turns over at {corner:.4g} Hz, above the build's lowest "
-                                f"audio frequency of 300 Hz: {loss:.1f} dB down there; {need * 1e6:.4g} µF or more keeps it")
+    assert found[0].message == (
+        f"C20 (47 uF) into SPK1 (8 ohm) turns over at {corner:.4g} Hz, above the "
+        f"build's lowest audio frequency of 300 Hz: {loss:.1f} dB down there; "
+        f"{need * 1e6:.4g} µF or more keeps it"
+    )
     assert found[0].location.line == line_of(text, "C20: {kind: capacitor")
 
 
@@ -119,9 +138,13 @@ def test_large_enough_coupling_is_fine():
 
 # ---- DC through the speaker ---------------------------------------------------------------------
 
+
 def test_speaker_straight_on_a_half_supply_output(clean_text):
-    text = edited(clean_text, "SPK1: {kind: speaker, value: 8 ohm, power_rating: 3 W, ends: [SPK, GND]}",
-                  "SPK1: {kind: speaker, value: 8 ohm, power_rating: 3 W, ends: [U2.out, GND]}")
+    text = edited(
+        clean_text,
+        "SPK1: {kind: speaker, value: 8 ohm, power_rating: 3 W, ends: [SPK, GND]}",
+        "SPK1: {kind: speaker, value: 8 ohm, power_rating: 3 W, ends: [U2.out, GND]}",
+    )
     found = of(check(text), "audio.speaker-dc")
     assert [f.level for f in found] == ["error"]
     # half of the 12 V supply across 8 ohm: 0.75 A, 4.5 W (Ohm's law)
@@ -135,6 +158,7 @@ def test_capacitor_coupled_speaker_has_no_dc(clean_text):
 
 
 # ---- audio.input-bypass (values: common practice, a few hundred pF to a few nF) -------------------------
+
 
 def test_input_bypass_present_and_in_range_is_quiet(clean_text):
     assert of(check(clean_text), "audio.input-bypass") == []
@@ -156,6 +180,7 @@ def test_input_bypass_too_large_cuts_the_treble(clean_text):
 
 
 # ---- audio.speaker-power (Boylestad & Nashelsky ch. 12: P_o(max) = V_CC^2 / (2 R_L)) -----------------
+
 
 def test_speaker_rated_above_the_amplifier_is_quiet(clean_text):
     assert of(check(clean_text), "audio.speaker-power") == []

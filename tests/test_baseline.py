@@ -90,7 +90,8 @@ def test_baseline_roundtrip_and_hide():
     ("not json", "not JSON"),
     ('{"some": "thing"}', 'no "baseline": "speccheck-baseline" key'),
     ('{"baseline": "speccheck-baseline", "version": 9, "findings": []}', "baseline version 9"),
-    ('{"baseline": "speccheck-baseline", "version": 1, "findings": [{"rule": "x"}]}', "findings[0] has no fingerprint"),
+    ('{"baseline": "speccheck-baseline", "version": 1, "findings": [{"rule": "x"}]}',
+     "findings[0] has no fingerprint"),
 ])
 def test_a_bad_baseline_is_refused_with_exit_two(tmp_path, content, says):
     path = tmp_path / "base.json"

@@ -122,7 +122,8 @@ def test_every_example_validates_against_the_exported_schema():
     from jsonschema import Draft202012Validator
     from ruamel.yaml import YAML
 
-    validators = {v: Draft202012Validator(json.loads(run("schema", "--version", str(v)).output)) for v in (1, 2)}
+    validators = {v: Draft202012Validator(json.loads(run("schema", "--version", str(v)).output))
+                  for v in (1, 2)}
     for path in sorted(EXAMPLES.glob("*.yaml")):
         data = YAML(typ="safe").load(path.read_text("utf-8"))
         errors = list(validators[data["build_spec"]].iter_errors(data))
@@ -136,7 +137,9 @@ def test_version():
 
 
 def test_console_script_runs_as_a_process():
-    out = subprocess.run([sys.executable, "-m", "speccheck", "check", str(CLEAN)], capture_output=True, text=True)
+    out = subprocess.run(
+        [sys.executable, "-m", "speccheck", "check", str(CLEAN)], capture_output=True, text=True
+    )
     assert out.returncode == 0, out.stderr
     assert "Traceback" not in out.stderr
 

@@ -1,7 +1,7 @@
 """The project file: where it is found, what it may say, how it is validated, and precedence."""
 
-from pathlib import Path
 import json
+from pathlib import Path
 
 import jsonschema
 import pytest
@@ -34,10 +34,13 @@ def run(*args):
 def test_the_project_schema_is_a_valid_json_schema():
     schema = json.loads((ROOT / "speccheck" / "schema" / config.PROJECT_SCHEMA).read_text("utf-8"))
     jsonschema.Draft202012Validator.check_schema(schema)
-    assert run("schema", "project").output == (ROOT / "speccheck" / "schema" / config.PROJECT_SCHEMA).read_text()
+    assert (
+        run("schema", "project").output == (ROOT / "speccheck" / "schema" / config.PROJECT_SCHEMA).read_text()
+    )
 
 
 # ---- finding the file ----------------------------------------------------------------------
+
 
 def test_found_by_walking_up_and_not_past_the_repository_root(tmp_path):
     (tmp_path / "repo" / ".git").mkdir(parents=True)
@@ -56,7 +59,9 @@ def test_found_by_walking_up_and_not_past_the_repository_root(tmp_path):
 
 
 def test_settings_from_a_full_file(tmp_path):
-    path = write(tmp_path, """\
+    path = write(
+        tmp_path,
+        """\
 speccheck_project: 1
 fail_level: warning
 rules:
@@ -69,7 +74,8 @@ rules:
 files:
   include: ["builds/**"]
   exclude: ["builds/archive/**"]
-""")
+""",
+    )
     s = load_project(path)
     assert s.fail_level == "warning"
     assert "wiring.crystal-dc" in s.disabled and s.enabled("wiring.tank-return")
@@ -92,8 +98,11 @@ def test_family_names_switch_whole_families(tmp_path):
 
 def test_rule_settings_reach_the_rule(tmp_path, clean_text):
     # C31: 6 V on a 16 V part is 37.5 %; a project derating of 0.3 makes that a warning
-    s = load_project(write(tmp_path, "speccheck_project: 1\nrules:\n  settings:\n"
-                                     "    wiring.cap-voltage: {derating: 0.3}\n"))
+    s = load_project(
+        write(
+            tmp_path, "speccheck_project: 1\nrules:\n  settings:\n    wiring.cap-voltage: {derating: 0.3}\n"
+        )
+    )
     found = [f for f in of(check(clean_text, settings=s), "wiring.cap-voltage") if "C31" in f.message]
     assert found and found[0].level == "warning"
     assert "keep under 30%" in found[0].message
@@ -101,7 +110,9 @@ def test_rule_settings_reach_the_rule(tmp_path, clean_text):
 
 
 def test_level_override_changes_the_level(tmp_path):
-    s = load_project(write(tmp_path, "speccheck_project: 1\nrules:\n  levels: {wiring.tank-return: warning}\n"))
+    s = load_project(
+        write(tmp_path, "speccheck_project: 1\nrules:\n  levels: {wiring.tank-return: warning}\n")
+    )
     from speccheck import engine
 
     found = of(engine.check_file(BEGINNER, s), "wiring.tank-return")
@@ -109,6 +120,7 @@ def test_level_override_changes_the_level(tmp_path):
 
 
 # ---- errors that name the problem ------------------------------------------------------------
+
 
 def test_unknown_key_is_an_error_with_its_position(tmp_path):
     text = "speccheck_project: 1\nrules:\n  skip: []\n  sikp: [wiring]\n"
@@ -123,25 +135,41 @@ def test_unknown_top_level_key(tmp_path):
 
 
 def test_unknown_rule_ids_and_families(tmp_path):
-    text = ("speccheck_project: 1\nrules:\n  skip: [wiring.tank-retrun, wirng]\n"
-            "  levels:\n    wiring.cap-volts: note\n  settings:\n    wiring.crystal-dcc: {x: 1}\n")
+    text = (
+        "speccheck_project: 1\nrules:\n  skip: [wiring.tank-retrun, wirng]\n"
+        "  levels:\n    wiring.cap-volts: note\n  settings:\n    wiring.crystal-dcc: {x: 1}\n"
+    )
     path = write(tmp_path, text)
     got = messages(path)
-    assert f"{path}:3:10: unknown rule id 'wiring.tank-retrun' in rules.skip; did you mean 'wiring.tank-return'?" in got
-    assert any(m.startswith(f"{path}:3:30: unknown rule family 'wirng' in rules.skip; did you mean 'wiring'") for m in got)
+    assert (
+        f"{path}:3:10: unknown rule id 'wiring.tank-retrun' in rules.skip; did you mean 'wiring.tank-return'?"
+        in got
+    )
+    assert any(
+        m.startswith(f"{path}:3:30: unknown rule family 'wirng' in rules.skip; did you mean 'wiring'")
+        for m in got
+    )
     assert any(m.startswith(f"{path}:5:5: unknown rule id 'wiring.cap-volts' in rules.levels") for m in got)
-    assert any(m.startswith(f"{path}:7:5: unknown rule id 'wiring.crystal-dcc' in rules.settings") for m in got)
+    assert any(
+        m.startswith(f"{path}:7:5: unknown rule id 'wiring.crystal-dcc' in rules.settings") for m in got
+    )
 
 
 def test_unknown_setting_and_wrong_type(tmp_path):
     text = "speccheck_project: 1\nrules:\n  settings:\n    wiring.cap-voltage:\n      deratng: 0.7\n"
     path = write(tmp_path, text)
     (msg,) = messages(path)
-    assert msg.startswith(f"{path}:5:7: rule wiring.cap-voltage has no setting 'deratng' (it has: derating, "
-                          "tantalum_derating); did you mean 'derating'?")
-    path = write(tmp_path, "speccheck_project: 1\nrules:\n  settings:\n    wiring.cap-voltage: {derating: high}\n")
+    assert msg.startswith(
+        f"{path}:5:7: rule wiring.cap-voltage has no setting 'deratng' (it has: derating, "
+        "tantalum_derating); did you mean 'derating'?"
+    )
+    path = write(
+        tmp_path, "speccheck_project: 1\nrules:\n  settings:\n    wiring.cap-voltage: {derating: high}\n"
+    )
     (msg,) = messages(path)
-    assert msg == f"{path}:4:36: wiring.cap-voltage.derating should be a number like its default 0.8, got 'high'"
+    assert (
+        msg == f"{path}:4:36: wiring.cap-voltage.derating should be a number like its default 0.8, got 'high'"
+    )
     path = write(tmp_path, "speccheck_project: 1\nrules:\n  settings:\n    wiring.tank-return: {x: 1}\n")
     assert messages(path) == [f"{path}:4:5: rule wiring.tank-return has no settings"]
 
@@ -183,6 +211,7 @@ def test_cli_reports_a_bad_project_file_and_exits_two(tmp_path):
 
 # ---- precedence -------------------------------------------------------------------------------
 
+
 def test_option_then_file_then_default(tmp_path):
     (tmp_path / ".git").mkdir()
     plan = tmp_path / "p.yaml"
@@ -210,16 +239,20 @@ def test_paths_from_two_projects_are_refused(tmp_path):
 
 # ---- globs ------------------------------------------------------------------------------------
 
-@pytest.mark.parametrize("pattern, path, hit", [
-    ("builds/**", "builds/a.yaml", True),
-    ("builds/**/*.yaml", "builds/x/y/a.yaml", True),
-    ("builds/*.yaml", "builds/x/a.yaml", False),
-    ("archive", "archive/old.yaml", True),
-    ("**/draft-*.yaml", "builds/draft-1.yaml", True),
-    ("*.yaml", "builds/a.yaml", False),
-    ("./builds/a.yaml", "builds/a.yaml", True),
-    ("build?/a.yaml", "builds/a.yaml", True),
-])
+
+@pytest.mark.parametrize(
+    "pattern, path, hit",
+    [
+        ("builds/**", "builds/a.yaml", True),
+        ("builds/**/*.yaml", "builds/x/y/a.yaml", True),
+        ("builds/*.yaml", "builds/x/a.yaml", False),
+        ("archive", "archive/old.yaml", True),
+        ("**/draft-*.yaml", "builds/draft-1.yaml", True),
+        ("*.yaml", "builds/a.yaml", False),
+        ("./builds/a.yaml", "builds/a.yaml", True),
+        ("build?/a.yaml", "builds/a.yaml", True),
+    ],
+)
 def test_glob_dialect(pattern, path, hit):
     assert glob_match(pattern, path) is hit
 
@@ -233,11 +266,13 @@ def test_setting_out_of_range_is_refused_at_its_position(tmp_path):
 
     from speccheck.cli import main
 
-    (tmp_path / "plan.yaml").write_text((Path(__file__).parent.parent / "examples" / "vhf-monitor-455k.yaml")
-                                        .read_text("utf-8"))
+    (tmp_path / "plan.yaml").write_text(
+        (Path(__file__).parent.parent / "examples" / "vhf-monitor-455k.yaml").read_text("utf-8")
+    )
     (tmp_path / "speccheck-project.yaml").write_text(
         "speccheck_project: 1\nrules:\n  settings:\n    wiring.cap-voltage: {derating: 1.5}\n"
-        "    freqplan.mixer-spurs: {order: 1000}\n")
+        "    freqplan.mixer-spurs: {order: 1000}\n"
+    )
     res = CliRunner().invoke(main, ["check", str(tmp_path)])
     assert res.exit_code == 2
     assert "speccheck-project.yaml:4:" in res.output and "is a share and must be at most 1" in res.output

@@ -1,4 +1,4 @@
-from conftest import CLEAN, EXAMPLES, check, of
+from conftest import CLEAN, EXAMPLES
 
 from speccheck import engine
 

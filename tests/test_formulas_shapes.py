@@ -31,7 +31,8 @@ def test_gaussian_shape_factor_is_root_twenty():
 
 
 def test_butterworth_order_equation():
-    # Williams & Taylor, Electronic Filter Design Handbook, ch. 2: 3 dB at 1, 60 dB at 2 needs n = 9.97 (round up to 10)
+    # Williams & Taylor, Electronic Filter Design Handbook, ch. 2: 3 dB at 1, 60 dB at 2 needs n = 9.97 (round
+    # up to 10)
     n = shapes.butterworth_order(1.0, 3.0, 2.0, 60.0)
     assert n == pytest.approx(math.log10((1e6 - 1) / (10 ** 0.3 - 1)) / (2 * math.log10(2)), rel=1e-12)
     assert 9.9 < n < 10.0

@@ -11,8 +11,8 @@ import pytest
 from conftest import EXAMPLES, check, edited, line_of, of
 
 from speccheck import engine
-from speccheck.formulas import audio, bandwidth, mixing, resonators
 from speccheck.config import Settings
+from speccheck.formulas import audio, bandwidth, mixing, resonators
 
 # ---- necessary bandwidth and emission designators -------------------------------------------
 
@@ -37,7 +37,8 @@ def test_carson_rule_matches_sm1138_for_fm():
 
 
 @pytest.mark.parametrize("hz, code", [
-    (2.4e3, "2K40"), (12.5e3, "12K5"), (180.5e3, "181K"),   # Radio Regulations Appendix 1 (issue check values)
+    # Radio Regulations Appendix 1 (issue check values)
+    (2.4e3, "2K40"), (12.5e3, "12K5"), (180.5e3, "181K"),
 ])
 def test_designator_spelling_rr_appendix_1(hz, code):
     assert bandwidth.bandwidth_code(hz) == code
@@ -53,7 +54,8 @@ def test_designator_spelling_more_examples(hz, code):
 
 
 def test_designator_rounding_carries_into_the_next_letter():
-    # 999.5 Hz has three significant figures 1.00 kHz: written 1K00 (RR Appendix 1 rule: 1.00 to 999 per letter)
+    # 999.5 Hz has three significant figures 1.00 kHz: written 1K00 (RR Appendix 1 rule: 1.00 to 999 per
+    # letter)
     assert bandwidth.bandwidth_code(999.5) == "1K00"
 
 
@@ -77,7 +79,7 @@ def test_spur_inputs_solve_the_mixing_equation():
     # and the wanted low-side response fs = fLO + fIF is among them (m = 1, k = -1)
     lo, fif = 10.245e6, 455e3
     found = list(mixing.spur_inputs(lo, fif, 5))
-    for m, k, s, fs in found:
+    for m, k, _s, fs in found:
         assert abs(m * fs + k * lo) == pytest.approx(fif)
     assert any(m == 1 and k == -1 and fs == pytest.approx(10.7e6) for m, k, s, fs in found)
     assert any(m == 1 and k == -1 and fs == pytest.approx(9.79e6) for m, k, s, fs in found)  # the image
@@ -89,7 +91,8 @@ def test_spur_inputs_solve_the_mixing_equation():
 
 
 def test_parallel_rlc_wikibooks():
-    # Wikibooks, Practical Electronics / Parallel RLC: 10.7 MHz, 1 µH, 10 kΩ -> C 221.2 pF, Q 148.7, BW 71.9 kHz
+    # Wikibooks, Practical Electronics / Parallel RLC: 10.7 MHz, 1 µH, 10 kΩ -> C 221.2 pF, Q 148.7, BW 71.9
+    # kHz
     c = resonators.capacitance_for(10.7e6, 1e-6)
     assert c == pytest.approx(221.2e-12, rel=1e-3)
     q = resonators.parallel_q(10e3, 10.7e6, 1e-6)
@@ -112,7 +115,8 @@ def test_crystal_pulling_check_values():
 
 def test_series_load_capacitance():
     # C_L = C1 C2 / (C1 + C2) + C_stray; two 33 pF in series are 16.5 pF (plain arithmetic), plus 4 pF stray
-    assert resonators.series_load(33e-12, 33e-12, 4e-12) == pytest.approx(1 / (1 / 33e-12 + 1 / 33e-12) + 4e-12)
+    expected = 1 / (1 / 33e-12 + 1 / 33e-12) + 4e-12
+    assert resonators.series_load(33e-12, 33e-12, 4e-12) == pytest.approx(expected)
 
 
 @pytest.mark.parametrize("tau, corner", [(50e-6, 3183.1), (75e-6, 2122.1)])
@@ -127,7 +131,7 @@ def test_rc_corner_against_scipy(tau):
     # scipy.signal.freqs of 1 / (s tau + 1) gives -3.01 dB at 1/tau rad/s, i.e. at our corner in Hz
     from scipy import signal
 
-    w, h = signal.freqs([1.0], [tau, 1.0], worN=[2 * math.pi * audio.corner_from_tau(tau)])
+    _w, h = signal.freqs([1.0], [tau, 1.0], worN=[2 * math.pi * audio.corner_from_tau(tau)])
     assert 20 * math.log10(abs(h[0])) == pytest.approx(-3.0103, abs=1e-3)
 
 
@@ -147,15 +151,20 @@ def test_clean_plan_design_sheet_lists_the_frequency_plan(clean_text):
     sheet = _sheet(check(clean_text))
     lo = sheet[("conversion", "conversion", "LO frequency")]
     assert lo.unit == "Hz"
-    # LO = crystal 10.245 MHz moved by its pulling D(20.5 pF) - D(20 pF), with C1m 15 fF, C0 4 pF (formula above)
+    # LO = crystal 10.245 MHz moved by its pulling D(20.5 pF) - D(20 pF), with C1m 15 fF, C0 4 pF (formula
+    # above)
     pull = 15e-15 / (2 * (4e-12 + 20.5e-12)) - 15e-15 / (2 * (4e-12 + 20e-12))
     assert lo.value == pytest.approx(10.245e6 * (1 + pull))
-    assert sheet[("conversion", "conversion", "IF (nominal)")].value == pytest.approx(10.7e6 - 10.245e6 * (1 + pull))
+    assert sheet[("conversion", "conversion", "IF (nominal)")].value == pytest.approx(
+        10.7e6 - 10.245e6 * (1 + pull)
+    )
     spread = 500 + 20e-6 * 10.245e6  # source drift + 20 ppm of the crystal
     assert sheet[("conversion", "conversion", "IF highest (worst case)")].value == pytest.approx(
-        10.7e6 - 10.245e6 * (1 + pull) + spread)
+        10.7e6 - 10.245e6 * (1 + pull) + spread
+    )
     assert sheet[("conversion", "conversion", "image frequency")].value == pytest.approx(
-        2 * 10.245e6 * (1 + pull) - 10.7e6)
+        2 * 10.245e6 * (1 + pull) - 10.7e6
+    )
     assert sheet[("signals", "repeater voice", "emission designator")].value == "16K0F3E"
     assert sheet[("signals", "repeater voice", "necessary bandwidth (ITU-R SM.1138)")].unit == "Hz"
     margin = sheet[("if-filter", "narrow path", "margin for repeater voice (worst case)")]
@@ -164,7 +173,8 @@ def test_clean_plan_design_sheet_lists_the_frequency_plan(clean_text):
     assert any("2·fs − 2·fLO" in k[2] for k in spurs)
     assert all(sheet[k].unit == ("dBm" if k[2].endswith("estimated level") else "Hz") for k in spurs)
     assert sheet[("discriminator", "discriminator", "tank resonance f0")].value == pytest.approx(
-        1 / (2 * math.pi * math.sqrt(1e-3 * 120e-12)))
+        1 / (2 * math.pi * math.sqrt(1e-3 * 120e-12))
+    )
     for name in ("loaded Q", "linear range (f0/Q)", "tuning range low", "tuning range high"):
         assert ("discriminator", "discriminator", name) in sheet
     assert sheet[("crystal", "X1", "load capacitance from the oscillator")].value == pytest.approx(20.5e-12)
@@ -172,7 +182,8 @@ def test_clean_plan_design_sheet_lists_the_frequency_plan(clean_text):
 
 
 def test_filter_in_clean_plan_passes_nbfm_with_drift(clean_text):
-    # common practice: a 455 kHz ceramic filter of ±10 kHz at 6 dB passes 16 kHz NBFM with 20 ppm and 500 Hz drift
+    # common practice: a 455 kHz ceramic filter of ±10 kHz at 6 dB passes 16 kHz NBFM with 20 ppm and 500 Hz
+    # drift
     assert of(check(clean_text), "freqplan.filter-fit") == []
 
 
@@ -189,16 +200,24 @@ def test_injection_side_contradiction_is_a_warning(clean_text):
 
 
 def test_conversion_without_oscillator_is_a_note(clean_text):
-    text = edited(clean_text, "    oscillator: {crystal: X1, injection: low, mode: fundamental, load_caps: [C6, C7], "
-                              "stray: 4 pF}\n", "")
+    text = edited(
+        clean_text,
+        "    oscillator: {crystal: X1, injection: low, mode: fundamental, load_caps: [C6, C7], "
+        "stray: 4 pF}\n",
+        "",
+    )
     found = of(check(text), "freqplan.conversion")
     assert [f.level for f in found] == ["note"]
     assert "chain[1].oscillator is not given" in found[0].message
 
 
 def test_conversion_with_no_filter_after_it_is_a_note(clean_text):
-    text = edited(clean_text, "  - stage: if-filter\n    paths:\n      narrow: {filter: FL1}\n"
-                              "      wide: {bandwidth: 180 kHz, note: \"bypass link for wideband signals\"}\n", "")
+    text = edited(
+        clean_text,
+        "  - stage: if-filter\n    paths:\n      narrow: {filter: FL1}\n"
+        "      wide: {bandwidth: 180 kHz, note: \"bypass link for wideband signals\"}\n",
+        "",
+    )
     found = of(check(text), "freqplan.conversion")
     assert len(found) == 1 and found[0].level == "note"
     assert "no if-filter stage follows" in found[0].message
@@ -213,7 +232,9 @@ def test_multi_conversion_chain_carries_the_if_and_its_spread():
     assert sheet[("conversion", "conversion 2", "input frequency")].value == pytest.approx(10.7e6)
     assert sheet[("conversion", "conversion 2", "IF (nominal)")].value == pytest.approx(455e3)
     spread = 200 + 55.7e6 * 5e-6 + 10.245e6 * 10e-6  # source drift + both crystals' tolerance
-    assert sheet[("conversion", "conversion 2", "IF highest (worst case)")].value == pytest.approx(455e3 + spread)
+    assert sheet[("conversion", "conversion 2", "IF highest (worst case)")].value == pytest.approx(
+        455e3 + spread
+    )
     errors = [f for f in result.findings if f.rule.startswith("freqplan.") and f.level == "error"]
     assert errors == [], [f.message for f in errors]
 
@@ -304,7 +325,9 @@ def test_crystal_off_filter_example():
 
 
 def test_image_with_nothing_ahead_is_a_warning(clean_text):
-    text = edited(clean_text, "  bandwidth: 1 MHz          # the receiver's first IF bandwidth ahead of the tap\n", "")
+    text = edited(
+        clean_text, "  bandwidth: 1 MHz          # the receiver's first IF bandwidth ahead of the tap\n", ""
+    )
     found = of(check(text), "freqplan.image")
     assert [f.level for f in found] == ["warning"]
     assert "nothing declared ahead of the mixer rejects it" in found[0].message
@@ -318,15 +341,17 @@ def test_image_inside_a_wide_upstream_passband(clean_text):
     assert len(found) == 1 and "lies inside the upstream bandwidth" in found[0].message
 
 
-UPSTREAM_SHAPE = "  bandwidth_at: 6 dB\n  stopband: 2 MHz           # its skirts: 2 MHz wide at 60 dB down\n  stopband_at: 60 dB\n"
+UPSTREAM_SHAPE = ("  bandwidth_at: 6 dB\n"
+                  "  stopband: 2 MHz           # its skirts: 2 MHz wide at 60 dB down\n"
+                  "  stopband_at: 60 dB\n")
 
 
 def test_image_rejected_by_the_upstream_bandwidth_is_stated_in_db(clean_text):
     # 1 MHz at 6 dB with no skirts stated: the typical ceramic skirts (twice as wide at 40 dB); an
     # image 910 kHz off is down by the equivalent Butterworth through both points (Williams & Taylor
     # order equation)
-    n = math.log10((1e4 - 1) / (10 ** 0.6 - 1)) / (2 * math.log10(2))
-    expected = 10 * math.log10(1 + (10 ** 0.6 - 1) * (0.91 / 0.5) ** (2 * n))
+    n = math.log10((1e4 - 1) / (10**0.6 - 1)) / (2 * math.log10(2))
+    expected = 10 * math.log10(1 + (10**0.6 - 1) * (0.91 / 0.5) ** (2 * n))
     found = of(check(edited(clean_text, UPSTREAM_SHAPE, "")), "freqplan.image")
     assert [f.level for f in found] == ["note"]  # between 20 and 40 dB
     assert f"rejects it by only {expected:.1f} dB" in found[0].message
@@ -334,8 +359,11 @@ def test_image_rejected_by_the_upstream_bandwidth_is_stated_in_db(clean_text):
 
 def test_image_against_a_gaussian_resolution_filter(clean_text):
     # an instrument's 1 MHz resolution filter quoted at 3 dB is Gaussian: 3 dB x (910/500)^2 = 9.9 dB
-    text = edited(edited(clean_text, "  kind: receiver-if\n", "  kind: instrument-if\n"), UPSTREAM_SHAPE,
-                  "  bandwidth_at: 3 dB\n")
+    text = edited(
+        edited(clean_text, "  kind: receiver-if\n", "  kind: instrument-if\n"),
+        UPSTREAM_SHAPE,
+        "  bandwidth_at: 3 dB\n",
+    )
     found = of(check(text), "freqplan.image")
     assert [f.level for f in found] == ["warning"]
     assert f"rejects it by only {3 * (0.91 / 0.5) ** 2:.1f} dB" in found[0].message
@@ -344,8 +372,8 @@ def test_image_against_a_gaussian_resolution_filter(clean_text):
 def test_stated_stopband_gives_real_rejection(clean_text):
     # the clean plan's 1 MHz (6 dB) upstream filter is stated 2 MHz wide at 60 dB: the image 910 kHz
     # off is far down its skirt (equivalent Butterworth through both points, Williams & Taylor)
-    n = math.log10((1e6 - 1) / (10 ** 0.6 - 1)) / (2 * math.log10(2))
-    expected = 10 * math.log10(1 + (10 ** 0.6 - 1) * (0.91 / 0.5) ** (2 * n))
+    n = math.log10((1e6 - 1) / (10**0.6 - 1)) / (2 * math.log10(2))
+    expected = 10 * math.log10(1 + (10**0.6 - 1) * (0.91 / 0.5) ** (2 * n))
     result = check(clean_text)
     assert of(result, "freqplan.image") == []
     got = [e.value.value for e in result.sheet if e.value.name == "image rejection ahead of the mixer"]
@@ -353,12 +381,16 @@ def test_stated_stopband_gives_real_rejection(clean_text):
 
 
 def test_preselector_rejection_is_one_tuned_circuit(clean_text):
-    # one tuned circuit 400 kHz wide at 3 dB: 10 log10(1 + (910/200)^2) = 13.5 dB at the image (one-pole response)
-    text = edited(clean_text, "  bandwidth: 1 MHz          # the receiver's first IF bandwidth ahead of the tap\n",
-                  "  preselector: {center: 10.7 MHz, bandwidth: 400 kHz}\n")
+    # one tuned circuit 400 kHz wide at 3 dB: 10 log10(1 + (910/200)^2) = 13.5 dB at the image (one-pole
+    # response)
+    text = edited(
+        clean_text,
+        "  bandwidth: 1 MHz          # the receiver's first IF bandwidth ahead of the tap\n",
+        "  preselector: {center: 10.7 MHz, bandwidth: 400 kHz}\n",
+    )
     found = of(check(text), "freqplan.image")
     assert [f.level for f in found] == ["warning"]
-    expected = 10 * math.log10(1 + (10 ** 0.3 - 1) * (0.91 / 0.2) ** 2)
+    expected = 10 * math.log10(1 + (10**0.3 - 1) * (0.91 / 0.2) ** 2)
     assert f"by only {expected:.1f} dB" in found[0].message
 
 
@@ -371,7 +403,9 @@ def test_broadcast_through_the_narrow_path_is_an_error():
     found = of(engine.check_file(path), "freqplan.path-width")
     assert [f.level for f in found] == ["error"]
     f = found[0]
-    assert f.message.startswith("local FM station needs 180 kHz (180KF3E) but the narrow path passes only 20 kHz")
+    assert f.message.startswith(
+        "local FM station needs 180 kHz (180KF3E) but the narrow path passes only 20 kHz"
+    )
     assert "the wide path (230 kHz) would pass" in f.message
     assert f.location.line == line_of(text, "    path: narrow", nth=1)
 
@@ -395,9 +429,13 @@ def test_missing_deviation_is_a_note(clean_text):
 
 
 def test_upstream_narrower_than_broadcast_fm(clean_text):
-    text = edited(clean_text, "    service: voice\n    path: narrow\n", "    service: voice\n    path: narrow\n"
-                  "  - {name: broadcast, modulation: fm, deviation: 75 kHz, audio_max: 15 kHz, service: broadcast, "
-                  "path: wide}\n")
+    text = edited(
+        clean_text,
+        "    service: voice\n    path: narrow\n",
+        "    service: voice\n    path: narrow\n"
+        "  - {name: broadcast, modulation: fm, deviation: 75 kHz, audio_max: 15 kHz, service: broadcast, "
+        "path: wide}\n",
+    )
     text = edited(text, "bandwidth: 1 MHz ", "bandwidth: 100 kHz ")
     found = of(check(text), "freqplan.upstream-bandwidth")
     assert [f.level for f in found] == ["error"]
@@ -408,9 +446,13 @@ def test_upstream_narrower_than_broadcast_fm(clean_text):
 
 def test_one_megahertz_upstream_suits_broadcast_fm(clean_text):
     # common practice: about 1 MHz of upstream resolution bandwidth suits broadcast FM
-    text = edited(clean_text, "    service: voice\n    path: narrow\n", "    service: voice\n    path: narrow\n"
-                  "  - {name: broadcast, modulation: fm, deviation: 75 kHz, audio_max: 15 kHz, service: broadcast, "
-                  "path: wide}\n")
+    text = edited(
+        clean_text,
+        "    service: voice\n    path: narrow\n",
+        "    service: voice\n    path: narrow\n"
+        "  - {name: broadcast, modulation: fm, deviation: 75 kHz, audio_max: 15 kHz, service: broadcast, "
+        "path: wide}\n",
+    )
     assert of(check(text), "freqplan.upstream-bandwidth") == []
 
 
@@ -436,8 +478,11 @@ def test_clean_plan_spurs_are_listed_but_not_close(clean_text):
     result = check(clean_text)
     assert of(result, "freqplan.mixer-spurs") == []
     # the half-IF response 2 fs - 2 fLO = IF lies at fLO + IF/2, 227.5 kHz below the wanted 10.7 MHz
-    half_if = [e for e in result.sheet if e.section == "spurs" and "2·fs − 2·fLO" in e.value.name
-               and e.value.unit == "Hz"]
+    half_if = [
+        e
+        for e in result.sheet
+        if e.section == "spurs" and "2·fs − 2·fLO" in e.value.name and e.value.unit == "Hz"
+    ]
     assert len(half_if) == 1 and abs(half_if[0].value.value - (10.7e6 - 455e3 / 2)) < 200
 
 
@@ -518,7 +563,7 @@ def test_broadcast_deviation_exceeds_the_linear_range():
     assert found[0].location.line == line_of(text, "R5: {kind: resistor")
 
 
-# ---- freqplan.crystal-load / crystal-overtone ---------------------------------------------------------------
+# ---- freqplan.crystal-load / crystal-overtone --------------------------------------------------------------
 
 
 def test_wrong_load_caps_pull_the_crystal(clean_text):
@@ -538,8 +583,11 @@ def test_clean_crystal_load_is_fine(clean_text):
 
 def test_load_mismatch_without_motional_data(clean_text):
     text = edited(clean_text, "    motional_capacitance: 15 fF\n", "")
-    text = edited(text, "value: 33 pF, dielectric: ceramic, ends: [U1.osc_emitter, GND]",
-                  "value: 15 pF, dielectric: ceramic, ends: [U1.osc_emitter, GND]")
+    text = edited(
+        text,
+        "value: 33 pF, dielectric: ceramic, ends: [U1.osc_emitter, GND]",
+        "value: 15 pF, dielectric: ceramic, ends: [U1.osc_emitter, GND]",
+    )
     found = of(check(text), "freqplan.crystal-load")
     assert [f.level for f in found] == ["warning"] and "will run high" in found[0].message
 
@@ -551,7 +599,9 @@ def test_overtone_crystal_on_fundamental_oscillator():
     assert [f.level for f in found] == ["error"]
     assert "X1 is a 3rd-overtone crystal marked 44.545 MHz" in found[0].message
     assert "about 14.85 MHz" in found[0].message  # a third of 44.545 MHz (plain arithmetic)
-    assert found[0].location.line == line_of(text, "oscillator: {crystal: X1, injection: low, mode: fundamental}")
+    assert found[0].location.line == line_of(
+        text, "oscillator: {crystal: X1, injection: low, mode: fundamental}"
+    )
     assert found[0].location.path == "chain[1].oscillator.mode"
 
 
@@ -559,16 +609,22 @@ def test_fundamental_crystal_on_its_own_mode_is_fine(clean_text):
     assert of(check(clean_text), "freqplan.crystal-overtone") == []
 
 
-# ---- freqplan.de-emphasis / audio-corner -----------------------------------------------------------------------
+# ---- freqplan.de-emphasis / audio-corner -------------------------------------------------------------------
 
 
 def test_broadcast_example_de_emphasis_matches_region_1():
-    assert of(engine.check_file(EXAMPLES / "freq-broadcast-through-narrow.yaml"), "freqplan.de-emphasis") == []
+    assert (
+        of(engine.check_file(EXAMPLES / "freq-broadcast-through-narrow.yaml"), "freqplan.de-emphasis") == []
+    )
 
 
 def test_75us_in_region_1_is_a_warning():
     path = EXAMPLES / "freq-broadcast-through-narrow.yaml"
-    text = edited(path.read_text("utf-8"), "value: 5.1 kohm, ends: [U1.audio, DE1]", "value: 7.5 kohm, ends: [U1.audio, DE1]")
+    text = edited(
+        path.read_text("utf-8"),
+        "value: 5.1 kohm, ends: [U1.audio, DE1]",
+        "value: 7.5 kohm, ends: [U1.audio, DE1]",
+    )
     found = of(check(text), "freqplan.de-emphasis")
     assert [f.level for f in found] == ["warning"]
     assert "does not match the 50 µs of itu-region-1" in found[0].message
@@ -577,7 +633,11 @@ def test_75us_in_region_1_is_a_warning():
 
 def test_75us_in_region_2_is_fine():
     path = EXAMPLES / "freq-broadcast-through-narrow.yaml"
-    text = edited(path.read_text("utf-8"), "value: 5.1 kohm, ends: [U1.audio, DE1]", "value: 7.5 kohm, ends: [U1.audio, DE1]")
+    text = edited(
+        path.read_text("utf-8"),
+        "value: 5.1 kohm, ends: [U1.audio, DE1]",
+        "value: 7.5 kohm, ends: [U1.audio, DE1]",
+    )
     text = edited(text, "region: itu-region-1", "region: itu-region-2")
     assert of(check(text), "freqplan.de-emphasis") == []
 
@@ -613,16 +673,21 @@ def test_audio_corner_far_above_voice_is_a_note(clean_text):
 # ---- robustness ---------------------------------------------------------------------------------
 
 
-@pytest.mark.parametrize("text", [
-    "build_spec: 1\nbuild: {name: empty}\nparts: {}\n",
-    "build_spec: 1\nbuild: {name: x}\nparts: {}\nchain:\n  - {stage: conversion}\n  - {stage: if-filter}\n"
-    "  - {stage: discriminator}\n  - {stage: de-emphasis}\n  - {stage: audio-filter}\n",
-    "build_spec: 1\nbuild: {name: x}\nsignals: [{name: s, modulation: cw}]\nsource: {kind: antenna, frequency: 7 MHz}\n"
-    "parts:\n  X1: {kind: crystal}\n  L1: {kind: inductor, value: 1 uH}\n  C1: {kind: capacitor, value: 1 pF}\n"
-    "chain:\n  - {stage: conversion, oscillator: {crystal: X1, injection: low, load_caps: [C1, C9]}}\n"
-    "  - {stage: if-filter, paths: {a: {filter: NOPE}, b: {}}}\n"
-    "  - {stage: discriminator, tank: {inductor: L1, capacitor: C1}}\n",
-])
+@pytest.mark.parametrize(
+    "text",
+    [
+        "build_spec: 1\nbuild: {name: empty}\nparts: {}\n",
+        "build_spec: 1\nbuild: {name: x}\nparts: {}\nchain:\n  - {stage: conversion}\n"
+        "  - {stage: if-filter}\n  - {stage: discriminator}\n  - {stage: de-emphasis}\n"
+        "  - {stage: audio-filter}\n",
+        "build_spec: 1\nbuild: {name: x}\nsignals: [{name: s, modulation: cw}]\n"
+        "source: {kind: antenna, frequency: 7 MHz}\nparts:\n  X1: {kind: crystal}\n"
+        "  L1: {kind: inductor, value: 1 uH}\n  C1: {kind: capacitor, value: 1 pF}\nchain:\n"
+        "  - {stage: conversion, oscillator: {crystal: X1, injection: low, load_caps: [C1, C9]}}\n"
+        "  - {stage: if-filter, paths: {a: {filter: NOPE}, b: {}}}\n"
+        "  - {stage: discriminator, tank: {inductor: L1, capacitor: C1}}\n",
+    ],
+)
 def test_sparse_plans_give_no_internal_error(text):
     result = check(text)
     assert [f for f in result.findings if "internal error" in f.message] == []
@@ -632,12 +697,18 @@ def test_tank_range_is_checked_for_every_signal(clean_text):
     # a high-Q tank (R5 470 kohm with the coil's Q of 60) and a broadcast signal beside the voice:
     # both shortfalls are reported, not only the worst one
     text = edited(clean_text, "R5: {kind: resistor, value: 47 kohm", "R5: {kind: resistor, value: 470 kohm")
-    text = edited(text, "    service: voice\n    path: narrow\n", "    service: voice\n    path: narrow\n"
-                  "  - {name: broadcast, modulation: fm, deviation: 75 kHz, audio_max: 15 kHz, service: broadcast, "
-                  "path: wide}\n")
+    text = edited(
+        text,
+        "    service: voice\n    path: narrow\n",
+        "    service: voice\n    path: narrow\n"
+        "  - {name: broadcast, modulation: fm, deviation: 75 kHz, audio_max: 15 kHz, service: broadcast, "
+        "path: wide}\n",
+    )
     found = of(check(text), "freqplan.tank-range")
-    assert sorted(f.message.split(" swings")[0].rsplit(" that ", 1)[1] for f in found) == ["broadcast",
-                                                                                             "repeater voice"]
+    assert sorted(f.message.split(" swings")[0].rsplit(" that ", 1)[1] for f in found) == [
+        "broadcast",
+        "repeater voice",
+    ]
     # the label says what is computed: 2 x (deviation + drift) (quadrature detector centred on f0)
     sheet = {(e.owner, e.value.name) for e in check(text).sheet}
     assert ("discriminator", "needed range for repeater voice, 2·(deviation + drift)") in sheet

@@ -52,19 +52,25 @@ def check_plan(plan: Path, repo: Path):
 def with_parts_files(repo: Path, *entries: str) -> Path:
     plan = repo / "builds" / "plan.yaml"
     listed = ", ".join(json.dumps(e) for e in entries)
-    plan.write_text(edited(CLEAN.read_text("utf-8"), "build_spec: 1\n", f"build_spec: 1\nparts_files: [{listed}]\n"))
+    plan.write_text(
+        edited(CLEAN.read_text("utf-8"), "build_spec: 1\n", f"build_spec: 1\nparts_files: [{listed}]\n")
+    )
     return plan
 
 
 # ---- 1. unit texts that would make the unit library compute a tower -----------------------
 
-@pytest.mark.parametrize("field, value", [
-    ("  frequency: 10.7 MHz\n", "1 Hz**3**3**3**3"),
-    ("  frequency: 10.7 MHz\n", "1 Hz^3^3^3^3"),
-    ("  frequency: 10.7 MHz\n", "1 MHz**2**2**2**2**2**2"),
-    ("  frequency: 10.7 MHz\n", "1 Hz*1e300*1e300"),
-    ("  frequency: 10.7 MHz\n", "1 Hz Hz Hz Hz Hz s s"),
-])
+
+@pytest.mark.parametrize(
+    "field, value",
+    [
+        ("  frequency: 10.7 MHz\n", "1 Hz**3**3**3**3"),
+        ("  frequency: 10.7 MHz\n", "1 Hz^3^3^3^3"),
+        ("  frequency: 10.7 MHz\n", "1 MHz**2**2**2**2**2**2"),
+        ("  frequency: 10.7 MHz\n", "1 Hz*1e300*1e300"),
+        ("  frequency: 10.7 MHz\n", "1 Hz Hz Hz Hz Hz s s"),
+    ],
+)
 def test_unit_towers_are_refused_at_their_position_at_once(field, value):
     plan = edited(CLEAN.read_text("utf-8"), field, f'  frequency: "{value}"\n')
     engine.warm_up()
@@ -76,8 +82,12 @@ def test_unit_towers_are_refused_at_their_position_at_once(field, value):
 
 
 def test_a_tower_in_an_inductance_factor_is_refused():
-    plan = edited(CLEAN.read_text("utf-8"), "parts:\n", "parts:\n  L9: {kind: inductor, value: 1 uH, ends: [GND, GND2],"
-                  ' core: {size: 0.5 in, material: ferrite, al: "4.9 nH/turn^2**3**3**3"}}\n')
+    plan = edited(
+        CLEAN.read_text("utf-8"),
+        "parts:\n",
+        "parts:\n  L9: {kind: inductor, value: 1 uH, ends: [GND, GND2],"
+        ' core: {size: 0.5 in, material: ferrite, al: "4.9 nH/turn^2**3**3**3"}}\n',
+    )
     found = of(check(plan), "input.unit")
     assert found and "power to a power" in found[0].message
     assert found[0].location.line == line_of(plan, "turn^2**3")
@@ -85,8 +95,18 @@ def test_a_tower_in_an_inductance_factor_is_refused():
 
 # ---- 2. files outside the repository --------------------------------------------------------
 
-@pytest.mark.parametrize("entry", ["/etc/passwd", "/proc/self/environ", "../../outside/secret.yaml",
-                                   "../../../../../../../../etc/hostname", "~/secret.yaml", "/dev/zero"])
+
+@pytest.mark.parametrize(
+    "entry",
+    [
+        "/etc/passwd",
+        "/proc/self/environ",
+        "../../outside/secret.yaml",
+        "../../../../../../../../etc/hostname",
+        "~/secret.yaml",
+        "/dev/zero",
+    ],
+)
 def test_parts_files_outside_the_project_are_refused_by_the_entry_as_written(project, entry):
     plan = with_parts_files(project, entry)
     found = of(check_plan(plan, project), "input.parts-file")
@@ -113,15 +133,18 @@ def test_a_file_without_the_parts_marker_is_refused_unread(project):
 
 
 def test_a_marked_parts_file_inside_the_project_is_used(project):
-    (project / "builds" / "mine.yaml").write_text("parts_spec: 1\nprofiles:\n  my-amp:\n    class: audio-power-amp\n"
-                                                  "    pins: {in: {}}\n")
+    (project / "builds" / "mine.yaml").write_text(
+        "parts_spec: 1\nprofiles:\n  my-amp:\n    class: audio-power-amp\n    pins: {in: {}}\n"
+    )
     plan = with_parts_files(project, "mine.yaml")
     result = check_plan(plan, project)
     assert not of(result, "input.parts-file")
 
 
 def test_a_build_file_link_out_of_the_checked_folder_is_skipped_with_a_note(project):
-    (project.parent / "outside" / "other.yaml").write_text(CLEAN.read_text("utf-8").replace("name: ", f"name: {SECRET} ", 1))
+    (project.parent / "outside" / "other.yaml").write_text(
+        CLEAN.read_text("utf-8").replace("name: ", f"name: {SECRET} ", 1)
+    )
     (project / "builds" / "linked.yaml").symlink_to(project.parent / "outside" / "other.yaml")
     res = run("check", "builds")
     assert "builds/linked.yaml: note: skipped, a link that leads out of the checked folder" in res.output
@@ -129,6 +152,7 @@ def test_a_build_file_link_out_of_the_checked_folder_is_skipped_with_a_note(proj
 
 
 # ---- 3. reads with no bound, or that block --------------------------------------------------
+
 
 @pytest.mark.parametrize("device", ["/dev/zero", "/dev/urandom"])
 def test_a_device_is_refused_without_reading_it(device):
@@ -179,7 +203,9 @@ def folder_with_a_pipe(tmp_path):
 def _walk_report(raw: str, folder: Path) -> dict:
     report = json.loads(raw)
     assert [Path(f["path"]).name for f in report["files"]] == ["a.yaml", "c.yaml"]
-    assert report["set_aside"] == [{"path": str(folder / "b.yaml"), "reason": "is a named pipe, not a regular file"}]
+    assert report["set_aside"] == [
+        {"path": str(folder / "b.yaml"), "reason": "is a named pipe, not a regular file"}
+    ]
     return report
 
 
@@ -188,18 +214,34 @@ def test_a_pipe_named_yaml_never_blocks_the_run_and_no_result_is_lost(folder_wit
     walked = in_thread(lambda: run("check", "--format", "json", folder))
     _walk_report(walked.output, folder)
     assert walked.exit_code == 0
-    named = in_thread(lambda: run("check", "--format", "json", folder.parent / "named.yaml", folder / "a.yaml"))
+    named = in_thread(
+        lambda: run("check", "--format", "json", folder.parent / "named.yaml", folder / "a.yaml")
+    )
     report = json.loads(named.output)
     assert named.exit_code == 2 and len(report["files"]) == 2
     assert report["files"][1]["findings"][0]["message"] == "the file is a named pipe, not a regular file"
 
 
 def test_a_pipe_blocks_no_worker_process(folder_with_a_pipe):
-    cmd = [sys.executable, "-m", "speccheck", "check", "--jobs", "2", "--format", "json",
-           str(folder_with_a_pipe), str(folder_with_a_pipe.parent / "named.yaml")]
+    cmd = [
+        sys.executable,
+        "-m",
+        "speccheck",
+        "check",
+        "--jobs",
+        "2",
+        "--format",
+        "json",
+        str(folder_with_a_pipe),
+        str(folder_with_a_pipe.parent / "named.yaml"),
+    ]
     done = subprocess.run(cmd, check=False, capture_output=True, text=True, timeout=60)
     assert done.returncode == 2
-    assert [Path(f["path"]).name for f in json.loads(done.stdout)["files"]] == ["a.yaml", "c.yaml", "named.yaml"]
+    assert [Path(f["path"]).name for f in json.loads(done.stdout)["files"]] == [
+        "a.yaml",
+        "c.yaml",
+        "named.yaml",
+    ]
 
 
 def test_a_pipe_given_as_a_parts_file_is_refused(project):
@@ -215,8 +257,11 @@ HOSTILE_KEY = '"C99\\n\\n## \\u2705 all clear, approved @maintainer\\e]0;owned\\
 
 
 def hostile_result():
-    plan = edited(CLEAN.read_text("utf-8"), "parts:\n",
-                  f"parts:\n  {HOSTILE_KEY}: {{kind: capacitor, value: 100 nF, ends: [NOWHERE, GND]}}\n")
+    plan = edited(
+        CLEAN.read_text("utf-8"),
+        "parts:\n",
+        f"parts:\n  {HOSTILE_KEY}: {{kind: capacitor, value: 100 nF, ends: [NOWHERE, GND]}}\n",
+    )
     result = check(plan)
     assert any("C99" in f.message for f in result.findings)
     return result
@@ -224,7 +269,7 @@ def hostile_result():
 
 def test_text_report_shows_control_characters_and_forges_no_line():
     shown = text.render([hostile_result()], Settings())
-    assert not any(ord(ch) < 0x20 and ch != "\n" or 0x7F <= ord(ch) < 0xA0 for ch in shown)
+    assert not any((ord(ch) < 0x20 and ch != "\n") or 0x7F <= ord(ch) < 0xA0 for ch in shown)
     assert "\\x1b]0;owned\\x07" in shown and "\\x9b" in shown and "\\r" in shown
     assert all(line.startswith(("plan.yaml:", "    ", "speccheck:")) for line in shown.splitlines())
 
@@ -253,11 +298,12 @@ def test_json_and_sarif_keep_the_text_as_data_with_every_control_escaped():
     result = hostile_result()
     for render in (sarif.render, json_reporter.render):
         raw = render([result], Settings())
-        assert not any(ord(ch) < 0x20 and ch != "\n" or 0x7F <= ord(ch) < 0xA0 for ch in raw)
+        assert not any((ord(ch) < 0x20 and ch != "\n") or 0x7F <= ord(ch) < 0xA0 for ch in raw)
         assert any("@maintainer\x1b]0;owned\x07\x1b[2J\x9b\r\x7f" in t for t in strings(json.loads(raw)))
 
 
 # ---- 5. writes that clobber or leave half a file --------------------------------------------
+
 
 def test_check_never_writes_onto_a_checked_file_even_with_force(tmp_path):
     plan = tmp_path / "plan.yaml"
@@ -310,6 +356,7 @@ def test_starter_follows_no_link_to_create_a_file(tmp_path, monkeypatch):
 
 # ---- 6. tags of other programs --------------------------------------------------------------
 
+
 def test_a_language_tag_on_a_value_is_refused_at_its_position():
     plan = edited(CLEAN.read_text("utf-8"), "  frequency: 10.7 MHz\n", "  frequency: !!python/str 10.7 MHz\n")
     found = of(check(plan), "input.not-accepted")
@@ -324,6 +371,7 @@ def test_a_tagged_document_root_is_refused():
 
 # ---- 7. supplies that mean nothing ----------------------------------------------------------
 
+
 @pytest.mark.parametrize("volts", ["0 V", "-12 V"])
 def test_a_supply_of_zero_or_negative_volts_is_refused(volts):
     plan = edited(CLEAN.read_text("utf-8"), "  voltage: 12 V\n", f"  voltage: {volts}\n")
@@ -334,6 +382,7 @@ def test_a_supply_of_zero_or_negative_volts_is_refused(volts):
 
 # ---- the pull-request run -------------------------------------------------------------------
 
+
 def test_the_project_file_names_the_baseline_and_the_hook_passes_over_its_own_files(project):
     plan = project / "builds" / "plan.yaml"
     plan.write_text(edited(plan.read_text(), "ends: [V12, GND], positive: V12}", "ends: [V12, GND]}"))
@@ -342,8 +391,14 @@ def test_the_project_file_names_the_baseline_and_the_hook_passes_over_its_own_fi
     assert (project / "known.json").exists()
     (project / ".pre-commit-config.yaml").write_text("repos: []\n")
     (project / "notes.yaml").write_text("just: notes\n")
-    res = run("check", "--build-files-only", "builds/plan.yaml", ".pre-commit-config.yaml",
-              "speccheck-project.yaml", "notes.yaml")
+    res = run(
+        "check",
+        "--build-files-only",
+        "builds/plan.yaml",
+        ".pre-commit-config.yaml",
+        "speccheck-project.yaml",
+        "notes.yaml",
+    )
     assert res.exit_code == 0, res.output
     assert "hidden by the baseline" in res.output
     assert "pre-commit" not in res.output and "speccheck-project" not in res.output
@@ -351,7 +406,9 @@ def test_the_project_file_names_the_baseline_and_the_hook_passes_over_its_own_fi
 
 
 def test_a_project_baseline_outside_the_project_is_refused(project):
-    (project / "speccheck-project.yaml").write_text("speccheck_project: 1\nbaseline: ../outside/secret.yaml\n")
+    (project / "speccheck-project.yaml").write_text(
+        "speccheck_project: 1\nbaseline: ../outside/secret.yaml\n"
+    )
     res = run("check", "builds")
     assert res.exit_code == 2 and "speccheck-project.yaml:2:11: baseline" in res.output
     assert SECRET not in res.output

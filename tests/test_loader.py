@@ -28,7 +28,9 @@ def test_positions_of_values_and_keys():
 def test_model_quantity_is_si_with_position():
     loaded = loader.load_text(MINI, "mini.yaml")
     r1 = loaded.build.parts["R1"]
-    assert r1.value.si == 10_000.0  # 10 kohm = 10 000 ohm by the SI prefix kilo (SI Brochure, 9th ed., Table 7)
+    assert (
+        r1.value.si == 10_000.0
+    )  # 10 kohm = 10 000 ohm by the SI prefix kilo (SI Brochure, 9th ed., Table 7)
     col = MINI.splitlines()[4].index("10 kohm") + 1
     assert (r1.value.loc.line, r1.value.loc.col, r1.value.loc.path) == (5, col, "parts.R1.value")
 
@@ -71,12 +73,15 @@ def test_bare_number_needs_its_unit():
     assert bad and "with its unit" in bad[0].message
 
 
-@pytest.mark.parametrize("text,dim,expected", [
-    ("-100 dBm", "level", -100.0),  # dBm is the level relative to 1 mW (ITU-R V.574-5 §3)
-    ("1 mW", "level", 0.0),  # 1 mW is 0 dBm by definition (ITU-R V.574-5)
-    ("-30 dBW", "level", 0.0),  # 0 dBW = +30 dBm (ITU-R V.574-5)
-    ("10 dB", "gain", 10.0),
-])
+@pytest.mark.parametrize(
+    "text,dim,expected",
+    [
+        ("-100 dBm", "level", -100.0),  # dBm is the level relative to 1 mW (ITU-R V.574-5 §3)
+        ("1 mW", "level", 0.0),  # 1 mW is 0 dBm by definition (ITU-R V.574-5)
+        ("-30 dBW", "level", 0.0),  # 0 dBW = +30 dBm (ITU-R V.574-5)
+        ("10 dB", "gain", 10.0),
+    ],
+)
 def test_logarithmic_levels(text, dim, expected):
     assert units.parse(text, dim) == pytest.approx(expected)
 
@@ -146,7 +151,9 @@ def test_unknown_pin_of_a_device():
 
 
 def test_positive_must_be_one_of_the_ends():
-    text = MINI + "  C1: {kind: capacitor, value: 1 uF, dielectric: electrolytic, ends: [A, B], positive: C}\n"
+    text = (
+        MINI + "  C1: {kind: capacitor, value: 1 uF, dielectric: electrolytic, ends: [A, B], positive: C}\n"
+    )
     bad = of(check(text), "input.reference")
     assert bad and "not one of its ends" in bad[0].message
 
@@ -186,7 +193,8 @@ PATHOLOGICAL = {
     "complex keys": "'? ' * 100000 + 'x'",
     "mixed indicators": "'- ? ' * 50000 + 'x'",
     "deep block indentation": "'a:\\n' + ''.join(' ' * i + '- \\n' for i in range(1, 1400))",
-    "billion laughs": "'a: &a [x, x]\\n' + ''.join(f'{chr(98 + i)}: &{chr(98 + i)} [*{chr(97 + i)}, *{chr(97 + i)}]\\n' for i in range(20))",
+    "billion laughs": "'a: &a [x, x]\\n' + ''.join(f'{chr(98 + i)}: &{chr(98 + i)} [*{chr(97 + i)}, "
+    "*{chr(97 + i)}]\\n' for i in range(20))",
 }
 
 
@@ -196,16 +204,22 @@ def test_hostile_yaml_is_refused_without_crash_or_hang(name):
     import subprocess
     import sys
 
-    code = ("from speccheck import yamlnodes\n"
-            f"doc = yamlnodes.parse({PATHOLOGICAL[name]})\n"
-            "print(len(doc.problems))\n")
+    code = (
+        "from speccheck import yamlnodes\n"
+        f"doc = yamlnodes.parse({PATHOLOGICAL[name]})\n"
+        "print(len(doc.problems))\n"
+    )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert out.returncode == 0, out.stderr[-500:]
     assert int(out.stdout.strip()) >= 1
 
 
 def test_undeclared_negative_rail_is_a_reference_error():
-    text = MINI + "rails: {V12: {voltage: 12 V}}\ndevices: {U2: {profile: audio-power-amp-lv, rail: V12, negative_rail: VEE}}\n"
+    text = (
+        MINI
+        + "rails: {V12: {voltage: 12 V}}\n"
+        + "devices: {U2: {profile: audio-power-amp-lv, rail: V12, negative_rail: VEE}}\n"
+    )
     bad = of(check(text), "input.reference")
     assert bad and bad[0].message.startswith("rail 'VEE' is not declared")
     assert bad[0].location.path == "devices.U2.negative_rail"

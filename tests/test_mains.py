@@ -23,14 +23,29 @@ from speccheck.config import Settings
 MAINS_FILE = EXAMPLES / "mains-bench-unit.yaml"
 MAINS = MAINS_FILE.read_text("utf-8")
 
-CAUTION_WORDS = ["HAZARDOUS VOLTAGE", "discharge every capacitor", "line (live) conductor on the primary",
-                 "protective earth", "double-insulated (class II)", "strain relief", "insulated (shrouded) terminals",
-                 "mains-rated wire", "creepage and clearance", "local electrical codes", "licensed electrician"]
+CAUTION_WORDS = [
+    "HAZARDOUS VOLTAGE",
+    "discharge every capacitor",
+    "line (live) conductor on the primary",
+    "protective earth",
+    "double-insulated (class II)",
+    "strain relief",
+    "insulated (shrouded) terminals",
+    "mains-rated wire",
+    "creepage and clearance",
+    "local electrical codes",
+    "licensed electrician",
+]
 
 
-def fused(text=MAINS, fuse="{kind: fuse, current_rating: 125 mA, speed: time-lag, voltage_rating: 250 V, ends: [L, L_F]}"):
+def fused(
+    text=MAINS,
+    fuse="{kind: fuse, current_rating: 125 mA, speed: time-lag, voltage_rating: 250 V, ends: [L, L_F]}",
+):
     """The bench unit with a primary fuse ahead of the switch in the line, and the earth bonded."""
-    text = edited(text, "S1: {kind: switch, ends: [L, L_SW]", f"F2: {fuse}\n  S1: {{kind: switch, ends: [L_F, L_SW]")
+    text = edited(
+        text, "S1: {kind: switch, ends: [L, L_SW]", f"F2: {fuse}\n  S1: {{kind: switch, ends: [L_F, L_SW]"
+    )
     text = edited(text, "    switch: S1\n", "    switch: S1\n    primary_fuse: F2\n")
     return edited(text, "earth: none", "earth: bonded")
 
@@ -38,18 +53,22 @@ def fused(text=MAINS, fuse="{kind: fuse, current_rating: 125 mA, speed: time-lag
 def r10_up(x):
     for decade in range(-4, 3):
         for step in [1, 1.25, 1.6, 2, 2.5, 3.15, 4, 5, 6.3, 8]:
-            if step * 10 ** decade >= x:
-                return step * 10 ** decade
+            if step * 10**decade >= x:
+                return step * 10**decade
 
 
 # ---- cautions ----------------------------------------------------------------------------------
+
 
 def test_mains_build_gets_every_caution_and_a_note():
     result = check(MAINS)
     joined = "\n".join(result.cautions)
     for words in CAUTION_WORDS:
         assert words in joined, words
-    assert result.cautions[0] == "HAZARDOUS VOLTAGE: this build runs from the mains (230 V). Touching it can kill."
+    assert (
+        result.cautions[0]
+        == "HAZARDOUS VOLTAGE: this build runs from the mains (230 V). Touching it can kill."
+    )
     assert result.cautions[-1].startswith("speccheck is a review aid, not an approval")
     found = of(result, "mains.hazard")
     assert [f.level for f in found] == ["note"]
@@ -103,14 +122,17 @@ def test_cautions_in_the_other_formats(fmt):
 
 # ---- primary fuse --------------------------------------------------------------------------------
 
+
 def test_missing_primary_fuse_is_an_error():
     found = of(check(MAINS), "mains.primary-fuse")
     assert [f.level for f in found] == ["error"]
     # 12 VA / 230 V = 52 mA; twice that for the inrush, rerated for 40 °C, up to R10 -> 125 mA
     preferred = r10_up(2 * 12 / 230 / (1 - 0.005 * 15))
     assert preferred == 0.125
-    assert found[0].message.startswith("the mains primary has no fuse (supply.mains.primary_fuse); fit a time-lag "
-                                       "125 mA fuse in the line conductor")
+    assert found[0].message.startswith(
+        "the mains primary has no fuse (supply.mains.primary_fuse); fit a "
+        "time-lag 125 mA fuse in the line conductor"
+    )
     assert found[0].location.line == line_of(MAINS, "transformer: T1")
 
 
@@ -131,21 +153,35 @@ def test_primary_fuse_in_the_neutral_is_an_error():
 
 
 def test_quick_acting_primary_fuse_is_a_warning():
-    found = of(check(edited(fused(), "speed: time-lag, voltage_rating: 250 V", "speed: quick-acting, voltage_rating: 250 V")),
-               "mains.primary-fuse")
+    found = of(
+        check(
+            edited(
+                fused(),
+                "speed: time-lag, voltage_rating: 250 V",
+                "speed: quick-acting, voltage_rating: 250 V",
+            )
+        ),
+        "mains.primary-fuse",
+    )
     assert [f.level for f in found] == ["warning"]
     assert found[0].message.startswith("F2 is quick-acting: the transformer's magnetising inrush")
 
 
 def test_primary_fuse_below_the_primary_current_is_an_error():
-    found = of(check(edited(fused(), "current_rating: 125 mA", "current_rating: 50 mA")), "mains.primary-fuse")
+    found = of(
+        check(edited(fused(), "current_rating: 125 mA", "current_rating: 50 mA")), "mains.primary-fuse"
+    )
     assert [f.level for f in found] == ["error"]
     primary = 12 / 230  # VA / V mains
-    assert found[0].message.startswith(f"F2 (50 mA) is below the {primary * 1e3:.4g} mA primary current of T1")
+    assert found[0].message.startswith(
+        f"F2 (50 mA) is below the {primary * 1e3:.4g} mA primary current of T1"
+    )
 
 
 def test_primary_fuse_without_inrush_room_is_a_warning():
-    found = of(check(edited(fused(), "current_rating: 125 mA", "current_rating: 100 mA")), "mains.primary-fuse")
+    found = of(
+        check(edited(fused(), "current_rating: 125 mA", "current_rating: 100 mA")), "mains.primary-fuse"
+    )
     assert [f.level for f in found] == ["warning"]
     assert "too little room" in found[0].message
 
@@ -163,6 +199,7 @@ def test_primary_fuse_voltage_rating():
 
 # ---- switch ------------------------------------------------------------------------------------------
 
+
 def test_switch_in_the_neutral_is_a_warning():
     text = edited(fused(), "S1: {kind: switch, ends: [L_F, L_SW]", "S1: {kind: switch, ends: [N, N_SW]")
     text = edited(text, "primary: [L_SW, N]", "primary: [L_F, N_SW]")
@@ -173,6 +210,7 @@ def test_switch_in_the_neutral_is_a_warning():
 
 
 # ---- earth ---------------------------------------------------------------------------------------------
+
 
 def test_no_earth_on_a_metal_case_is_an_error():
     found = of(check(MAINS), "mains.earth")
@@ -201,6 +239,7 @@ def test_bonded_earth_is_fine():
 
 # ---- ratings, transformer primary -------------------------------------------------------------------------
 
+
 def test_mains_frequency_missing():
     found = of(check(edited(MAINS, "    frequency: 50 Hz\n", "")), "mains.ratings-declared")
     assert [f.message for f in found] == ["supply.mains does not state its frequency"]
@@ -226,7 +265,10 @@ def test_transformer_primary_against_the_mains():
 
 # ---- bleeder ---------------------------------------------------------------------------------------------
 
-HV_CAP = "  C50: {kind: capacitor, value: 100 uF, dielectric: electrolytic, voltage_rating: 250 V, ends: [HV, GND], positive: HV}\n"
+HV_CAP = (
+    "  C50: {kind: capacitor, value: 100 uF, dielectric: electrolytic, voltage_rating: 250 V, "
+    "ends: [HV, GND], positive: HV}\n"
+)
 
 
 def with_hv(clean_text, bleeder=""):
@@ -238,14 +280,18 @@ def test_high_voltage_capacitor_without_bleeder(clean_text):
     text = with_hv(clean_text)
     found = of(check(text), "mains.bleeder")
     assert [f.level for f in found] == ["warning"]
-    energy = 0.5 * 100e-6 * 150 ** 2  # ½CV²
-    assert found[0].message == (f"C50 (100 uF) holds 150 V ({energy:.4g} J) with no bleeder resistor across it: it stays "
-                                f"charged after switch-off")
+    energy = 0.5 * 100e-6 * 150**2  # ½CV²
+    assert found[0].message == (
+        f"C50 (100 uF) holds 150 V ({energy:.4g} J) with no bleeder resistor across "
+        "it: it stays charged after switch-off"
+    )
     assert found[0].location.line == line_of(text, "C50: {kind: capacitor")
 
 
 def test_bleeder_fast_enough(clean_text):
-    text = with_hv(clean_text, "  R50: {kind: resistor, value: 100 kohm, power_rating: 1 W, ends: [HV, GND]}\n")
+    text = with_hv(
+        clean_text, "  R50: {kind: resistor, value: 100 kohm, power_rating: 1 W, ends: [HV, GND]}\n"
+    )
     assert of(check(text), "mains.bleeder") == []
 
 
@@ -258,13 +304,26 @@ def test_bleeder_too_slow(clean_text):
 
 
 def test_bleeder_running_hot(clean_text):
-    text = with_hv(clean_text, "  R50: {kind: resistor, value: 100 kohm, power_rating: 250 mW, ends: [HV, GND]}\n")
+    text = with_hv(
+        clean_text, "  R50: {kind: resistor, value: 100 kohm, power_rating: 250 mW, ends: [HV, GND]}\n"
+    )
     found = of(check(text), "mains.bleeder")
-    watts = 150 ** 2 / 100e3
-    assert [f.message for f in found] == [f"bleeder R50 dissipates {watts * 1e3:.4g} mW, {watts / 0.25:.0%} of its 250 mW rating"]
+    watts = 150**2 / 100e3
+    assert [f.message for f in found] == [
+        f"bleeder R50 dissipates {watts * 1e3:.4g} mW, {watts / 0.25:.0%} of its 250 mW rating"
+    ]
 
 
-@pytest.mark.parametrize("rule", ["mains.primary-fuse", "mains.earth", "mains.switch-line", "mains.bleeder",
-                                  "mains.transformer-primary", "mains.ratings-declared"])
+@pytest.mark.parametrize(
+    "rule",
+    [
+        "mains.primary-fuse",
+        "mains.earth",
+        "mains.switch-line",
+        "mains.bleeder",
+        "mains.transformer-primary",
+        "mains.ratings-declared",
+    ],
+)
 def test_low_voltage_build_has_no_mains_finding(clean_text, rule):
     assert of(check(clean_text), rule) == []

@@ -12,7 +12,10 @@ from speccheck.config import Settings
 from speccheck.reporters import RunInfo, markdown
 
 BEGINNER = EXAMPLES / "beginner-plan.yaml"
-C33 = "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: [V12, GND], positive: V12}"
+C33 = (
+    "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: [V12, "
+    "GND], positive: V12}"
+)
 
 
 def render(results, settings=None, run=None):
@@ -25,12 +28,17 @@ def test_summary_line_and_table_of_counts():
     lines = out.splitlines()
     assert lines[0] == "# speccheck review"
     counts = {lv: sum(1 for f in result.findings if f.level == lv) for lv in ("error", "warning", "note")}
-    said = ", ".join(f"{counts[lv]} {lv}{'' if counts[lv] == 1 else 's'}" for lv in ("error", "warning", "note"))
+    said = ", ".join(
+        f"{counts[lv]} {lv}{'' if counts[lv] == 1 else 's'}" for lv in ("error", "warning", "note")
+    )
     assert f"**1 file checked: {said}**; fail level: error." in lines
     head = lines.index("| level | open | waived |")
     assert lines[head + 1] == "|---|---:|---:|"
-    assert lines[head + 2:head + 5] == [f"| error | {counts['error']} | 0 |", f"| warning | {counts['warning']} | 0 |",
-                                        f"| note | {counts['note']} | 0 |"]
+    assert lines[head + 2 : head + 5] == [
+        f"| error | {counts['error']} | 0 |",
+        f"| warning | {counts['warning']} | 0 |",
+        f"| note | {counts['note']} | 0 |",
+    ]
 
 
 def test_findings_grouped_by_stage_with_numbers_why_fix_and_bench_check():
@@ -39,8 +47,11 @@ def test_findings_grouped_by_stage_with_numbers_why_fix_and_bench_check():
     assert f"## `{BEGINNER}` (my first IF converter)" in out
     section = out.split("### Stage: discriminator", 1)[1].split("\n### ", 1)[0]
     tank = registry.get("wiring.tank-return")
-    assert "- **error** `wiring.tank-return` at line 55, col 79 (`parts.L2.ends`): L2 returns U1.quad to GND (0 V)" \
+    assert (
+        "- **error** `wiring.tank-return` at line 55, col 79 (`parts.L2.ends`): L2 returns U1.quad to GND "
+        "(0 V)"
         in section
+    )
     assert "  - **Numbers:** pin U1.quad; coil far end GND; supply V6 6 V" in section
     assert f"  - **Why:** {' '.join(tank.explanation.split())}" in section
     assert f"  - **Fix:** {tank.fix}" in section
@@ -70,7 +81,9 @@ def test_cautions_come_first():
 
 def test_waived_findings_stay_marked_with_their_reason(tmp_path):
     plan = tmp_path / "plan.yaml"
-    plan.write_text(edited(BEGINNER.read_text("utf-8"), C33, C33 + "  # waive wiring.cap-voltage because stand-in"))
+    plan.write_text(
+        edited(BEGINNER.read_text("utf-8"), C33, C33 + "  # waive wiring.cap-voltage because stand-in")
+    )
     result = engine.check_file(plan)
     out = render([result])
     assert "- waived error `wiring.cap-voltage` at line 43, col 83" in out
@@ -92,8 +105,12 @@ def test_design_sheet_and_clean_files():
 
 def test_skipped_files_and_baseline_are_said():
     result = engine.check_file(BEGINNER)
-    out = render([result], run=RunInfo(skipped=["notes.yaml"], excluded=["old/x.yaml"], baseline="b.json",
-                                       hidden={str(BEGINNER): 3}))
+    out = render(
+        [result],
+        run=RunInfo(
+            skipped=["notes.yaml"], excluded=["old/x.yaml"], baseline="b.json", hidden={str(BEGINNER): 3}
+        ),
+    )
     assert "- note: `notes.yaml` skipped, not a build file (no `build_spec:` key)" in out
     assert "- note: `old/x.yaml` skipped, excluded by the project file" in out
     assert "3 hidden by the baseline" in out

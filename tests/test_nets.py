@@ -12,7 +12,7 @@ parts:
 
 def nets_of(parts: str):
     loaded = loader.load_text(BASE + parts, "n.yaml")
-    assert not [f for f in loaded.findings], [f.message for f in loaded.findings]
+    assert not loaded.findings, [f.message for f in loaded.findings]
     return loaded.build.nets
 
 

@@ -15,7 +15,8 @@ def test_plain_shows_control_characters_as_visible_escapes():
 
 
 def test_markdown_text_cannot_add_structure_mentions_or_links():
-    out = md_text("C99\n\n## ✅ all clear, approved @maintainer <img src=x> [click](https://example.org) www.example.org |x| #12 &amp;")
+    out = md_text("C99\n\n## ✅ all clear, approved @maintainer <img src=x> [click](https://example.org) "
+                  "www.example.org |x| #12 &amp;")
     assert "\n" not in out and "\r" not in out
     assert "@maintainer" not in out and "@&#8203;maintainer" in out
     assert not re.search(r"(?<!\\)[<>\[\]|&]", out.replace("&#8203;", "")), "markup escaped"
@@ -42,7 +43,8 @@ def test_a_hostile_part_key_neither_forges_a_text_line_nor_a_markdown_heading(cl
     from speccheck.config import Settings
     from speccheck.reporters import markdown, text
 
-    hostile = '  "C99\\n\\n## all clear, approved\\e]0;t\\a": {kind: capacitor, value: 100 nF, ends: [NOWHERE, GND]}\n'
+    hostile = ('  "C99\\n\\n## all clear, approved\\e]0;t\\a": '
+               '{kind: capacitor, value: 100 nF, ends: [NOWHERE, GND]}\n')
     plan = clean_text.replace("parts:\n", "parts:\n" + hostile, 1)
     result = check(plan)
     assert any("C99" in f.message for f in result.findings)

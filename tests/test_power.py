@@ -70,7 +70,8 @@ def test_single_ended_and_bridge_dissipation_textbook():
 
 
 def test_split_supply_boylestad_example_12_8():
-    # Boylestad & Nashelsky Example 12.8: VCC 30 V, RL 16 ohm -> Po(max) 28.125 W, Pi 35.81 W, ~5.7 W per transistor
+    # Boylestad & Nashelsky Example 12.8: VCC 30 V, RL 16 ohm -> Po(max) 28.125 W, Pi 35.81 W, ~5.7 W per
+    # transistor
     full = amplifiers.class_b_full_output("split-supply", 30.0, 16.0, -30.0)
     assert full["p_out"] == pytest.approx(28.125, rel=1e-6)
     assert full["p_in"] == pytest.approx(35.81, abs=0.005)
@@ -164,7 +165,8 @@ def test_budget_above_the_supply_is_an_error(clean_text):
     found = of(check(text), "power.current-budget")
     assert [f.level for f in found] == ["error"]
     shown = f"{clean_budget() * 1e3:.4g} mA"
-    assert found[0].message == f"the build draws {shown} at full output but the dc-adapter supply delivers at most 200 mA"
+    assert found[0].message == (f"the build draws {shown} at full output but the dc-adapter supply "
+                                "delivers at most 200 mA")
     assert found[0].location.line == line_of(text, "max_current: 200 mA")
 
 
@@ -186,11 +188,15 @@ def test_regulator_load_below_its_rail_is_a_warning(clean_text):
 
 # ---- device supply range -------------------------------------------------------------------
 
+
 def test_device_above_its_supply_max_is_an_error():
     text = edited(HOT, "supply_max: 24 V", "supply_max: 15 V")
     found = of(check(text), "power.device-supply")
     assert [f.level for f in found] == ["error"]
-    assert found[0].message == "U2 runs from V18 (18 V), above the 15 V supply_max of profile audio-power-amp-tab"
+    assert (
+        found[0].message
+        == "U2 runs from V18 (18 V), above the 15 V supply_max of profile audio-power-amp-tab"
+    )
     assert found[0].location.line == line_of(text, "U2: {profile: audio-power-amp-tab")
 
 
@@ -208,9 +214,11 @@ def test_devices_inside_their_range_are_fine(clean_text):
 
 # ---- heat ------------------------------------------------------------------------------------
 
+
 def hot_power():
-    # Sedra & Smith form for single-ended on 18 V into 4 ohm, plus 18 V x 40 mA quiescent (the example's profile)
-    return 18.0 ** 2 / (2 * math.pi ** 2 * 4.0) + 18.0 * 0.040
+    # Sedra & Smith form for single-ended on 18 V into 4 ohm, plus 18 V x 40 mA quiescent (the example's
+    # profile)
+    return 18.0**2 / (2 * math.pi**2 * 4.0) + 18.0 * 0.040
 
 
 def test_hot_amplifier_without_heat_sink_is_an_error_with_the_sink_it_needs():
@@ -220,53 +228,79 @@ def test_hot_amplifier_without_heat_sink_is_an_error_with_the_sink_it_needs():
     p = hot_power()
     tj = 40 + p * 50  # T_j = T_a + P·θJA
     need = (150 - 25 - 40) / p - 3 - 1  # θSA = (Tj,max less the margin − Ta)/P − θJC − θCS
-    assert f.message.startswith(f"U2 dissipates up to {p:.4g} W (single-ended on 18 V into SPK1 (4 ohm)); "
-                                f"with θJA 50 °C/W from profile audio-power-amp-tab its junction reaches {tj:.4g} °C")
+    assert f.message.startswith(
+        f"U2 dissipates up to {p:.4g} W (single-ended on 18 V into SPK1 (4 ohm)); "
+        "with θJA 50 °C/W from profile audio-power-amp-tab its junction reaches "
+        f"{tj:.4g} °C"
+    )
     assert "above its 150 °C limit" in f.message
     assert f"it needs a heat sink of θSA {need:.4g} °C/W or less (θCS 1 °C/W assumed" in f.message
     assert f.location.line == line_of(HOT, "U2: {profile: audio-power-amp-tab")
 
 
 def test_declared_heat_sink_that_is_enough_is_fine():
-    text = edited(HOT, 'rail: V18, note: "power tab bolted to nothing yet"}',
-                  "rail: V18, heat_sink: {theta_sa: 5 degC/W, theta_cs: 0.5 degC/W}}")
+    text = edited(
+        HOT,
+        'rail: V18, note: "power tab bolted to nothing yet"}',
+        "rail: V18, heat_sink: {theta_sa: 5 degC/W, theta_cs: 0.5 degC/W}}",
+    )
     result = check(text)
     assert of(result, "power.heat") == []
-    assert sheet(result, "U2", "junction temperature at 40 °C ambient") == pytest.approx(40 + hot_power() * 8.5)
+    assert sheet(result, "U2", "junction temperature at 40 °C ambient") == pytest.approx(
+        40 + hot_power() * 8.5
+    )
 
 
 def test_declared_heat_sink_too_small():
-    text = edited(HOT, 'rail: V18, note: "power tab bolted to nothing yet"}',
-                  "rail: V18, heat_sink: {theta_sa: 20 degC/W}}")
+    text = edited(
+        HOT,
+        'rail: V18, note: "power tab bolted to nothing yet"}',
+        "rail: V18, heat_sink: {theta_sa: 20 degC/W}}",
+    )
     found = of(check(text), "power.heat")
     assert [f.level for f in found] == ["error"]  # 40 + 4.82 W x 24 °C/W is above 150 °C
     need = (125 - 40) / hot_power() - 3 - 1
-    assert f"the declared heat sink (20 degC/W) is not enough: it needs θSA of {need:.4g} °C/W or less" in found[0].message
+    assert (
+        f"the declared heat sink (20 degC/W) is not enough: it needs θSA of {need:.4g} °C/W or less"
+        in found[0].message
+    )
     assert found[0].location.line == line_of(text, "heat_sink: {theta_sa: 20 degC/W}")
 
 
 def test_junction_within_the_margin_is_a_warning():
-    text = edited(HOT, 'rail: V18, note: "power tab bolted to nothing yet"}', "rail: V18, heat_sink: {theta_sa: 15 degC/W}}")
+    text = edited(
+        HOT,
+        'rail: V18, note: "power tab bolted to nothing yet"}',
+        "rail: V18, heat_sink: {theta_sa: 15 degC/W}}",
+    )
     found = of(check(text), "power.heat")
     assert [f.level for f in found] == ["warning"]
     assert "within 25 °C of its 150 °C limit" in found[0].message
 
 
 def test_copper_area_theta_ja_overrides_the_profile(clean_text):
-    # without the stated copper area U2 falls back to the profile's 100 °C/W: 40 + 0.984 W x 100 = 138 °C > 125 °C
-    text = edited(clean_text, 'U2: {profile: audio-power-amp-lv, rail: V12, theta_ja: 60 degC/W, note: "copper area under the package"}',
-                  "U2: {profile: audio-power-amp-lv, rail: V12}")
+    # without the stated copper area U2 falls back to the profile's 100 °C/W: 40 + 0.984 W x 100 = 138 °C >
+    # 125 °C
+    text = edited(
+        clean_text,
+        'U2: {profile: audio-power-amp-lv, rail: V12, theta_ja: 60 degC/W, note: "copper area under the '
+        'package"}',
+        "U2: {profile: audio-power-amp-lv, rail: V12}",
+    )
     found = of(check(text), "power.heat")
     assert [f.level for f in found] == ["warning"]
-    p = 12.0 ** 2 / (2 * math.pi ** 2 * 8.0) + 12.0 * 0.006
-    assert f"with θJA 100 °C/W from profile audio-power-amp-lv its junction reaches {40 + p * 100:.4g} °C" in found[0].message
+    p = 12.0**2 / (2 * math.pi**2 * 8.0) + 12.0 * 0.006
+    assert (
+        f"with θJA 100 °C/W from profile audio-power-amp-lv its junction reaches {40 + p * 100:.4g} °C"
+        in found[0].message
+    )
     assert found[0].location.line == line_of(text, "U2: {profile: audio-power-amp-lv")
 
 
 def test_bridge_profile_dissipates_four_times():
     text = edited(HOT, "output_topology: single-ended", "output_topology: bridge")
     result = check(text)
-    single = 18.0 ** 2 / (2 * math.pi ** 2 * 4.0)
+    single = 18.0**2 / (2 * math.pi**2 * 4.0)
     assert sheet(result, "U2", "output stage dissipation, worst case (bridge)") == pytest.approx(4 * single)
 
 
@@ -279,19 +313,28 @@ def test_split_supply_needs_its_negative_rail():
 
 def test_split_supply_with_both_rails():
     text = edited(HOT, "output_topology: single-ended", "output_topology: split-supply")
-    text = edited(text, "  GND: {voltage: 0 V}\n", "  GND: {voltage: 0 V}\n  VNEG: {voltage: -18 V, from: supply}\n")
-    text = edited(text, 'rail: V18, note: "power tab bolted to nothing yet"}', "rail: V18, negative_rail: VNEG}")
+    text = edited(
+        text, "  GND: {voltage: 0 V}\n", "  GND: {voltage: 0 V}\n  VNEG: {voltage: -18 V, from: supply}\n"
+    )
+    text = edited(
+        text, 'rail: V18, note: "power tab bolted to nothing yet"}', "rail: V18, negative_rail: VNEG}"
+    )
     result = check(text)
     # ±18 V into 4 ohm: 18²/(π²·4) per device, twice for the package
-    assert sheet(result, "U2", "per output device, worst case") == pytest.approx(18.0 ** 2 / (math.pi ** 2 * 4.0))
-    assert sheet(result, "VNEG", "rail current budget") == pytest.approx(0.040 + half_wave_average(18.0 / 4.0))
+    assert sheet(result, "U2", "per output device, worst case") == pytest.approx(18.0**2 / (math.pi**2 * 4.0))
+    assert sheet(result, "VNEG", "rail current budget") == pytest.approx(
+        0.040 + half_wave_average(18.0 / 4.0)
+    )
 
 
 def test_missing_ambient_is_one_note(clean_text):
     text = edited(clean_text, "  ambient_max: 40 degC\n", "")
     found = of(check(text), "power.heat")
     assert [f.level for f in found] == ["note"]
-    assert found[0].message == "build.ambient_max is not stated: the junction temperature of U2, U3 is not checked"
+    assert (
+        found[0].message
+        == "build.ambient_max is not stated: the junction temperature of U2, U3 is not checked"
+    )
 
 
 def test_hot_regulator(clean_text):
@@ -299,17 +342,22 @@ def test_hot_regulator(clean_text):
     found = of(check(text), "power.heat")
     assert [f.level for f in found] == ["error"]
     p = (12 - 6) * 0.5 + 12 * 0.005
-    assert found[0].message.startswith(f"U3 dissipates up to {p:.4g} W (6 V across it at 500 mA, plus its ground current)")
+    assert found[0].message.startswith(
+        f"U3 dissipates up to {p:.4g} W (6 V across it at 500 mA, plus its ground current)"
+    )
     assert found[0].location.line == line_of(text, "U3: {profile: regulator-3-terminal")
 
 
 # ---- regulator dropout ----------------------------------------------------------------------
 
+
 def test_regulator_without_headroom(clean_text):
     text = edited(clean_text, "V12: {voltage: 12 V, from: supply}", "V12: {voltage: 7.5 V, from: supply}")
     found = of(check(text), "power.regulator-dropout")
     assert [f.level for f in found] == ["error"]
-    assert found[0].message.startswith("U3 makes 6 V from V12 at 7.5 V: 1.5 V of headroom, less than its 2 V dropout")
+    assert found[0].message.startswith(
+        "U3 makes 6 V from V12 at 7.5 V: 1.5 V of headroom, less than its 2 V dropout"
+    )
     assert found[0].location.line == line_of(text, "U3: {profile: regulator-3-terminal")
 
 
@@ -319,6 +367,7 @@ def test_regulator_with_headroom_is_fine(clean_text):
 
 # ---- fuse size ------------------------------------------------------------------------------
 
+
 def fuse_line(text):
     return line_of(text, "F1: {kind: fuse")
 
@@ -327,7 +376,9 @@ def test_fuse_below_the_normal_current_is_an_error(clean_text):
     text = edited(clean_text, "current_rating: 500 mA", "current_rating: 100 mA")
     found = of(check(text), "power.fuse-size")
     assert [f.level for f in found] == ["error"]
-    assert found[0].message.startswith(f"F1 (100 mA) is below the build's normal current of {clean_budget() * 1e3:.4g} mA")
+    assert found[0].message.startswith(
+        f"F1 (100 mA) is below the build's normal current of {clean_budget() * 1e3:.4g} mA"
+    )
     # derate to 75 % (common practice), rerate 0.5 %/°C above 25 °C at 40 °C (from memory), round up to R10
     pick = r10_from_the_list(clean_budget() / (0.75 * (1 - 0.005 * 15)))
     assert found[0].message.endswith(f"it will open in normal use; fit {pick * 1e3:.4g} mA")
@@ -339,7 +390,9 @@ def test_fuse_above_75_percent_is_a_nuisance_warning(clean_text):
     found = of(check(text), "power.fuse-size")
     assert [f.level for f in found] == ["warning"]
     share = clean_budget() / (0.315 * (1 - 0.005 * 15))
-    assert f"runs at {share:.0%} of its rating after rerating in normal use (keep under 75%)" in found[0].message
+    assert (
+        f"runs at {share:.0%} of its rating after rerating in normal use (keep under 75%)" in found[0].message
+    )
 
 
 def test_ul_fuse_carries_its_full_rating(clean_text):
@@ -355,11 +408,14 @@ def test_ul_fuse_carries_its_full_rating(clean_text):
 def test_fuse_several_times_too_large_is_a_warning():
     found = of(check(TOO_LARGE), "power.fuse-size")
     assert [f.level for f in found] == ["warning"]
-    # U2 (builtin low-voltage amplifier profile, 6 mA) at full output on 12 V into 8 ohm, derated and rerated, R10
+    # U2 (builtin low-voltage amplifier profile, 6 mA) at full output on 12 V into 8 ohm, derated and rerated,
+    # R10
     normal = 0.006 + half_wave_average(6.0 / 8.0)
     preferred = r10_from_the_list(normal / (0.75 * (1 - 0.005 * 15)))
-    assert found[0].message.startswith(f"F1 (5 A) is {5 / preferred:.3g} times the {preferred * 1e3:.4g} mA the build "
-                                       f"needs (normal current {normal * 1e3:.4g} mA")
+    assert found[0].message.startswith(
+        f"F1 (5 A) is {5 / preferred:.3g} times the {preferred * 1e3:.4g} mA "
+        f"the build needs (normal current {normal * 1e3:.4g} mA"
+    )
     assert found[0].location.line == fuse_line(TOO_LARGE)
 
 
@@ -371,12 +427,15 @@ def test_fuse_settings_are_read_from_the_project(clean_text):
 
 # ---- fuse against the wiring --------------------------------------------------------------
 
+
 def test_fuse_above_the_wire_ampacity_is_an_error():
     found = of(check(TOO_LARGE), "power.fuse-wire")
     assert [f.level for f in found] == ["error"]
     # 24 AWG chassis wiring: 3.5 A (Handbook of Electronic Tables and Formulas)
-    assert found[0].message == ("F1 (5 A) is above the 3.5 A that the 24 AWG supply wiring carries: a fault can "
-                                "overheat the wire before the fuse opens")
+    assert found[0].message == (
+        "F1 (5 A) is above the 3.5 A that the 24 AWG supply wiring carries: a fault "
+        "can overheat the wire before the fuse opens"
+    )
     assert found[0].location.line == fuse_line(TOO_LARGE)
 
 
@@ -392,7 +451,9 @@ def test_build_drawing_more_than_the_wire():
     assert [f.level for f in found] == ["error", "error"]
     # 32 AWG: 0.53 A (chassis-wiring table, from memory)
     wire = next(f for f in found if f.message.startswith("the build draws"))
-    assert wire.message.startswith(f"the build draws {hot_budget() * 1e3:.4g} mA at full output, more than the 530 mA")
+    assert wire.message.startswith(
+        f"the build draws {hot_budget() * 1e3:.4g} mA at full output, more than the 530 mA"
+    )
     assert wire.location.line == line_of(text, "wire_gauge: 32")
 
 
@@ -406,17 +467,22 @@ def test_fuse_inside_the_wire_rating_is_fine(clean_text):
 
 # ---- fuse and inrush ------------------------------------------------------------------------
 
+
 def test_quick_acting_fuse_behind_a_large_reservoir():
     found = of(check(QUICK), "power.fuse-inrush")
     assert [f.level for f in found] == ["warning"]
     f = found[0]
     # 12 V onto 2200 µF through the assumed 0.5 ohm: I²t by numerical integration of (V/R e^(-t/RC))²
     i2t = integrate.quad(lambda t: (12 / 0.5 * math.exp(-t / (0.5 * 2200e-6))) ** 2, 0, 0.1)[0]
-    assert f.message.startswith(f"switching 12 V onto C30 (2.2 mF) through 500 mΩ (an assumed 500 mΩ of supply, leads, "
-                                f"fuse and ESR) gives a 24 A peak and {i2t:.4g} A²s")
+    assert f.message.startswith(
+        "switching 12 V onto C30 (2.2 mF) through 500 mΩ (an assumed 500 mΩ of "
+        f"supply, leads, fuse and ESR) gives a 24 A peak and {i2t:.4g} A²s"
+    )
     # IEC 60127-2 quick-acting gate (from memory): 4 x 630 mA for 3 ms
     assert f"more than the {(4 * 0.63) ** 2 * 0.003:.4g} A²s a quick-acting link withstands" in f.message
-    assert f.message.endswith("the quick-acting F1 will open at switch-on; fit a time-lag fuse of the same rating")
+    assert f.message.endswith(
+        "the quick-acting F1 will open at switch-on; fit a time-lag fuse of the same rating"
+    )
     assert f.location.line == line_of(QUICK, "F1: {kind: fuse")
 
 
@@ -436,7 +502,9 @@ def test_inrush_check_value_in_a_plan(clean_text):
     found = of(check(text), "power.fuse-inrush")
     assert [f.level for f in found] == ["warning"]
     assert "gives a 120 A peak and 3.384 A²s" in found[0].message
-    assert found[0].message.endswith("F1 may open at switch-on; add series resistance or a soft-start ahead of the capacitor")
+    assert found[0].message.endswith(
+        "F1 may open at switch-on; add series resistance or a soft-start ahead of the capacitor"
+    )
 
 
 def test_clean_fuse_rides_its_inrush(clean_text):
@@ -444,6 +512,7 @@ def test_clean_fuse_rides_its_inrush(clean_text):
 
 
 # ---- fuse voltage and missing fuse ------------------------------------------------------------
+
 
 def test_fuse_voltage_rating_below_the_supply(clean_text):
     text = edited(clean_text, "current_rating: 500 mA,", "current_rating: 500 mA, voltage_rating: 6 V,")
@@ -462,7 +531,10 @@ def test_missing_fuse_is_a_warning(clean_text):
     found = of(check(text), "power.fuse-missing")
     assert [f.level for f in found] == ["warning"]
     pick = r10_from_the_list(clean_budget() / (0.75 * (1 - 0.005 * 15)))  # as in the fuse-size checks above
-    assert found[0].message == f"the dc-adapter supply (up to 1.5 A) has no fuse; the build needs about {pick * 1e3:.4g} mA"
+    assert (
+        found[0].message
+        == f"the dc-adapter supply (up to 1.5 A) has no fuse; the build needs about {pick * 1e3:.4g} mA"
+    )
     assert found[0].location.line == line_of(text, "kind: dc-adapter")
 
 
@@ -473,47 +545,68 @@ def test_supply_limited_below_the_need_needs_no_fuse(clean_text):
 
 # ---- resistor as a fuse -----------------------------------------------------------------------
 
+
 def with_resistor(clean_text, part, as_fuse=True):
-    text = edited(clean_text, "  fuse: F1\n", "  fuse: R1\n" if as_fuse else "  fuse: F1\n  series_resistor: R1\n")
+    text = edited(
+        clean_text, "  fuse: F1\n", "  fuse: R1\n" if as_fuse else "  fuse: F1\n  series_resistor: R1\n"
+    )
     if as_fuse:
-        text = edited(text, "F1: {kind: fuse, current_rating: 500 mA, speed: time-lag, ends: [DC_IN, V12]}", part)
+        text = edited(
+            text, "F1: {kind: fuse, current_rating: 500 mA, speed: time-lag, ends: [DC_IN, V12]}", part
+        )
     else:
-        text = edited(text, "F1: {kind: fuse, current_rating: 500 mA, speed: time-lag, ends: [DC_IN, V12]}",
-                      "F1: {kind: fuse, current_rating: 500 mA, speed: time-lag, ends: [DC_IN, DC_F]}\n  " + part)
+        text = edited(
+            text,
+            "F1: {kind: fuse, current_rating: 500 mA, speed: time-lag, ends: [DC_IN, V12]}",
+            "F1: {kind: fuse, current_rating: 500 mA, speed: time-lag, ends: [DC_IN, DC_F]}\n  " + part,
+        )
     return text
 
 
 def test_plain_resistor_as_the_only_protection_is_an_error(clean_text):
-    text = with_resistor(clean_text, "R1: {kind: resistor, value: 1 ohm, power_rating: 500 mW, ends: [DC_IN, V12]}")
+    text = with_resistor(
+        clean_text, "R1: {kind: resistor, value: 1 ohm, power_rating: 500 mW, ends: [DC_IN, V12]}"
+    )
     found = of(check(text), "power.resistor-fuse")
     assert [f.level for f in found] == ["error"]
-    watts = 12.0 ** 2 / 1.0  # V²/R into a short at its far end
-    assert found[0].message == (f"R1 (1 ohm) is the only protection on the supply input but is a plain resistor: into a "
-                                f"short it takes {watts:.4g} W, glows and can set the board alight before it opens; fit a "
-                                f"fuse or a fusible (flame-proof) resistor")
+    watts = 12.0**2 / 1.0  # V²/R into a short at its far end
+    assert found[0].message == (
+        "R1 (1 ohm) is the only protection on the supply input but is a plain "
+        f"resistor: into a short it takes {watts:.4g} W, glows and can set the "
+        "board alight before it opens; fit a fuse or a fusible (flame-proof) "
+        "resistor"
+    )
     assert found[0].location.line == line_of(text, "R1: {kind: resistor")
 
 
 def test_fusible_resistor_as_fuse_is_accepted(clean_text):
-    text = with_resistor(clean_text, "R1: {kind: resistor, value: 1 ohm, power_rating: 500 mW, fusible: true, "
-                                     "ends: [DC_IN, V12]}")
+    text = with_resistor(
+        clean_text,
+        "R1: {kind: resistor, value: 1 ohm, power_rating: 500 mW, fusible: true, ends: [DC_IN, V12]}",
+    )
     assert of(check(text), "power.resistor-fuse") == []
     assert of(check(text), "power.fuse-missing") == []
 
 
 def test_series_resistor_running_hot(clean_text):
-    text = with_resistor(clean_text, "R1: {kind: resistor, value: 1 ohm, power_rating: 125 mW, ends: [DC_F, V12]}",
-                         as_fuse=False)
+    text = with_resistor(
+        clean_text,
+        "R1: {kind: resistor, value: 1 ohm, power_rating: 125 mW, ends: [DC_F, V12]}",
+        as_fuse=False,
+    )
     found = of(check(text), "power.resistor-fuse")
     assert [f.level for f in found] == ["warning"]
     watts = clean_budget() ** 2 * 1.0
-    assert found[0].message == (f"R1 dissipates {watts * 1e3:.4g} mW in normal use, {watts / 0.125:.0%} of its 125 mW "
-                                f"rating (keep under 50%)")
+    assert found[0].message == (
+        f"R1 dissipates {watts * 1e3:.4g} mW in normal use, {watts / 0.125:.0%} of "
+        "its 125 mW rating (keep under 50%)"
+    )
 
 
 def test_series_resistor_dropping_too_much(clean_text):
-    text = with_resistor(clean_text, "R1: {kind: resistor, value: 10 ohm, power_rating: 2 W, ends: [DC_F, V12]}",
-                         as_fuse=False)
+    text = with_resistor(
+        clean_text, "R1: {kind: resistor, value: 10 ohm, power_rating: 2 W, ends: [DC_F, V12]}", as_fuse=False
+    )
     found = of(check(text), "power.resistor-fuse")
     assert [f.level for f in found] == ["warning"]
     assert found[0].message.startswith(f"R1 drops {clean_budget() * 10:.4g} V at the build's")
@@ -521,11 +614,15 @@ def test_series_resistor_dropping_too_much(clean_text):
 
 # ---- reverse polarity -----------------------------------------------------------------------------
 
+
 def test_no_reverse_protection_is_a_warning(clean_text):
     text = edited(clean_text, "  reverse_protection: D1\n", "")
     found = of(check(text), "power.reverse-polarity")
     assert [f.level for f in found] == ["warning"]
-    assert found[0].message == "nothing protects C30, C31, C20, U1, U2, U3 if the adapter is connected the wrong way round"
+    assert (
+        found[0].message
+        == "nothing protects C30, C31, C20, U1, U2, U3 if the adapter is connected the wrong way round"
+    )
     assert found[0].location.line == line_of(text, "kind: dc-adapter")
 
 
@@ -545,7 +642,10 @@ def test_shunt_diode_turned_round_shorts_the_supply(clean_text):
     text = edited(clean_text, "ends: [GND, V12], positive: GND,", "ends: [GND, V12], positive: V12,")
     found = of(check(text), "power.reverse-diode")
     assert [f.level for f in found] == ["error"]
-    assert found[0].message == "D1 has its anode on V12 and its cathode on GND: it conducts in normal use and shorts the supply"
+    assert (
+        found[0].message
+        == "D1 has its anode on V12 and its cathode on GND: it conducts in normal use and shorts the supply"
+    )
     assert found[0].location.line == line_of(text, "D1: {kind: diode")
 
 
@@ -557,14 +657,18 @@ def test_shunt_diode_without_fuse(clean_text):
 
 
 def test_series_diode_turned_round_blocks_the_supply(clean_text):
-    text = edited(clean_text, "D1: {kind: diode, ends: [GND, V12], positive: GND,",
-                  "D1: {kind: diode, ends: [DC_IN2, V12], positive: V12,")
+    text = edited(
+        clean_text,
+        "D1: {kind: diode, ends: [GND, V12], positive: GND,",
+        "D1: {kind: diode, ends: [DC_IN2, V12], positive: V12,",
+    )
     found = of(check(text), "power.reverse-diode")
     assert [f.level for f in found] == ["error"]
     assert found[0].message.startswith("series diode D1 has its cathode toward the input")
 
 
 # ---- incomplete inputs ------------------------------------------------------------------------------
+
 
 def test_unknown_load_is_a_note_and_keeps_the_fuse_unjudged(clean_text):
     text = edited(clean_text, "    load: SPK1\n", "")
@@ -581,7 +685,7 @@ def test_unknown_load_is_a_note_and_keeps_the_fuse_unjudged(clean_text):
 def test_any_line_left_out_gives_findings_not_tracebacks(name):
     lines = (EXAMPLES / name).read_text("utf-8").splitlines(keepends=True)
     for i in range(len(lines)):
-        result = check("".join(lines[:i] + lines[i + 1:]))
+        result = check("".join(lines[:i] + lines[i + 1 :]))
         crashed = [f.message for f in result.findings if f.stage == "internal"]
         assert crashed == [], f"line {i + 1} left out: {crashed}"
 

@@ -128,7 +128,8 @@ def test_voice_with_wide_deviation_through_a_12_5_khz_channel_filter_is_cut():
 
 
 def test_fuse_above_the_wire_is_an_error():
-    # 22 AWG chassis wiring carries 7 A (Handbook of Electronic Tables and Formulas); a 10 A fuse does not protect it
+    # 22 AWG chassis wiring carries 7 A (Handbook of Electronic Tables and Formulas); a 10 A fuse does not
+    # protect it
     text = edited(BASE, "current_rating: 500 mA", "current_rating: 10 A")
     assert "power.fuse-wire" in [f.rule for f in errors(text)]
 

@@ -32,14 +32,51 @@ _collect(BASE, ())
 
 NUMBER = st.one_of(st.integers(-10**40, 10**40), st.floats(allow_nan=False, allow_infinity=False),
                    st.sampled_from(["0", "-0", "1e308", "1e-320", ".5", "9" * 40, ".nan", "-.inf", "1e999"]))
-UNIT_TOKENS = st.sampled_from(["Hz", "kHz", "MHz", "nH", "turn", "V", "mA", "ohm", "Ω", "µF", "degC", "dBm", "dB",
-                               "W", "s", "%", "ppm", "*", "/", "**", "^", "3", "-3", "9", " ", "(", ")", "e"])
+UNIT_TOKENS = st.sampled_from(
+    [
+        "Hz",
+        "kHz",
+        "MHz",
+        "nH",
+        "turn",
+        "V",
+        "mA",
+        "ohm",
+        "Ω",
+        "µF",
+        "degC",
+        "dBm",
+        "dB",
+        "W",
+        "s",
+        "%",
+        "ppm",
+        "*",
+        "/",
+        "**",
+        "^",
+        "3",
+        "-3",
+        "9",
+        " ",
+        "(",
+        ")",
+        "e",
+    ]
+)
 UNIT_TEXT = st.builds(lambda n, toks: f"{n} {''.join(toks)}", NUMBER, st.lists(UNIT_TOKENS, max_size=12))
 HOSTILE_TEXT = st.text(alphabet=st.characters(codec="utf-8", exclude_categories=("Cs",)), max_size=40)
 SCALAR = st.one_of(st.none(), st.booleans(), NUMBER, UNIT_TEXT, HOSTILE_TEXT)
-VALUE = st.recursive(SCALAR, lambda inner: st.one_of(
-    st.lists(inner, max_size=4), st.dictionaries(st.one_of(HOSTILE_TEXT, st.sampled_from(["kind", "value", "ends"])),
-                                                 inner, max_size=4)), max_leaves=12)
+VALUE = st.recursive(
+    SCALAR,
+    lambda inner: st.one_of(
+        st.lists(inner, max_size=4),
+        st.dictionaries(
+            st.one_of(HOSTILE_TEXT, st.sampled_from(["kind", "value", "ends"])), inner, max_size=4
+        ),
+    ),
+    max_leaves=12,
+)
 
 
 def _replaced(data, path, value):
@@ -63,16 +100,28 @@ def _check_is_well_behaved(document: str):
     assert _no_raw_control(markdown.render([result], Settings()))
 
 
-@settings(max_examples=int(os.environ.get("SPECCHECK_EXAMPLES", "60")), deadline=2000, derandomize=True, suppress_health_check=[HealthCheck.too_slow])
+@settings(
+    max_examples=int(os.environ.get("SPECCHECK_EXAMPLES", "60")),
+    deadline=2000,
+    derandomize=True,
+    suppress_health_check=[HealthCheck.too_slow],
+)
 @given(place=st.sampled_from(PLACES), value=VALUE)
 def test_any_value_anywhere_in_a_plan(place, value):
     # JSON is YAML: the generated structure goes in exactly as generated.
     _check_is_well_behaved(json.dumps(_replaced(BASE, place, value), ensure_ascii=False))
 
 
-@settings(max_examples=int(os.environ.get("SPECCHECK_EXAMPLES", "60")), deadline=2000, derandomize=True, suppress_health_check=[HealthCheck.too_slow])
-@given(value=st.one_of(UNIT_TEXT, HOSTILE_TEXT), where=st.sampled_from(["  frequency: 10.7 MHz\n",
-                                                                         "  voltage: 12 V\n"]))
+@settings(
+    max_examples=int(os.environ.get("SPECCHECK_EXAMPLES", "60")),
+    deadline=2000,
+    derandomize=True,
+    suppress_health_check=[HealthCheck.too_slow],
+)
+@given(
+    value=st.one_of(UNIT_TEXT, HOSTILE_TEXT),
+    where=st.sampled_from(["  frequency: 10.7 MHz\n", "  voltage: 12 V\n"]),
+)
 def test_any_text_in_a_quantity_field(value, where):
     plan = CLEAN.read_text("utf-8")
     key = where.split(":")[0]

@@ -13,7 +13,8 @@ from speccheck.formulas import matching, preferred, resonators
 
 
 def test_l_network_bowick_example_4_1():
-    # Bowick, RF Circuit Design, Example 4-1 (from memory): 100 Ω -> 1000 Ω at 100 MHz: Q 3, L 477.5 nH, C 4.77 pF
+    # Bowick, RF Circuit Design, Example 4-1 (from memory): 100 Ω -> 1000 Ω at 100 MHz: Q 3, L 477.5 nH, C
+    # 4.77 pF
     net = matching.l_network(100.0, 1000.0, 100e6)
     assert net["q"] == pytest.approx(3.0)
     assert net["inductance"] == pytest.approx(477.5e-9, rel=1e-3)
@@ -80,7 +81,11 @@ def test_termination_cost_matches_scikit_rf():
     rt = matching.termination_resistor(50.0, 1500.0)
     freq = skrf.Frequency(10.7e6, 10.7e6, 1, unit="Hz")
     line = DefinedGammaZ0(freq, z0=50.0)
-    shunt = line.shunt_resistor(rt) if hasattr(line, "shunt_resistor") else line.shunt(line.resistor(rt) ** line.short())
+    shunt = (
+        line.shunt_resistor(rt)
+        if hasattr(line, "shunt_resistor")
+        else line.shunt(line.resistor(rt) ** line.short())
+    )
     shunt.renormalize([50.0, 1500.0])
     gain_db = 10 * math.log10(abs(shunt.s[0, 1, 0]) ** 2)
     assert matching.termination_cost_db(50.0, 1500.0) == pytest.approx(-gain_db, abs=1e-6)
@@ -90,8 +95,32 @@ def test_termination_cost_matches_scikit_rf():
 # ---- preferred values and toroids ---------------------------------------------------------------
 
 IEC_60063_E12 = [1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2]
-IEC_60063_E24 = [1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0,
-                 3.3, 3.6, 3.9, 4.3, 4.7, 5.1, 5.6, 6.2, 6.8, 7.5, 8.2, 9.1]
+IEC_60063_E24 = [
+    1.0,
+    1.1,
+    1.2,
+    1.3,
+    1.5,
+    1.6,
+    1.8,
+    2.0,
+    2.2,
+    2.4,
+    2.7,
+    3.0,
+    3.3,
+    3.6,
+    3.9,
+    4.3,
+    4.7,
+    5.1,
+    5.6,
+    6.2,
+    6.8,
+    7.5,
+    8.2,
+    9.1,
+]
 
 
 def test_series_are_the_published_iec_60063_values():
@@ -103,15 +132,18 @@ def test_series_are_the_published_iec_60063_values():
     assert rounded != IEC_60063_E24
 
 
-@pytest.mark.parametrize("value, series, pick", [
-    (3.16e-6, "E24", 3.3e-6),    # 10**(12/24): the published value is 3.3 (IEC 60063)
-    (2.61e-12, "E24", 2.7e-12),  # 10**(11/24): published 2.7
-    (8.25e3, "E24", 8.2e3),      # 10**(22/24) = 8.25: published 8.2
-    (53.4e-12, "E12", 56e-12),
-    (4.005e-6, "E12", 3.9e-6),
-    (9.5, "E24", 9.1),           # the log midpoint of 9.1 and 10 is sqrt(91) = 9.54 (plain arithmetic)
-    (9.6, "E24", 10.0),
-])
+@pytest.mark.parametrize(
+    "value, series, pick",
+    [
+        (3.16e-6, "E24", 3.3e-6),  # 10**(12/24): the published value is 3.3 (IEC 60063)
+        (2.61e-12, "E24", 2.7e-12),  # 10**(11/24): published 2.7
+        (8.25e3, "E24", 8.2e3),  # 10**(22/24) = 8.25: published 8.2
+        (53.4e-12, "E12", 56e-12),
+        (4.005e-6, "E12", 3.9e-6),
+        (9.5, "E24", 9.1),  # the log midpoint of 9.1 and 10 is sqrt(91) = 9.54 (plain arithmetic)
+        (9.6, "E24", 10.0),
+    ],
+)
 def test_nearest_preferred_value(value, series, pick):
     got, err = preferred.nearest_preferred(value, preferred.SERIES[series])
     assert got == pytest.approx(pick)
@@ -119,8 +151,9 @@ def test_nearest_preferred_value(value, series, pick):
 
 
 def test_toroid_handbook_table_mix_2():
-    # powdered-iron toroid handbook table: 0.5 in OD, mix 2: AL 49 µH per 100 turns = 4.9 nH/turn²; 50 turns -> 12.25 µH
-    al = 49e-6 / 100 ** 2
+    # powdered-iron toroid handbook table: 0.5 in OD, mix 2: AL 49 µH per 100 turns = 4.9 nH/turn²; 50 turns
+    # -> 12.25 µH
+    al = 49e-6 / 100**2
     assert al == pytest.approx(4.9e-9)
     assert resonators.toroid_inductance(50, al) == pytest.approx(12.25e-6)
     assert resonators.toroid_turns(12.25e-6, al) == pytest.approx(50)
@@ -149,14 +182,18 @@ def test_clean_plan_sheet_lists_match_values(clean_text):
     assert sheet[("input-match", "input-match", "shunt C, nearest E12")].value == pytest.approx(56e-12)
     assert sheet[("input-match", "input-match", "shunt C, nearest E24")].value == pytest.approx(51e-12)
     s11 = _skrf_match(10.7e6, 50.0, 3.9e-6, 56e-12, 1500.0)
-    assert sheet[("input-match", "input-match", "return loss")].value == pytest.approx(-20 * math.log10(s11), abs=0.01)
+    assert sheet[("input-match", "input-match", "return loss")].value == pytest.approx(
+        -20 * math.log10(s11), abs=0.01
+    )
     assert sheet[("input-match", "input-match", "return loss")].unit == "dB"
     # 10 log10(1500 / 50) = 14.77 dB (plain arithmetic)
-    assert sheet[("input-match", "input-match", "signal lost with a shunt termination")].value == pytest.approx(
-        14.77, abs=0.01)
+    assert sheet[
+        ("input-match", "input-match", "signal lost with a shunt termination")
+    ].value == pytest.approx(14.77, abs=0.01)
     # N = sqrt(L / AL) for the declared 3.9 µH on 4.9 nH/turn²
     assert sheet[("coils", "L1", "turns for the declared value")].value == pytest.approx(
-        math.sqrt(3.9e-6 / 4.9e-9), abs=0.05)
+        math.sqrt(3.9e-6 / 4.9e-9), abs=0.05
+    )
 
 
 def test_badly_tuned_match_is_a_warning(clean_text):
@@ -180,10 +217,16 @@ def test_network_turned_the_wrong_way(clean_text):
 
 
 def test_plain_termination_is_a_note_with_its_cost(clean_text):
-    text = edited(clean_text, "  - stage: input-match\n    topology: series-l-shunt-c\n    parts: [L1, C1]\n",
-                  "  - stage: input-match\n    topology: termination\n    parts: [R1]\n")
-    text = edited(text, "  C1: {kind: capacitor, value: 56 pF",
-                  "  R1: {kind: resistor, value: 51.7 ohm, ends: [IF_IN, GND]}\n  C1: {kind: capacitor, value: 56 pF")
+    text = edited(
+        clean_text,
+        "  - stage: input-match\n    topology: series-l-shunt-c\n    parts: [L1, C1]\n",
+        "  - stage: input-match\n    topology: termination\n    parts: [R1]\n",
+    )
+    text = edited(
+        text,
+        "  C1: {kind: capacitor, value: 56 pF",
+        "  R1: {kind: resistor, value: 51.7 ohm, ends: [IF_IN, GND]}\n  C1: {kind: capacitor, value: 56 pF",
+    )
     found = of(check(text), "rfpath.input-match")
     assert [f.level for f in found] == ["note"]
     # 51.7 Ω || 1.5 kΩ = 49.98 Ω: all but 49.98/1500 of the power goes into R1 -> about 14.8 dB lost
@@ -192,11 +235,17 @@ def test_plain_termination_is_a_note_with_its_cost(clean_text):
 
 
 def test_missing_input_impedance_is_a_note(clean_text):
-    text = edited(clean_text, "  U1: {profile: fm-if-subsystem, rail: V6}\n", "  U1: {profile: my-chip, rail: V6}\n")
-    text = edited(text, "devices:\n", "profiles:\n  my-chip:\n    class: mixer\n    pins:\n"
-                  "      mixer_in: {role: input}\n      osc_base: {role: oscillator}\n      osc_emitter: {role: oscillator-out}\n"
-                  "      mixer_out: {role: mixer-out}\n      limiter_in: {role: limiter-in}\n      quad: {role: quadrature}\n"
-                  "      audio: {role: output}\n\ndevices:\n")
+    text = edited(
+        clean_text, "  U1: {profile: fm-if-subsystem, rail: V6}\n", "  U1: {profile: my-chip, rail: V6}\n"
+    )
+    text = edited(
+        text,
+        "devices:\n",
+        "profiles:\n  my-chip:\n    class: mixer\n    pins:\n      mixer_in: {role: input}\n"
+        "      osc_base: {role: oscillator}\n      osc_emitter: {role: oscillator-out}\n"
+        "      mixer_out: {role: mixer-out}\n      limiter_in: {role: limiter-in}\n"
+        "      quad: {role: quadrature}\n      audio: {role: output}\n\ndevices:\n",
+    )
     found = of(check(text), "rfpath.input-match")
     assert [f.level for f in found] == ["note"]
     assert "profiles.my-chip.input_impedance is not given" in found[0].message
@@ -222,8 +271,11 @@ def test_clean_coil_turns_are_fine(clean_text):
 
 
 def _with_preamp(text: str, gain: str) -> str:
-    return edited(text, "chain:\n  - stage: input-match\n",
-                  f"chain:\n  - stage: preamp\n    gain: {gain}\n  - stage: input-match\n")
+    return edited(
+        text,
+        "chain:\n  - stage: input-match\n",
+        f"chain:\n  - stage: preamp\n    gain: {gain}\n  - stage: input-match\n",
+    )
 
 
 def test_too_much_gain_ahead_of_the_if_chip(clean_text):

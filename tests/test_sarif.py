@@ -15,7 +15,10 @@ from speccheck.reporters import RunInfo, sarif
 
 SCHEMA = json.loads((Path(__file__).parent / "data" / "sarif-schema-2.1.0.json").read_text("utf-8"))
 BEGINNER = EXAMPLES / "beginner-plan.yaml"
-C33 = "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: [V12, GND], positive: V12}"
+C33 = (
+    "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: [V12, "
+    "GND], positive: V12}"
+)
 
 
 def valid(doc):
@@ -77,12 +80,17 @@ def test_results_carry_rule_level_location_and_numbers(plans):
     loc = result["locations"][0]["physicalLocation"]
     assert loc["artifactLocation"]["uri"] == "builds/beginner.yaml"
     assert loc["artifactLocation"]["uriBaseId"] == "%SRCROOT%"
-    assert "originalUriBaseIds" not in run  # optional; an absolute path of this machine has no place in the log
+    # optional; an absolute path of this machine has no place in the log
+    assert "originalUriBaseIds" not in run
     assert str(Path.cwd()) not in json.dumps(doc)
     line = line_of(text, "L2: {kind: inductor")
     col = text.splitlines()[line - 1].index("[U1.quad, GND]") + 1
-    assert loc["region"] == {"startLine": line, "startColumn": col, "endLine": line,
-                             "endColumn": col + len("[U1.quad, GND]")}
+    assert loc["region"] == {
+        "startLine": line,
+        "startColumn": col,
+        "endLine": line,
+        "endColumn": col + len("[U1.quad, GND]"),
+    }
     assert result["locations"][0]["logicalLocations"][0]["fullyQualifiedName"] == "parts.L2.ends"
     props = result["properties"]
     assert props["stage"] == "discriminator"
@@ -94,19 +102,21 @@ def test_results_carry_rule_level_location_and_numbers(plans):
 def test_fingerprints_are_the_findings_own(plans):
     doc, _ = sarif_of("builds/beginner.yaml")
     found = engine.check_file("builds/beginner.yaml")
-    assert sorted(r["partialFingerprints"]["speccheckFinding/v1"] for r in doc["runs"][0]["results"]) == \
-        sorted(f.fingerprint for f in found.findings)
+    assert sorted(
+        r["partialFingerprints"]["speccheckFinding/v1"] for r in doc["runs"][0]["results"]
+    ) == sorted(f.fingerprint for f in found.findings)
     assert len({f.fingerprint for f in found.findings}) == len(found.findings)
 
 
 def test_waived_finding_is_a_suppression_with_its_justification(plans):
-    doc, res = sarif_of("builds/waived.yaml")
+    doc, _res = sarif_of("builds/waived.yaml")
     results = doc["runs"][0]["results"]
     waived = [r for r in results if "suppressions" in r]
     assert len(waived) == 1
     assert waived[0]["ruleId"] == "wiring.cap-voltage" and "C33" in waived[0]["message"]["text"]
-    assert waived[0]["suppressions"] == [{"kind": "inSource", "status": "accepted",
-                                          "justification": "the 10 V part is a bench stand-in"}]
+    assert waived[0]["suppressions"] == [
+        {"kind": "inSource", "status": "accepted", "justification": "the 10 V part is a bench stand-in"}
+    ]
     # the same findings as the beginner's plan, one of them waived
     assert len(results) == len(engine.check_file("builds/beginner.yaml").findings)
 
@@ -119,7 +129,9 @@ def test_cautions_are_visible_as_note_results_and_notifications(tmp_path, monkey
     run = doc["runs"][0]
     notes = [r for r in run["results"] if r["ruleId"] == "review.safety-caution"]
     assert len(notes) == 1 and notes[0]["level"] == "note"
-    assert notes[0]["message"]["text"] == "Safety caution: Hazardous voltage: unplug and discharge before work."
+    assert (
+        notes[0]["message"]["text"] == "Safety caution: Hazardous voltage: unplug and discharge before work."
+    )
     assert run["results"][0] is notes[0]  # first, before the findings
     told = run["invocations"][0]["toolExecutionNotifications"]
     assert any("Hazardous voltage" in n["message"]["text"] and n["level"] == "warning" for n in told)
@@ -128,7 +140,9 @@ def test_cautions_are_visible_as_note_results_and_notifications(tmp_path, monkey
 def test_overrides_skipped_files_and_baseline_are_reported(plans):
     settings = Settings(levels={"wiring.tank-return": "warning"}, disabled={"wiring.crystal-dc"})
     result = engine.check_file("builds/beginner.yaml", settings)
-    run_info = RunInfo(skipped=["builds/notes.yaml"], baseline="base.json", hidden={"builds/beginner.yaml": 2})
+    run_info = RunInfo(
+        skipped=["builds/notes.yaml"], baseline="base.json", hidden={"builds/beginner.yaml": 2}
+    )
     doc = valid(json.loads(sarif.render([result], settings, run_info)))
     inv = doc["runs"][0]["invocations"][0]
     by_id = {o["descriptor"]["id"]: o["configuration"] for o in inv["ruleConfigurationOverrides"]}
@@ -161,5 +175,7 @@ def test_sarif_to_a_file_says_the_totals_on_stderr(plans, tmp_path):
     doc = valid(json.loads((tmp_path / "results.sarif").read_text("utf-8")))
     open_ = [r for r in doc["runs"][0]["results"] if "suppressions" not in r]
     count = {level: sum(1 for r in open_ if r["level"] == level) for level in ("error", "warning", "note")}
-    said = ", ".join(f"{count[lv]} {lv}{'' if count[lv] == 1 else 's'}" for lv in ("error", "warning", "note"))
+    said = ", ".join(
+        f"{count[lv]} {lv}{'' if count[lv] == 1 else 's'}" for lv in ("error", "warning", "note")
+    )
     assert f"speccheck: 2 files checked: {said} (1 waived); report written to results.sarif" in res.stderr

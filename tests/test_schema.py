@@ -82,10 +82,17 @@ def _obj2(node):
 
 
 PAIRS_V2 = [
-    (S2, model.Build), (_obj2(P2["signals"]), model.Signal), (_obj2(P2["source"]), model.Source),
-    (_obj2(P2["supply"]), model.Supply), (_obj2(P2["supply"]["properties"]["battery"]), model.Battery),
-    (D2["pin"], model.Pin), (D2["part"], model.Part), (D2["stage"], model.Stage), (D2["if_path"], model.IfPath),
-    (D2["tank"], model.Tank), (_obj2(P2["taps"]), model.Tap),
+    (S2, model.Build),
+    (_obj2(P2["signals"]), model.Signal),
+    (_obj2(P2["source"]), model.Source),
+    (_obj2(P2["supply"]), model.Supply),
+    (_obj2(P2["supply"]["properties"]["battery"]), model.Battery),
+    (D2["pin"], model.Pin),
+    (D2["part"], model.Part),
+    (D2["stage"], model.Stage),
+    (D2["if_path"], model.IfPath),
+    (D2["tank"], model.Tank),
+    (_obj2(P2["taps"]), model.Tap),
     (_obj2(D2["part"]["properties"]["poles"]), model.Pole),
 ]
 LISTS_V2 = {("Source", "bandwidth_settings")}  # a mapping of quantities, filled by the loader

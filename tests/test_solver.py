@@ -121,8 +121,9 @@ def test_fuse_rating_is_the_r10_value():
 
 def test_input_errors_are_never_solved_or_written(tmp_path):
     bad = tmp_path / "bad.yaml"
-    text = (EXAMPLES / "beginner-plan.yaml").read_text("utf-8").replace("value: 33 pF, dielectric: ceramic, ends: "
-                                                                        "[U1.osc_base", "value: 33 bananas, dielectric: "
+    text = (EXAMPLES / "beginner-plan.yaml").read_text("utf-8").replace("value: 33 pF, dielectric: ceramic, "
+                                                                        "ends: [U1.osc_base",
+                                                                        "value: 33 bananas, dielectric: "
                                                                         "ceramic, ends: [U1.osc_base")
     bad.write_text(text, "utf-8")
     outcome = solver.solve(bad)
@@ -233,7 +234,8 @@ BEGINNER = (EXAMPLES / "beginner-plan.yaml").read_text("utf-8")
 def test_generated_plans_never_gain_a_finding(tmp_path_factory, load, rating, cap, series):
     text = (BEGINNER.replace("load_capacitance: 20 pF", f"load_capacitance: {load} pF")
             .replace("voltage_rating: 10 V, ends: [V12", f"voltage_rating: {rating}, ends: [V12")
-            .replace("value: 120 pF, dielectric: ceramic, ends: [U1.quad", f"value: {cap}, dielectric: ceramic, "
+            .replace("value: 120 pF, dielectric: ceramic, ends: [U1.quad",
+                     f"value: {cap}, dielectric: ceramic, "
                                                                           "ends: [U1.quad"))
     plan = tmp_path_factory.mktemp("gen") / "plan.yaml"
     plan.write_text(text, "utf-8")
@@ -281,9 +283,14 @@ def test_de_emphasis_for_the_region(tmp_path):
 
 def test_coupling_capacitor_for_the_lowest_audio(tmp_path):
     # f_c = 1/(2 pi R_L C): 100 Hz into 8 ohm needs 199 uF (hand arithmetic); E12 220 uF gives 90.4 Hz.
-    text = _edited("beginner-plan.yaml", ("ambient_max: 30 degC", "ambient_max: 30 degC\n  lowest_audio: 100 Hz"),
-                   ("value: 470 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [U2.out, SPK]",
-                    "value: 47 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [U2.out, SPK]"))
+    text = _edited(
+        "beginner-plan.yaml",
+        ("ambient_max: 30 degC", "ambient_max: 30 degC\n  lowest_audio: 100 Hz"),
+        (
+            "value: 470 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [U2.out, SPK]",
+            "value: 47 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [U2.out, SPK]",
+        ),
+    )
     outcome = _solve_text(tmp_path, text)
     (proposal,) = [p for p in outcome.taken if p.finding.rule == "audio.coupling-corner"]
     assert proposal.chosen.summary == "C20 220 µF"
@@ -307,10 +314,17 @@ def test_input_network_pairs_ranked_by_return_loss(tmp_path):
 
 
 def test_primary_fuse_rating_and_speed(tmp_path):
-    text = _edited("mains-bench-unit.yaml", ("    switch: S1\n", "    switch: S1\n    primary_fuse: F0\n"),
-                   ("  S1: {kind: switch, ends: [L, L_SW]",
-                    ("  F0: {kind: fuse, current_rating: 2 A, speed: quick-acting, voltage_rating: 250 V, "
-                     "ends: [L, L_F]}\n  S1: {kind: switch, ends: [L_F, L_SW]")))
+    text = _edited(
+        "mains-bench-unit.yaml",
+        ("    switch: S1\n", "    switch: S1\n    primary_fuse: F0\n"),
+        (
+            "  S1: {kind: switch, ends: [L, L_SW]",
+            (
+                "  F0: {kind: fuse, current_rating: 2 A, speed: quick-acting, voltage_rating: 250 V, "
+                "ends: [L, L_F]}\n  S1: {kind: switch, ends: [L_F, L_SW]"
+            ),
+        ),
+    )
     outcome = _solve_text(tmp_path, text)
     (proposal,) = [p for p in outcome.taken if p.finding.rule == "mains.primary-fuse"]
     assert proposal.chosen.summary.startswith("F0 time-lag")

@@ -53,8 +53,14 @@ def _ngspice() -> str:
 
 def simulate(deck_file: Path) -> dict:
     """Run one deck in batch mode; -> {measure: value} (nan for a measure that failed)."""
-    run = subprocess.run([_ngspice(), "-b", str(deck_file)], capture_output=True, text=True, timeout=60, check=False,
-                         cwd=deck_file.parent)
+    run = subprocess.run(
+        [_ngspice(), "-b", str(deck_file)],
+        capture_output=True,
+        text=True,
+        timeout=60,
+        check=False,
+        cwd=deck_file.parent,
+    )
     out = run.stdout + run.stderr
     assert run.returncode == 0, out
     errors = [line for line in out.splitlines() if line.lower().startswith("error")]
@@ -88,19 +94,25 @@ def test_simulator_confirms_the_design_sheet(plan, tmp_path):
     decks, files = export(plan, tmp_path)
     assert decks, f"{plan.name}: no deck"
     compared = 0
-    for deck, path in zip(decks, files):
+    for deck, path in zip(decks, files, strict=True):
         measured = simulate(path)
         for check in deck.checks:
             got = measured.get(check.measure)
-            assert got is not None and math.isfinite(got), f"{path.name}: measure {check.measure} missing: {measured}"
+            assert got is not None and math.isfinite(got), (
+                f"{path.name}: measure {check.measure} missing: {measured}"
+            )
             want = check.value
             rel = abs(got - want) / abs(want)
             how = REASONS.get((plan.stem, check.measure))
             if how is None:
-                assert rel <= TOLERANCE, (f"{plan.name} {deck.label}: {check.name} on the sheet {want:.6g}, "
-                                          f"ngspice {got:.6g} ({rel:.2%} apart)")
+                assert rel <= TOLERANCE, (
+                    f"{plan.name} {deck.label}: {check.name} on the sheet {want:.6g}, "
+                    f"ngspice {got:.6g} ({rel:.2%} apart)"
+                )
             elif how[0] == "at-most-10%-below":
-                assert want * 0.9 <= got <= want, f"{check.name}: {got:.6g} against the bound {want:.6g} ({how[1]})"
+                assert want * 0.9 <= got <= want, (
+                    f"{check.name}: {got:.6g} against the bound {want:.6g} ({how[1]})"
+                )
             compared += 1
     assert compared >= 2
 
@@ -131,34 +143,58 @@ def test_clean_example_values_that_have_decks(tmp_path):
         ("crystal", "X1", "shift from the specified frequency"),
         ("crystal", "X1", "shift in frequency"),
     }
-    assert sorted(d.kind for d in decks) == ["audio-output", "audio-rc", "crystal", "input-match", "switch-on", "tank"]
+    assert sorted(d.kind for d in decks) == [
+        "audio-output",
+        "audio-rc",
+        "crystal",
+        "input-match",
+        "switch-on",
+        "tank",
+    ]
 
 
 def test_termination_and_de_emphasis_decks(tmp_path, clean_text):
     """The other input shapes and a de-emphasis stage also agree with the sheet."""
     _ngspice()
-    text = edited(clean_text, "topology: series-l-shunt-c\n    parts: [L1, C1]",
-                  "topology: termination\n    parts: [R1]")
-    text = edited(text, "  C1: {kind: capacitor, value: 56 pF",
-                  "  R1: {kind: resistor, value: 51 ohm, ends: [IF_IN, GND]}\n  C1: {kind: capacitor, value: 56 pF")
-    text = edited(text, "  - stage: audio-filter\n",
-                  "  - stage: de-emphasis\n    resistor: R11\n    capacitor: C13\n  - stage: audio-filter\n")
-    text = edited(text, "  C11: {kind", "  R11: {kind: resistor, value: 5.1 kohm, ends: [U1.audio, DE1]}\n"
-                                       "  C13: {kind: capacitor, value: 10 nF, dielectric: film, ends: [DE1, GND]}\n"
-                                       "  C11: {kind")
+    text = edited(
+        clean_text,
+        "topology: series-l-shunt-c\n    parts: [L1, C1]",
+        "topology: termination\n    parts: [R1]",
+    )
+    text = edited(
+        text,
+        "  C1: {kind: capacitor, value: 56 pF",
+        "  R1: {kind: resistor, value: 51 ohm, ends: [IF_IN, GND]}\n  C1: {kind: capacitor, value: 56 pF",
+    )
+    text = edited(
+        text,
+        "  - stage: audio-filter\n",
+        "  - stage: de-emphasis\n    resistor: R11\n    capacitor: C13\n  - stage: audio-filter\n",
+    )
+    text = edited(
+        text,
+        "  C11: {kind",
+        "  R11: {kind: resistor, value: 5.1 kohm, ends: [U1.audio, DE1]}\n"
+        "  C13: {kind: capacitor, value: 10 nF, dielectric: film, ends: [DE1, GND]}\n"
+        "  C11: {kind",
+    )
     plan = tmp_path / "variant.yaml"
     plan.write_text(text, encoding="utf-8")
     decks, files = export(plan, tmp_path)
     names = set()
-    for deck, path in zip(decks, files):
+    for deck, path in zip(decks, files, strict=True):
         measured = simulate(path)
         for check in deck.checks:
             names.add(check.name)
-            assert measured[check.measure] == pytest.approx(check.value, rel=TOLERANCE), (path.name, check.name)
+            assert measured[check.measure] == pytest.approx(check.value, rel=TOLERANCE), (
+                path.name,
+                check.name,
+            )
     assert {"signal lost in the termination", "de-emphasis corner", "de-emphasis time constant"} <= names
 
 
 # ---- the command --------------------------------------------------------------------------
+
 
 def test_command_writes_the_decks_and_replaces_only_with_force(tmp_path):
     folder = tmp_path / "decks" / "new"
@@ -166,9 +202,14 @@ def test_command_writes_the_decks_and_replaces_only_with_force(tmp_path):
     got = runner.invoke(main, ["spice", str(CLEAN), "-o", str(folder)])
     assert got.exit_code == 0, got.output
     written = sorted(p.name for p in folder.iterdir())
-    assert written == ["vhf-monitor-455k.audio-filter.cir", "vhf-monitor-455k.audio-output.cir",
-                       "vhf-monitor-455k.crystal-x1.cir", "vhf-monitor-455k.input-match.cir", "vhf-monitor-455k.switch-on.cir",
-                       "vhf-monitor-455k.tank.cir"]
+    assert written == [
+        "vhf-monitor-455k.audio-filter.cir",
+        "vhf-monitor-455k.audio-output.cir",
+        "vhf-monitor-455k.crystal-x1.cir",
+        "vhf-monitor-455k.input-match.cir",
+        "vhf-monitor-455k.switch-on.cir",
+        "vhf-monitor-455k.tank.cir",
+    ]
     tank = folder / "vhf-monitor-455k.tank.cir"
     assert "L_L2 u1_quad tank_ret 0.001" in tank.read_text()
     tank.write_text("kept\n")
@@ -233,7 +274,11 @@ def test_hostile_text_cannot_reach_a_deck_line(tmp_path, clean_text):
     evil = "\\n.control\\nshell touch PWNED\\n.endc\\r.include /etc/passwd\\u2028.shell touch PWNED \\\\"
     text = edited(clean_text, "name: VHF monitor, 10.7 MHz IF tap to 455 kHz", f'name: "monitor{evil}"')
     text = edited(text, 'note: "455 kHz ceramic filter, ±10 kHz at 6 dB"', f'note: "filter{evil}"')
-    text = edited(text, "  L2: {kind: inductor, value: 1 mH,", f'  L2: {{note: "coil{evil}", kind: inductor, value: 1 mH,')
+    text = edited(
+        text,
+        "  L2: {kind: inductor, value: 1 mH,",
+        f'  L2: {{note: "coil{evil}", kind: inductor, value: 1 mH,',
+    )
     text = edited(text, "  - name: repeater voice", '  - name: "v\\n.control\\nshell touch PWNED\\n.endc"')
     text = text.replace("TANK_RET", "+control")
     plan = tmp_path / "evil.yaml"
@@ -250,7 +295,9 @@ def test_hostile_text_cannot_reach_a_deck_line(tmp_path, clean_text):
         for line in body.splitlines():
             assert line.startswith("* ") or allowed_dot.match(line) or element.match(line), repr(line)
             if not line.startswith("*"):
-                assert not re.search(r"\.(control|shell|include|endc)|shell|pwned|passwd", line, re.IGNORECASE), line
+                assert not re.search(
+                    r"\.(control|shell|include|endc)|shell|pwned|passwd", line, re.IGNORECASE
+                ), line
     if shutil.which("ngspice") or os.environ.get("CI"):
         _, files = export(plan, tmp_path)
         for path in files:
@@ -266,7 +313,7 @@ def test_as_wired_copy_shows_the_load_of_the_volume_control(tmp_path):
     with the divider's 6 dB of flat loss. C12 adds a little phase lead (its 16 Hz corner), so 1 %."""
     _ngspice()
     decks, files = export(CLEAN, tmp_path)
-    _deck, path = next((d, f) for d, f in zip(decks, files) if d.label == "audio-filter")
+    _deck, path = next((d, f) for d, f in zip(decks, files, strict=True) if d.label == "audio-filter")
     text = path.read_text()
     assert "C_C12_WIRED wired_af1 wired_vol_top 1e-06" in text and "R_RV1_WIRED wired_vol_top 0 10000" in text
     measured = simulate(path)

@@ -31,16 +31,21 @@ def test_portable_shows_the_battery_findings_and_no_error():
     assert len(eol) == 1 and eol[0].location.line == line_of(text, "  U3: {profile")
     # U3 needs its 6 V output plus the profile's 2 V dropout = 8 V; six alkaline cells are flat at
     # 6 x 0.9 V = 5.4 V (end voltage per cell from memory)
-    assert value(eol[0], "needed") == pytest.approx(8.0) and value(eol[0], "end voltage") == pytest.approx(5.4)
+    assert value(eol[0], "needed") == pytest.approx(8.0) and value(eol[0], "end voltage") == pytest.approx(
+        5.4
+    )
     run = of(result, "battery.running-time")
     assert len(run) == 1 and run[0].level == "warning"
     current = value(run[0], "budget current")
-    # Peukert (Linden): H = 0.55 Ah / 25 mA = 22 h; t = 22 (0.55 / (I x 22))^1.3, k = 1.3 for alkaline (from memory)
+    # Peukert (Linden): H = 0.55 Ah / 25 mA = 22 h; t = 22 (0.55 / (I x 22))^1.3, k = 1.3 for alkaline (from
+    # memory)
     assert value(run[0], "running time") == pytest.approx(22 * (0.55 / (current * 22)) ** 1.3)
 
 
 def test_a_battery_that_cannot_hold_the_regulator_up_even_fresh_is_an_error():
-    text = edited(portable(), "    capacity_at: 25 mA\n", "    capacity_at: 25 mA\n    internal_resistance: 15 ohm\n")
+    text = edited(
+        portable(), "    capacity_at: 25 mA\n", "    capacity_at: 25 mA\n    internal_resistance: 15 ohm\n"
+    )
     found = [f for f in of(check(text, "portable.yaml"), "battery.sag") if f.level == "error"]
     assert len(found) == 1 and "U3" in found[0].message
     # fresh 6 x 1.6 V = 9.6 V (from memory) less I x 15 ohm (Ohm's law)
@@ -53,7 +58,11 @@ def test_a_fresh_battery_above_a_chip_supply_limit_is_an_error():
     text = edited(text, "  voltage: 9 V\n  rail: V9", "  voltage: 10.8 V\n  rail: V9")
     found = [f for f in of(check(text, "portable.yaml"), "battery.end-of-life") if f.level == "error"]
     # 3 x 4.2 V = 12.6 V fresh (from memory) against the audio amplifier profile's 12 V
-    assert len(found) == 1 and "U2" in found[0].message and value(found[0], "fresh open-circuit") == pytest.approx(12.6)
+    assert (
+        len(found) == 1
+        and "U2" in found[0].message
+        and value(found[0], "fresh open-circuit") == pytest.approx(12.6)
+    )
 
 
 def test_no_battery_description_means_no_battery_finding():
@@ -63,6 +72,7 @@ def test_no_battery_description_means_no_battery_finding():
 
 
 # ---- squelch ---------------------------------------------------------------------------
+
 
 def test_squelch_pot_on_a_higher_rail_than_the_chip_is_an_error():
     text = edited(portable(), "ends: [V6, GND], wiper: SQ_SET", "ends: [V9, GND], wiper: SQ_SET")
@@ -74,9 +84,12 @@ def test_squelch_pot_on_a_higher_rail_than_the_chip_is_an_error():
 
 def test_squelch_divider_that_misses_part_of_the_threshold_range_is_a_warning():
     text = edited(portable(), "    series: R12\n", "    series: R12\n    shunt: R14\n")
-    text = edited(text, "  R12: {kind: resistor, value: 100 kohm, ends: [SQ_SET, U1.squelch_in]}\n",
-                  "  R12: {kind: resistor, value: 100 kohm, ends: [SQ_SET, U1.squelch_in]}\n"
-                  "  R14: {kind: resistor, value: 10 kohm, ends: [U1.squelch_in, GND]}\n")
+    text = edited(
+        text,
+        "  R12: {kind: resistor, value: 100 kohm, ends: [SQ_SET, U1.squelch_in]}\n",
+        "  R12: {kind: resistor, value: 100 kohm, ends: [SQ_SET, U1.squelch_in]}\n"
+        "  R14: {kind: resistor, value: 10 kohm, ends: [U1.squelch_in, GND]}\n",
+    )
     found = of(check(text, "portable.yaml"), "squelch.threshold-range")
     # divider 10k / (100k + 10k) of 6 V = 0.5455 V, short of the 1.5 V threshold top (typical profile)
     assert len(found) == 1 and found[0].level == "warning"
@@ -92,6 +105,7 @@ def test_squelch_range_entirely_outside_the_threshold_is_an_error():
 
 # ---- tap -------------------------------------------------------------------------------
 
+
 def test_a_heavy_tap_costs_the_main_path_level():
     text = edited(portable(), "    load: 10 kohm\n", "    load: 200 ohm\n")
     found = of(check(text, "portable.yaml"), "tap.loading")
@@ -101,11 +115,13 @@ def test_a_heavy_tap_costs_the_main_path_level():
     tap = 1200.0
     both = 1 / (1 / main + 1 / tap)
     import math
+
     expected = 20 * math.log10(main / (main + 1000)) - 20 * math.log10(both / (both + 1000))
     assert value(found[0], "main path loss") == pytest.approx(expected)
 
 
 # ---- connect ---------------------------------------------------------------------------
+
 
 def test_a_misspelt_net_leaves_two_nets_with_one_connection():
     text = edited(portable(), "ends: [ZOBEL, GND]}", "ends: [ZOBLE, GND]}")
@@ -114,14 +130,20 @@ def test_a_misspelt_net_leaves_two_nets_with_one_connection():
 
 
 def test_an_island_of_parts_is_reported():
-    text = edited(portable(), "  C21: {kind", "  R98: {kind: resistor, value: 1 kohm, ends: [ISL_A, ISL_B]}\n"
-                                            "  R99: {kind: resistor, value: 1 kohm, ends: [ISL_A, ISL_B]}\n  C21: {kind")
+    text = edited(
+        portable(),
+        "  C21: {kind",
+        "  R98: {kind: resistor, value: 1 kohm, ends: [ISL_A, ISL_B]}\n"
+        "  R99: {kind: resistor, value: 1 kohm, ends: [ISL_A, ISL_B]}\n  C21: {kind",
+    )
     found = of(check(text, "portable.yaml"), "connect.unreachable")
     assert len(found) == 1 and found[0].message.startswith("R98, R99 connect to no rail")
 
 
 def test_dc_into_a_pot_or_a_load_that_needs_it_blocked():
-    text = edited(portable(), "ends: [VOL_TOP, GND], wiper: U2.in_plus", "ends: [U2.out, GND], wiper: U2.in_plus")
+    text = edited(
+        portable(), "ends: [VOL_TOP, GND], wiper: U2.in_plus", "ends: [U2.out, GND], wiper: U2.in_plus"
+    )
     found = of(check(text, "portable.yaml"), "connect.dc-unblocked")
     # the amplifier output sits at half its 9 V supply: 4.5 V across the track
     assert len(found) == 1 and value(found[0], "DC across the track") == 4.5

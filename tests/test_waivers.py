@@ -8,7 +8,10 @@ from speccheck.cli import main
 from speccheck.config import Settings
 from speccheck.waivers import parse_comment
 
-C31 = "  C31: {kind: capacitor, value: 100 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [V6, GND], positive: V6}"
+C31 = (
+    "  C31: {kind: capacitor, value: 100 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [V6, "
+    "GND], positive: V6}"
+)
 C31_LOW = C31.replace("voltage_rating: 16 V", "voltage_rating: 6.3 V")  # 6 V on a 6.3 V part: over 80 %
 
 
@@ -47,7 +50,9 @@ def test_ordinary_comments_are_not_waivers(text):
 # ---- placement ----------------------------------------------------------------------------
 
 def test_trailing_waiver_waives_the_finding_on_its_line(thin):
-    text = edited(thin, C31_LOW, C31_LOW + "  # waive wiring.cap-voltage because the 6.3 V part is a stand-in")
+    text = edited(
+        thin, C31_LOW, C31_LOW + "  # waive wiring.cap-voltage because the 6.3 V part is a stand-in"
+    )
     found = of(check(text), "wiring.cap-voltage")
     assert len(found) == 1
     assert found[0].waived == "the 6.3 V part is a stand-in"
@@ -61,8 +66,11 @@ def test_waiver_on_the_comment_line_just_above(thin):
 
 
 def test_a_run_of_comment_lines_above_counts_but_a_blank_line_ends_it(thin):
-    text = edited(thin, C31_LOW, "  # waive wiring.cap-voltage because bench stand-in\n  # (ordered a 16 V part)\n"
-                  + C31_LOW)
+    text = edited(
+        thin,
+        C31_LOW,
+        "  # waive wiring.cap-voltage because bench stand-in\n  # (ordered a 16 V part)\n" + C31_LOW,
+    )
     assert of(check(text), "wiring.cap-voltage")[0].waived == "bench stand-in"
     text = edited(thin, C31_LOW, "  # waive wiring.cap-voltage because bench stand-in\n\n" + C31_LOW)
     result = check(text)
@@ -76,7 +84,9 @@ def test_waiver_above_a_block_key_covers_the_findings_inside_it(clean_text):
     # DC across the crystal: its far end on GND instead of V6; the finding points at `ends:`, two
     # lines into the block; the waiver sits above `X1:`.
     text = edited(clean_text, "    ends: [U1.osc_base, V6]", "    ends: [U1.osc_base, GND]")
-    text = edited(text, "  X1:\n", "  # waive wiring.crystal-dc because this oscillator is a test fixture\n  X1:\n")
+    text = edited(
+        text, "  X1:\n", "  # waive wiring.crystal-dc because this oscillator is a test fixture\n  X1:\n"
+    )
     found = of(check(text), "wiring.crystal-dc")
     assert len(found) == 1 and found[0].location.line == line_of(text, "ends: [U1.osc_base, GND]")
     assert found[0].waived == "this oscillator is a test fixture"
@@ -89,12 +99,15 @@ def test_a_waiver_names_the_rule_it_waives(thin):
     unused = of(result, "review.waiver-unused")
     assert [u.message for u in unused] == [
         f"waiver for wiring.crystal-dc matches no finding: it covers line {line_of(text, 'C31:')}, where "
-        "wiring.crystal-dc found nothing"]
+        "wiring.crystal-dc found nothing"
+    ]
 
 
 def test_one_waiver_may_name_several_rules(thin):
     text = edited(thin, "ends: [V12, GND], positive: V12}", "ends: [V12, GND]}")  # C30: polarity unstated
-    text = edited(text, "  C30:", "  # waive wiring.polarity-unstated, wiring.cap-voltage because bench jig\n  C30:")
+    text = edited(
+        text, "  C30:", "  # waive wiring.polarity-unstated, wiring.cap-voltage because bench jig\n  C30:"
+    )
     result = check(text)
     assert of(result, "wiring.polarity-unstated")[0].waived == "bench jig"
     unused = of(result, "review.waiver-unused")
@@ -102,6 +115,7 @@ def test_one_waiver_may_name_several_rules(thin):
 
 
 # ---- waivers that are themselves findings -------------------------------------------------
+
 
 def test_a_waiver_without_a_reason_waives_nothing_and_is_a_finding(thin):
     text = edited(thin, C31_LOW, C31_LOW + "  # waive wiring.cap-voltage")
@@ -118,13 +132,17 @@ def test_a_waiver_without_a_reason_waives_nothing_and_is_a_finding(thin):
 def test_an_unknown_rule_in_a_waiver_is_a_finding_with_a_suggestion(thin):
     text = edited(thin, C31_LOW, C31_LOW + "  # waive wiring.cap-volts because typo")
     (bad,) = of(check(text), "review.waiver-unknown-rule")
-    assert bad.message == "waiver for wiring.cap-volts: there is no rule 'wiring.cap-volts'; did you mean " \
-                          "'wiring.cap-voltage'?"
+    assert (
+        bad.message == "waiver for wiring.cap-volts: there is no rule 'wiring.cap-volts'; did you mean "
+        "'wiring.cap-voltage'?"
+    )
     assert bad.location.line == line_of(text, "C31:")
 
 
 def test_input_findings_cannot_be_waived(clean_text):
-    text = edited(clean_text, "  lowest_audio: 300 Hz", "  lowest_audio: 300 kF  # waive input.unit because test")
+    text = edited(
+        clean_text, "  lowest_audio: 300 Hz", "  lowest_audio: 300 kF  # waive input.unit because test"
+    )
     result = check(text)
     assert of(result, "input.unit")[0].waived is None
     (bad,) = of(result, "review.waiver-unknown-rule")
@@ -137,24 +155,34 @@ def test_no_unused_waiver_for_a_rule_that_is_switched_off(thin):
 
 
 def test_quoted_hash_is_not_a_waiver(thin):
-    text = edited(thin, C31_LOW, C31_LOW.replace("positive: V6}", 'positive: V6, note: "# waive wiring.cap-voltage '
-                                                 'because quoted"}'))
+    text = edited(
+        thin,
+        C31_LOW,
+        C31_LOW.replace("positive: V6}", 'positive: V6, note: "# waive wiring.cap-voltage because quoted"}'),
+    )
     assert of(check(text), "wiring.cap-voltage")[0].waived is None
 
 
 # ---- what waived means ---------------------------------------------------------------------
 
+
 def test_waived_findings_stay_counted_and_do_not_fail_the_check(tmp_path, clean_text):
     # C33 at 12 V on a 10 V part: an error, waived with a reason
-    c33 = "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: [V12, GND], " \
-          "positive: V12}"
+    c33 = (
+        "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: "
+        "[V12, GND], positive: V12}"
+    )
     plan = tmp_path / "plan.yaml"
-    text = edited(clean_text, "  C32:", c33 + "  # waive wiring.cap-voltage because a 10 V part is all we have\n  C32:")
+    text = edited(
+        clean_text, "  C32:", c33 + "  # waive wiring.cap-voltage because a 10 V part is all we have\n  C32:"
+    )
     plan.write_text(text)
     res = CliRunner().invoke(main, ["check", str(plan)])
     assert res.exit_code == 0, res.output
     assert f"{plan}:{line_of(text, 'C33:')}:" in res.output
     assert "[waived: a 10 V part is all we have]" in res.output
-    assert res.output.splitlines()[-1] == "speccheck: 1 file checked: 0 errors, 0 warnings, 0 notes (1 waived)"
+    assert (
+        res.output.splitlines()[-1] == "speccheck: 1 file checked: 0 errors, 0 warnings, 0 notes (1 waived)"
+    )
     plan.write_text(text.replace("  # waive wiring.cap-voltage because a 10 V part is all we have", ""))
     assert CliRunner().invoke(main, ["check", str(plan)]).exit_code == 1

@@ -22,7 +22,10 @@ def test_clean_plan_has_no_wiring_finding(clean_text):
 # ---- tank return (common practice) ----------------------------------------------------------
 
 def test_tank_returned_to_ground_is_an_error(clean_text):
-    old = "L2: {kind: inductor, value: 1 mH, adjust: {min: 0.9 mH, max: 1.1 mH}, q: 60, ends: [U1.quad, TANK_RET]}"
+    old = (
+        "L2: {kind: inductor, value: 1 mH, adjust: {min: 0.9 mH, max: 1.1 mH}, q: 60, ends: [U1.quad, "
+        "TANK_RET]}"
+    )
     text = edited(clean_text, old, old.replace("TANK_RET]", "GND]"))
     found = of(check(text), "wiring.tank-return")
     assert len(found) == 1
@@ -39,21 +42,29 @@ def test_tank_returned_through_resistor_to_rail_is_fine(clean_text):
 
 
 def test_tank_node_without_bypass_is_a_note(clean_text):
-    text = edited(clean_text, "  C10: {kind: capacitor, value: 100 nF, dielectric: ceramic, ends: [TANK_RET, GND]}\n", "")
+    text = edited(
+        clean_text,
+        "  C10: {kind: capacitor, value: 100 nF, dielectric: ceramic, ends: [TANK_RET, GND]}\n",
+        "",
+    )
     found = of(check(text), "wiring.tank-return")
     assert [f.level for f in found] == ["note"]
     assert "no bypass" in found[0].message
 
 
 def test_tank_node_tied_to_nothing_is_a_warning(clean_text):
-    text = edited(clean_text, "R6: {kind: resistor, value: 10 ohm, ends: [TANK_RET, V6]}",
-                  "R6: {kind: resistor, value: 10 ohm, ends: [TANK_RET, NOWHERE]}")
+    text = edited(
+        clean_text,
+        "R6: {kind: resistor, value: 10 ohm, ends: [TANK_RET, V6]}",
+        "R6: {kind: resistor, value: 10 ohm, ends: [TANK_RET, NOWHERE]}",
+    )
     found = of(check(text), "wiring.tank-return")
     assert [f.level for f in found] == ["warning"]
     assert "tied to no rail" in found[0].message
 
 
 # ---- DC across a crystal (common practice) ---------------------------------------------------
+
 
 def test_crystal_from_biased_pin_to_ground_has_dc_across(clean_text):
     text = edited(clean_text, "ends: [U1.osc_base, V6]", "ends: [U1.osc_base, GND]")
@@ -71,6 +82,7 @@ def test_crystal_returned_to_the_pin_potential_is_fine(clean_text):
 
 
 # ---- polarity ----------------------------------------------------------------------------------
+
 
 def test_electrolytic_without_polarity_is_a_warning_with_the_right_end(clean_text):
     text = edited(clean_text, "ends: [V12, GND], positive: V12}", "ends: [V12, GND]}")
@@ -118,8 +130,11 @@ def test_speaker_coupling_unstated(clean_text):
 
 # ---- voltage rating (derating shares: common practice) ---------------------------------------
 
+
 def test_rating_below_working_voltage_is_an_error(clean_text):
-    text = edited(clean_text, "voltage_rating: 25 V, ends: [V12, GND]", "voltage_rating: 10 V, ends: [V12, GND]")
+    text = edited(
+        clean_text, "voltage_rating: 25 V, ends: [V12, GND]", "voltage_rating: 10 V, ends: [V12, GND]"
+    )
     found = of(check(text), "wiring.cap-voltage")
     assert len(found) == 1
     assert found[0].message.startswith("C30 sees 12 V but is rated 10 V")
@@ -129,21 +144,29 @@ def test_rating_below_working_voltage_is_an_error(clean_text):
 
 def test_rating_inside_the_derating_margin_is_a_warning(clean_text):
     # 6 V on a 6.3 V part is 95 %, above the 80 % common-practice share
-    text = edited(clean_text, "voltage_rating: 16 V, ends: [V6, GND]", "voltage_rating: 6.3 V, ends: [V6, GND]")
+    text = edited(
+        clean_text, "voltage_rating: 16 V, ends: [V6, GND]", "voltage_rating: 6.3 V, ends: [V6, GND]"
+    )
     found = of(check(text), "wiring.cap-voltage")
     assert [f.level for f in found] == ["warning"]
     assert "95% of its 6.3 V rating (keep under 80%)" in found[0].message
 
 
 def test_derating_share_is_a_setting(clean_text):
-    text = edited(clean_text, "voltage_rating: 16 V, ends: [V6, GND]", "voltage_rating: 6.3 V, ends: [V6, GND]")
+    text = edited(
+        clean_text, "voltage_rating: 16 V, ends: [V6, GND]", "voltage_rating: 6.3 V, ends: [V6, GND]"
+    )
     relaxed = Settings(rule_settings={"wiring.cap-voltage": {"derating": 0.99}})
     assert of(engine.check_text(text, "plan.yaml", relaxed), "wiring.cap-voltage") == []
 
 
 def test_ac_peak_adds_to_dc(clean_text):
     # 6 V DC + 5 V peak = 11 V on a 12 V part: 92 % > 80 %
-    text = edited(clean_text, "voltage_rating: 25 V, ends: [U2.out, SPK]", "voltage_rating: 12 V, ac_peak: 5 V, ends: [U2.out, SPK]")
+    text = edited(
+        clean_text,
+        "voltage_rating: 25 V, ends: [U2.out, SPK]",
+        "voltage_rating: 12 V, ac_peak: 5 V, ends: [U2.out, SPK]",
+    )
     found = of(check(text), "wiring.cap-voltage")
     assert found and found[0].message.startswith("C20 sees 11 V")
 

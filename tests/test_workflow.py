@@ -19,8 +19,14 @@ from speccheck.cli import main
 
 SARIF_SCHEMA = json.loads((Path(__file__).parent / "data" / "sarif-schema-2.1.0.json").read_text("utf-8"))
 BEGINNER = EXAMPLES / "beginner-plan.yaml"
-C31 = "  C31: {kind: capacitor, value: 100 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [V6, GND], positive: V6}"
-C33 = "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: [V12, GND], positive: V12}"
+C31 = (
+    "  C31: {kind: capacitor, value: 100 uF, dielectric: electrolytic, voltage_rating: 16 V, ends: [V6, "
+    "GND], positive: V6}"
+)
+C33 = (
+    "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: [V12, "
+    "GND], positive: V12}"
+)
 PROJECT = """\
 # the club's project settings
 speccheck_project: 1
@@ -57,10 +63,15 @@ def repo(tmp_path, monkeypatch):
     (builds / "beginner.yaml").write_text(BEGINNER.read_text("utf-8"))
     # 6 V on a 6.3 V part: a warning, waived with a reason
     low = C31.replace("16 V", "6.3 V")
-    (builds / "waived.yaml").write_text(edited(clean, C31, low + "  # waive wiring.cap-voltage because a 10 V part "
-                                                          "is on order; the rail is 6 V"))
+    (builds / "waived.yaml").write_text(
+        edited(
+            clean, C31, low + "  # waive wiring.cap-voltage because a 10 V part is on order; the rail is 6 V"
+        )
+    )
     # 12 V on a 10 V part: an error, "waived" without a reason
-    (builds / "unwaived.yaml").write_text(edited(clean, "  C32:", C33 + "  # waive wiring.cap-voltage\n  C32:"))
+    (builds / "unwaived.yaml").write_text(
+        edited(clean, "  C32:", C33 + "  # waive wiring.cap-voltage\n  C32:")
+    )
     (builds / "archive" / "old.yaml").write_text(BEGINNER.read_text("utf-8"))
     (builds / "notes.yaml").write_text("shopping: [ferrite beads, solder wick]\n")
     return tmp_path
@@ -68,11 +79,15 @@ def repo(tmp_path, monkeypatch):
 
 # ---- reading each format back into the same shape: (file, line, col, rule, waived reason) ----
 
-TEXT_LINE = re.compile(r"^(?P<file>[^\s:][^:]*):(?P<line>\d+):(?P<col>\d+): (?P<level>error|warning|note) "
-                       r"(?P<rule>\S+) (?P<message>.*?)(?: \[waived: (?P<reason>.*)\])?$")
+TEXT_LINE = re.compile(
+    r"^(?P<file>[^\s:][^:]*):(?P<line>\d+):(?P<col>\d+): (?P<level>error|warning|note) "
+    r"(?P<rule>\S+) (?P<message>.*?)(?: \[waived: (?P<reason>.*)\])?$"
+)
 MD_FILE = re.compile(r"^## `(?P<file>[^`]+)`")
-MD_FINDING = re.compile(r"^- (?:\*\*(?P<level>\w+)\*\*|waived (?P<wlevel>\w+)) `(?P<rule>[^`]+)` at line "
-                        r"(?P<line>\d+), col (?P<col>\d+)")
+MD_FINDING = re.compile(
+    r"^- (?:\*\*(?P<level>\w+)\*\*|waived (?P<wlevel>\w+)) `(?P<rule>[^`]+)` at line "
+    r"(?P<line>\d+), col (?P<col>\d+)"
+)
 
 
 def from_text(out):
@@ -86,8 +101,18 @@ def from_text(out):
 
 def from_json(out):
     doc = json.loads(out)
-    return {(f["location"]["file"], f["location"]["line"], f["location"]["column"], f["rule"], f["level"],
-             f["waiver_reason"]) for r in doc["files"] for f in r["findings"]}
+    return {
+        (
+            f["location"]["file"],
+            f["location"]["line"],
+            f["location"]["column"],
+            f["rule"],
+            f["level"],
+            f["waiver_reason"],
+        )
+        for r in doc["files"]
+        for f in r["findings"]
+    }
 
 
 def from_sarif(out):
@@ -100,8 +125,16 @@ def from_sarif(out):
             continue
         loc = r["locations"][0]["physicalLocation"]
         reason = r["suppressions"][0]["justification"] if r.get("suppressions") else None
-        found.add((loc["artifactLocation"]["uri"], loc["region"]["startLine"], loc["region"]["startColumn"],
-                   r["ruleId"], r["level"], reason))
+        found.add(
+            (
+                loc["artifactLocation"]["uri"],
+                loc["region"]["startLine"],
+                loc["region"]["startColumn"],
+                r["ruleId"],
+                r["level"],
+                reason,
+            )
+        )
     return found
 
 
@@ -128,27 +161,56 @@ def test_every_format_agrees_on_the_same_findings(repo):
         res = run("check", "--format", fmt, ".")
         assert res.exit_code == 1, (fmt, res.output)
         outs[fmt] = res.stdout
-    text, js, sa, md = (from_text(outs["text"]), from_json(outs["json"]), from_sarif(outs["sarif"]),
-                        from_markdown(outs["markdown"]))
+    text, js, sa, md = (
+        from_text(outs["text"]),
+        from_json(outs["json"]),
+        from_sarif(outs["sarif"]),
+        from_markdown(outs["markdown"]),
+    )
     assert text == js == sa == md
     files = {f for f, *_ in text}
-    assert files == {"builds/beginner.yaml", "builds/waived.yaml", "builds/unwaived.yaml"} | \
-        ({"builds/clean.yaml", "builds/club/starter.yaml"} & files)  # clean ones may carry notes only
-    assert not any(lv in ("error", "warning") for f, _, _, _, lv, _ in text
-                   if f in ("builds/clean.yaml", "builds/club/starter.yaml"))
+    assert files == {"builds/beginner.yaml", "builds/waived.yaml", "builds/unwaived.yaml"} | (
+        {"builds/clean.yaml", "builds/club/starter.yaml"} & files
+    )  # clean ones may carry notes only
+    assert not any(
+        lv in ("error", "warning")
+        for f, _, _, _, lv, _ in text
+        if f in ("builds/clean.yaml", "builds/club/starter.yaml")
+    )
 
     waived_text = (repo / "builds" / "waived.yaml").read_text()
     waived = [x for x in text if x[5]]
-    assert waived == [("builds/waived.yaml", line_of(waived_text, "C31:"),
-                       waived_text.splitlines()[line_of(waived_text, "C31:") - 1].index("voltage_rating:") + 17,
-                       "wiring.cap-voltage", "warning", "a 10 V part is on order; the rail is 6 V")]
+    assert waived == [
+        (
+            "builds/waived.yaml",
+            line_of(waived_text, "C31:"),
+            waived_text.splitlines()[line_of(waived_text, "C31:") - 1].index("voltage_rating:") + 17,
+            "wiring.cap-voltage",
+            "warning",
+            "a 10 V part is on order; the rail is 6 V",
+        )
+    ]
     unwaived_text = (repo / "builds" / "unwaived.yaml").read_text()
     c33_line = line_of(unwaived_text, "C33:")
-    assert ("builds/unwaived.yaml", c33_line, unwaived_text.splitlines()[c33_line - 1].index("voltage_rating:") + 17,
-            "wiring.cap-voltage", "error", None) in text
+    assert (
+        "builds/unwaived.yaml",
+        c33_line,
+        unwaived_text.splitlines()[c33_line - 1].index("voltage_rating:") + 17,
+        "wiring.cap-voltage",
+        "error",
+        None,
+    ) in text
     reason = [x for x in text if x[3] == "review.waiver-reason"]
-    assert reason == [("builds/unwaived.yaml", c33_line, unwaived_text.splitlines()[c33_line - 1].index("#") + 1,
-                       "review.waiver-reason", "error", None)]  # raised to error by the project file
+    assert reason == [
+        (
+            "builds/unwaived.yaml",
+            c33_line,
+            unwaived_text.splitlines()[c33_line - 1].index("#") + 1,
+            "review.waiver-reason",
+            "error",
+            None,
+        )
+    ]  # raised to error by the project file
 
     doc = json.loads(outs["json"])
     assert doc["project_file"].endswith("speccheck-project.yaml")
@@ -180,8 +242,11 @@ def test_the_baseline_hides_old_findings_and_shows_a_new_one(repo):
         assert res.exit_code == 0  # crystal DC is a warning; the fail level is error
         new = from_text(res.stdout) if fmt == "text" else from_sarif(res.stdout)
         assert [(f, line, rule) for f, line, _, rule, _, _ in new] == [
-            ("builds/clean.yaml", line_of(text, "ends: [U1.osc_base, GND]"), "wiring.crystal-dc")]
-    assert run("check", "--baseline", "speccheck-baseline.json", "--fail-level", "warning", ".").exit_code == 1
+            ("builds/clean.yaml", line_of(text, "ends: [U1.osc_base, GND]"), "wiring.crystal-dc")
+        ]
+    assert (
+        run("check", "--baseline", "speccheck-baseline.json", "--fail-level", "warning", ".").exit_code == 1
+    )
 
 
 def test_exit_codes_follow_the_fail_level(repo):
@@ -222,6 +287,7 @@ def test_parallel_check_gives_the_same_report_in_path_order(repo):
 
 # ---- starters --------------------------------------------------------------------------------
 
+
 @pytest.mark.parametrize("layout", sorted(starters.LAYOUTS))
 def test_each_starter_checks_clean_as_written(tmp_path, layout):
     out = tmp_path / f"{layout}.yaml"
@@ -236,7 +302,9 @@ def test_each_starter_checks_clean_as_written(tmp_path, layout):
 
 
 def test_mains_starter_says_its_cautions():
-    assert "can kill" in starters.text("mains-bench") and "local electrical code" in starters.text("mains-bench")
+    assert "can kill" in starters.text("mains-bench") and "local electrical code" in starters.text(
+        "mains-bench"
+    )
 
 
 def test_starter_command_lists_refuses_and_protects_files(tmp_path):
@@ -256,6 +324,7 @@ def test_starter_command_lists_refuses_and_protects_files(tmp_path):
 
 # ---- hook file and start-up ------------------------------------------------------------------
 
+
 def test_pre_commit_hook_definition():
     from ruamel.yaml import YAML
 
@@ -271,7 +340,9 @@ def test_pre_commit_hook_definition():
 
 
 def test_cli_start_up_stays_light():
-    code = ("import sys, speccheck.cli; heavy = [m for m in ('pint', 'jsonschema', 'ruamel.yaml', "
-            "'concurrent.futures', 'speccheck.engine') if m in sys.modules]; print(heavy)")
+    code = (
+        "import sys, speccheck.cli; heavy = [m for m in ('pint', 'jsonschema', 'ruamel.yaml', "
+        "'concurrent.futures', 'speccheck.engine') if m in sys.modules]; print(heavy)"
+    )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"

@@ -3,19 +3,6 @@ IF path, upstream bandwidth."""
 
 from __future__ import annotations
 
-from speccheck.rules.freqplan.common import (
-    SHARE_LEVELS,
-    missing_note,
-    passed,
-    setting,
-    share_level,
-    share_settings,
-    share_text,
-    tone_text,
-    width_for,
-    worst_tone,
-)
-
 from speccheck.chain import (
     Band,
     Conversion,
@@ -32,9 +19,25 @@ from speccheck.chain import (
 from speccheck.findings import Value
 from speccheck.formulas import fmspectrum, mixing, shapes
 from speccheck.registry import rule
+from speccheck.rules.freqplan.common import (
+    SHARE_LEVELS,
+    missing_note,
+    passed,
+    setting,
+    share_level,
+    share_settings,
+    share_text,
+    tone_text,
+    width_for,
+    worst_tone,
+)
 
 
-@rule("freqplan.conversion", verify='Measure the LO with a frequency counter at a buffered output or a loosely coupled probe, and the IF at the mixer output with a receiver or spectrum analyser.',
+@rule("freqplan.conversion",
+      verify="""
+      Measure the LO with a frequency counter at a buffered output or a loosely coupled probe, and the IF
+      at the mixer output with a receiver or spectrum analyser.
+      """,
       level="error",
       title="The IF each local oscillator really produces",
       explanation="""
@@ -53,8 +56,8 @@ from speccheck.registry import rule
       which it is. An LO equal to the input gives no IF at all.
       """,
       fix="Choose the LO as f_in - f_IF (low side) or f_in + f_IF (high side) and declare the side.",
-      source="textbook mixer arithmetic (e.g. Tooley, Electronic Circuits); common practice: a 21.4 MHz IF to "
-             "455 kHz low side needs a 20.945 MHz LO")
+      source="textbook mixer arithmetic (e.g. Tooley, Electronic Circuits); common practice: a 21.4 MHz IF "
+             "to 455 kHz low side needs a 20.945 MHz LO")
 def conversion(build, ctx):
     plan = frequency_plan(build)
     for c in plan.conversions:
@@ -68,47 +71,77 @@ def conversion(build, ctx):
         ctx.publish("conversion", c.owner, "input frequency", c.f_in, "Hz")
         ctx.publish("conversion", c.owner, "LO frequency", c.lo, "Hz")
         if c.pull:
-            ctx.publish("conversion", c.owner, "LO shift by crystal pulling", round(c.lo - c.lo / (1 + c.pull), 3), "Hz")
+            ctx.publish(
+                "conversion",
+                c.owner,
+                "LO shift by crystal pulling",
+                round(c.lo - c.lo / (1 + c.pull), 3),
+                "Hz",
+            )
         ctx.publish("conversion", c.owner, "LO worst-case spread (±)", c.lo_unc, "Hz")
         ctx.publish("conversion", c.owner, "injection", f"{c.side} side")
         if c.f_if <= 0:
-            ctx.report(f"{c.owner}: the LO ({hz(c.lo)}) equals the input ({hz(c.f_in)}); the mixer makes no IF",
-                       c.lo_at or osc.loc, [Value("LO", c.lo, "Hz"), Value("input", c.f_in, "Hz")],
-                       stage=stage.label)
+            ctx.report(
+                f"{c.owner}: the LO ({hz(c.lo)}) equals the input ({hz(c.f_in)}); the mixer makes no IF",
+                c.lo_at or osc.loc,
+                [Value("LO", c.lo, "Hz"), Value("input", c.f_in, "Hz")],
+                stage=stage.label,
+            )
             continue
         ctx.publish("conversion", c.owner, "IF (nominal)", c.f_if, "Hz")
         ctx.publish("conversion", c.owner, "IF lowest (worst case)", c.f_if - c.if_unc, "Hz")
         ctx.publish("conversion", c.owner, "IF highest (worst case)", c.f_if + c.if_unc, "Hz")
         if c.intended is not None:
             ctx.publish("conversion", c.owner, "IF offset from intended", round(c.f_if - c.intended, 3), "Hz")
-        if c.assumed or (c is plan.conversions[0] and build.source is not None and build.source.drift is None):
+        if c.assumed or (
+            c is plan.conversions[0] and build.source is not None and build.source.drift is None
+        ):
             counted = [f"{p} (counted as {v})" for p, v in c.assumed]
             if c is plan.conversions[0] and build.source is not None and build.source.drift is None:
                 counted.append("source.drift (counted as 0 Hz)")
             only_source = not c.assumed  # then the note is about the source section, so point there
-            ctx.report(f"{c.owner}: the worst-case IF leaves out what is not given: {', '.join(counted)}",
-                       build.source.loc if only_source else (c.lo_at or osc.loc), level="note", stage=stage.label,
-                       fix="Give the crystal tolerance and the source drift so the worst case is real.")
+            ctx.report(
+                f"{c.owner}: the worst-case IF leaves out what is not given: {', '.join(counted)}",
+                build.source.loc if only_source else (c.lo_at or osc.loc),
+                level="note",
+                stage=stage.label,
+                fix="Give the crystal tolerance and the source drift so the worst case is real.",
+            )
         if osc.injection in ("low", "high") and osc.injection != c.side:
             image = mixing.image_frequency(c.f_in, c.lo)
-            ctx.report(f"{c.owner}: injection is declared {osc.injection} side, but the LO ({hz(c.lo)}) is "
-                       f"{'below' if c.side == 'low' else 'above'} the input ({hz(c.f_in)}): the IF is still "
-                       f"{hz(c.f_if)}, but the spectrum is {'not ' if c.side == 'low' else ''}inverted and the image "
-                       f"lies at {hz(image)}", osc.at("injection"),
-                       [Value("LO", c.lo, "Hz"), Value("input", c.f_in, "Hz"), Value("image", image, "Hz")],
-                       level="warning", stage=stage.label,
-                       fix=f"Declare injection: {c.side}, or choose the LO on the {osc.injection} side "
-                           f"({hz(mixing.lo_for(c.f_in, c.intended or c.f_if, osc.injection))}).")
+            ctx.report(
+                f"{c.owner}: injection is declared {osc.injection} side, but the LO ({hz(c.lo)}) is "
+                f"{'below' if c.side == 'low' else 'above'} the input ({hz(c.f_in)}): the IF is "
+                f"still {hz(c.f_if)}, but the spectrum is "
+                f"{'not ' if c.side == 'low' else ''}inverted and the image lies at {hz(image)}",
+                osc.at("injection"),
+                [Value("LO", c.lo, "Hz"), Value("input", c.f_in, "Hz"), Value("image", image, "Hz")],
+                level="warning",
+                stage=stage.label,
+                fix=f"Declare injection: {c.side}, or choose the LO on the {osc.injection} side "
+                f"({hz(mixing.lo_for(c.f_in, c.intended or c.f_if, osc.injection))}).",
+            )
         if c.filter is None:
-            ctx.report(f"{c.owner}: no if-filter stage follows, so the IF of {hz(c.f_if)} is checked against no "
-                       f"passband", stage.loc, [Value("IF", c.f_if, "Hz")], level="note", stage=stage.label,
-                       fix="Add the if-filter stage (with its filter part or passband) after the conversion.")
+            ctx.report(
+                f"{c.owner}: no if-filter stage follows, so the IF of {hz(c.f_if)} is checked "
+                "against no passband",
+                stage.loc,
+                [Value("IF", c.f_if, "Hz")],
+                level="note",
+                stage=stage.label,
+                fix="Add the if-filter stage (with its filter part or passband) after the conversion.",
+            )
 
 
-@rule("freqplan.filter-fit", verify="Feed a generator at the input frequency, step it across the signal's width, and watch the level after the filter: the whole signal must sit on the filter's flat top.",
-      level="error",
-      title="Signal must stay inside the IF filter at the worst-case IF",
-      explanation="""
+@rule(
+    "freqplan.filter-fit",
+    verify="""
+      Feed a generator at the input frequency, step it across the signal's width, and watch the level
+      after the filter: the whole signal must sit on the filter's flat top.
+      """,
+    level="error",
+    title="Signal must stay inside the IF filter at the worst-case IF",
+    explanation="""
       The filter after the mixer passes a band around its centre. The signal arrives at the IF the
       LO actually makes, give or take the crystal tolerance, the crystal's pulling, oscillator
       drift and the drift of the source. A wrong crystal, or one pulled by the wrong load
@@ -125,11 +158,13 @@ def conversion(build, ctx):
       on centre is left to freqplan.path-width. For a signal that is not FM the old comparison
       stands: the necessary bandwidth, shifted by the worst case, must lie inside the passband.
       """,
-      fix="Use the crystal (and load capacitors) that put the IF on the filter's centre, or a filter centred on "
-          "the IF the oscillator makes; reduce drift where the margin is thin.",
-      source="Bessel spectrum of FM (Haykin, Communication Systems; Abramowitz & Stegun ch. 9); filter shapes "
-             "(Williams & Taylor, Electronic Filter Design Handbook); the share levels: common practice",
-      settings=dict(SHARE_LEVELS))
+    fix="Use the crystal (and load capacitors) that put the IF on the filter's centre, or a filter "
+    "centred on the IF the oscillator makes; reduce drift where the margin is thin.",
+    source="Bessel spectrum of FM (Haykin, Communication Systems; Abramowitz & Stegun ch. 9); filter "
+    "shapes (Williams & Taylor, Electronic Filter Design Handbook); the share levels: common "
+    "practice",
+    settings=dict(SHARE_LEVELS),
+)
 def filter_fit(build, ctx):
     plan = frequency_plan(build)
     levels = share_settings(ctx)
@@ -160,30 +195,52 @@ def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels
     conv = point.conversion
     cause = f"LO {hz(conv.lo)}" if conv is not None and conv.lo is not None else "the input"
     spread = f"{hz(point.f)} ± {khz(point.unc)} ({cause}; {point.why})"
-    values = [Value("IF (nominal)", point.f, "Hz"), Value("IF spread (±)", point.unc, "Hz"),
-              Value("necessary bandwidth", bn, "Hz"), Value("passband low", pb.low, "Hz"),
-              Value("passband high", pb.high, "Hz"), Value("margin", margin, "Hz")]
+    values = [
+        Value("IF (nominal)", point.f, "Hz"),
+        Value("IF spread (±)", point.unc, "Hz"),
+        Value("necessary bandwidth", bn, "Hz"),
+        Value("passband low", pb.low, "Hz"),
+        Value("passband high", pb.high, "Hz"),
+        Value("margin", margin, "Hz"),
+    ]
     if on_centre is None:  # not FM: the necessary band against the passband edges
         if bn > pb.width or margin >= 0:
             return
-        level, what = "error", (f"the {khz(bn)} signal reaches {hz(sig_lo)} to {hz(sig_hi)}, {khz(-margin)} past "
-                                f"the passband {hz(pb.low)} to {hz(pb.high)} ({pb.describe()})")
+        level, what = (
+            "error",
+            (
+                f"the {khz(bn)} signal reaches {hz(sig_lo)} to {hz(sig_hi)}, {khz(-margin)} "
+                f"past the passband {hz(pb.low)} to {hz(pb.high)} ({pb.describe()})"
+            ),
+        )
         fixable = bn + 2 * point.unc <= pb.width
     else:
         centre_level = share_level(on_centre, levels)
         if centre_level == "error":
             return  # too narrow even on centre: freqplan.path-width says so
-        worst = min(passed(sig, pb.shape.attenuation, f - pb.center) for f in (point.f - point.unc, point.f + point.unc))
-        ctx.publish("if-filter", owner_name, f"share of {sig.name} passed at the worst-case IF", round(worst * 100, 2),
-                    "%")
+        worst = min(
+            passed(sig, pb.shape.attenuation, f - pb.center)
+            for f in (point.f - point.unc, point.f + point.unc)
+        )
+        ctx.publish(
+            "if-filter",
+            owner_name,
+            f"share of {sig.name} passed at the worst-case IF",
+            round(worst * 100, 2),
+            "%",
+        )
         level = share_level(worst, levels)
         rank = {None: 0, "note": 1, "warning": 2, "error": 3}
         if rank[level] < 2 or rank[level] <= rank[centre_level]:
             return  # the offset costs no more than the width itself: freqplan.path-width's verdict
-        values += [Value("share passed (worst case)", worst * 100, "%"),
-                   Value("share passed (on the filter's centre)", on_centre * 100, "%")]
-        what = (f"the {pb.name} path ({pb.describe()}; {pb.shape.what}) passes {share_text(worst)} of the "
-                f"power of {tone_text(sig)} there, against {share_text(on_centre)} on its centre")
+        values += [
+            Value("share passed (worst case)", worst * 100, "%"),
+            Value("share passed (on the filter's centre)", on_centre * 100, "%"),
+        ]
+        what = (
+            f"the {pb.name} path ({pb.describe()}; {pb.shape.what}) passes {share_text(worst)} of the "
+            f"power of {tone_text(sig)} there, against {share_text(on_centre)} on its centre"
+        )
         spread_only = min(passed(sig, pb.shape.attenuation, u) for u in (-point.unc, point.unc))
         fixable = rank[share_level(spread_only, levels)] < 2  # centring the IF would clear it
     # The offset is the cause when the signal fits on the filter's centre: point at what sets
@@ -195,19 +252,35 @@ def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels
     else:
         where = pb.at()
     if level == "error":
-        ctx.report(f"{sig.name} does not fit the {pb.name} path at the worst-case IF: the IF is {spread}, so {what}",
-                   where, values, stage=point.stage.label)
+        ctx.report(
+            f"{sig.name} does not fit the {pb.name} path at the worst-case IF: the IF is {spread}, so {what}",
+            where,
+            values,
+            stage=point.stage.label,
+        )
     else:
-        ctx.report(f"{sig.name} sits on the skirt of the {pb.name} path at the worst-case IF: the IF is {spread}, "
-                   f"so {what}", where, values, level="warning", stage=point.stage.label)
+        ctx.report(
+            f"{sig.name} sits on the skirt of the {pb.name} path at the worst-case IF: the IF is "
+            f"{spread}, so {what}",
+            where,
+            values,
+            level="warning",
+            stage=point.stage.label,
+        )
 
 
 # ---- 2. image ----------------------------------------------------------------------------
 
-@rule("freqplan.image", verify="Set a generator to the image frequency at the wanted signal's level and compare the RSSI or audio with the wanted signal: the difference is the image rejection.",
-      level="warning",
-      title="Image frequency weakly rejected ahead of the mixer",
-      explanation="""
+
+@rule(
+    "freqplan.image",
+    verify="""
+      Set a generator to the image frequency at the wanted signal's level and compare the RSSI or audio
+      with the wanted signal: the difference is the image rejection.
+      """,
+    level="warning",
+    title="Image frequency weakly rejected ahead of the mixer",
+    explanation="""
       A mixer answers two inputs with the same IF: the wanted one and its image, mirrored about the
       LO on the far side (f_image = 2 f_LO - f_in, that is f_in - 2 f_IF for low-side and
       f_in + 2 f_IF for high-side injection). Whatever sits on the image frequency comes out in the
@@ -223,11 +296,13 @@ def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels
       a strong one still gets through: a note. Both figures are common practice for a simple
       converter, not a standard.
       """,
-      fix="Declare what limits the input (source.bandwidth or source.preselector) with its shape, add a "
-          "preselector, or choose the injection side or IF that puts the image further out.",
-      source="textbook (Tooley, Electronic Circuits: 455 kHz IF, tuned to 1200 kHz, LO 1655 kHz, image 2110 kHz); "
-             "Gaussian and equivalent-Butterworth shapes (speccheck.formulas.shapes); thresholds: common practice",
-      settings={"warning_db": 20.0, "note_db": 40.0})
+    fix="Declare what limits the input (source.bandwidth or source.preselector) with its shape, add a "
+    "preselector, or choose the injection side or IF that puts the image further out.",
+    source="textbook (Tooley, Electronic Circuits: 455 kHz IF, tuned to 1200 kHz, LO 1655 kHz, image 2110 "
+    "kHz); Gaussian and equivalent-Butterworth shapes (speccheck.formulas.shapes); thresholds: "
+    "common practice",
+    settings={"warning_db": 20.0, "note_db": 40.0},
+)
 def image(build, ctx):
     for c in frequency_plan(build).conversions:
         if c.lo is None or c.f_in is None or not c.f_if:
@@ -239,9 +314,14 @@ def image(build, ctx):
         values = [Value("input", c.f_in, "Hz"), Value("LO", c.lo, "Hz"), Value("image", img, "Hz")]
         band = c.ahead
         if band is None:
-            ctx.report(f"{c.owner}: the image at {hz(img)} ({khz(abs(img - c.f_in))} from the wanted "
-                       f"{hz(c.f_in)}) converts to the IF too, and nothing declared ahead of the mixer rejects it",
-                       where, values, stage=c.stage.label)
+            ctx.report(
+                f"{c.owner}: the image at {hz(img)} ({khz(abs(img - c.f_in))} from the wanted "
+                f"{hz(c.f_in)}) converts to the IF too, and nothing declared ahead of the mixer "
+                "rejects it",
+                where,
+                values,
+                stage=c.stage.label,
+            )
             continue
         image_verdict(ctx, c, img, band, where, values)
 
@@ -252,8 +332,11 @@ def image_verdict(ctx, c: Conversion, img: float, band: Band, where, values: lis
     if not band.holds(img):
         outside = min(abs(img - band.low), abs(img - band.high))
         ctx.publish("conversion", c.owner, "image outside the passband ahead by", outside, "Hz")
-    values = values + [Value("passband low", band.low, "Hz"), Value("passband high", band.high, "Hz"),
-                       Value("image rejection", rejection, "dB")]
+    values = values + [
+        Value("passband low", band.low, "Hz"),
+        Value("passband high", band.high, "Hz"),
+        Value("image rejection", rejection, "dB"),
+    ]
     typical = any(shape.typical for _, shape in band.responses)
     shapes_used = "; ".join(shape.what for _, shape in band.responses if shape.what)
     assumed = f" ({shapes_used}{'; state its stopband or shape_factor for a real figure' if typical else ''})"
@@ -261,17 +344,28 @@ def image_verdict(ctx, c: Conversion, img: float, band: Band, where, values: lis
     if rejection >= note:
         return
     where_it = f"lies inside {band.what}" if band.holds(img) else f"lies outside {band.what}"
-    ctx.report(f"{c.owner}: the image at {hz(img)} {where_it}, which rejects it by only {rejection:.1f} dB"
-               f"{assumed}: a signal there lands on the IF with the wanted {hz(c.f_in)}", where, values,
-               level="warning" if rejection < warn else "note", stage=c.stage.label)
+    ctx.report(
+        f"{c.owner}: the image at {hz(img)} {where_it}, which rejects it by only {rejection:.1f} dB"
+        f"{assumed}: a signal there lands on the IF with the wanted {hz(c.f_in)}",
+        where,
+        values,
+        level="warning" if rejection < warn else "note",
+        stage=c.stage.label,
+    )
 
 
 # ---- 3. necessary bandwidth against the IF path --------------------------------------------------
 
-@rule("freqplan.path-width", verify='Apply a carrier at full deviation and watch the recovered audio on a scope: a path narrower than the signal distorts the peaks; compare with the other path.',
-      level="error",
-      title="IF path that cuts the signal's spectrum, or is many times wider",
-      explanation="""
+
+@rule(
+    "freqplan.path-width",
+    verify="""
+      Apply a carrier at full deviation and watch the recovered audio on a scope: a path narrower than the
+      signal distorts the peaks; compare with the other path.
+      """,
+    level="error",
+    title="IF path that cuts the signal's spectrum, or is many times wider",
+    explanation="""
       Every signal occupies a band: for FM, Carson's rule gives B = 2(peak deviation + highest audio
       frequency), and ITU-R SM.1138 gives the necessary bandwidth Bn = 2M + 2DK with K = 1, the same
       number. The emission designator writes it the ITU way (Radio Regulations Appendix 1), e.g.
@@ -293,12 +387,13 @@ def image_verdict(ctx, c: Conversion, img: float, band: Band, where, values: lis
       adjacent channels: a warning. With the signal's channel_spacing given, the path's
       rejection of the adjacent channel is put on the design sheet in dB.
       """,
-      fix="Route the signal through a path that passes its spectrum (name it in the signal's path), or fit a "
-          "filter of at least the width shown.",
-      source="ITU-R SM.1138 (Bn = 2M + 2DK); Radio Regulations Appendix 1 (designators); Bessel spectrum of FM "
-             "(Haykin, Communication Systems; Abramowitz & Stegun ch. 9); Carson's 98 %; share levels: common "
-             "practice",
-      settings={"wide_factor": 3.0, **SHARE_LEVELS})
+    fix="Route the signal through a path that passes its spectrum (name it in the signal's path), or fit a "
+    "filter of at least the width shown.",
+    source="ITU-R SM.1138 (Bn = 2M + 2DK); Radio Regulations Appendix 1 (designators); Bessel spectrum of "
+    "FM (Haykin, Communication Systems; Abramowitz & Stegun ch. 9); Carson's 98 %; share levels: "
+    "common practice",
+    settings={"wide_factor": 3.0, **SHARE_LEVELS},
+)
 def path_width(build, ctx):
     plan = frequency_plan(build)
     for i, sig in enumerate(build.signals):
@@ -306,19 +401,34 @@ def path_width(build, ctx):
         if need is None:
             if sig.modulation == "fm" and (sig.deviation is None or sig.audio_max is None):
                 missing = "deviation" if sig.deviation is None else "audio_max"
-                ctx.report(f"signal {sig.name}: signals[{i}].{missing} is not given, so its necessary bandwidth "
-                           f"cannot be computed", sig.loc, level="note", stage="signals",
-                           fix=f"Give signals[{i}].{missing}.")
+                ctx.report(
+                    f"signal {sig.name}: signals[{i}].{missing} is not given, so its necessary "
+                    "bandwidth cannot be computed",
+                    sig.loc,
+                    level="note",
+                    stage="signals",
+                    fix=f"Give signals[{i}].{missing}.",
+                )
             elif sig.modulation in ("am", "ssb") and sig.audio_max is None:
-                ctx.report(f"signal {sig.name}: signals[{i}].audio_max is not given, so its necessary bandwidth "
-                           f"cannot be computed", sig.loc, level="note", stage="signals",
-                           fix=f"Give signals[{i}].audio_max.")
+                ctx.report(
+                    f"signal {sig.name}: signals[{i}].audio_max is not given, so its necessary "
+                    "bandwidth cannot be computed",
+                    sig.loc,
+                    level="note",
+                    stage="signals",
+                    fix=f"Give signals[{i}].audio_max.",
+                )
             continue
         bn, carson, designator = need
         if carson is not None:
             ctx.publish("signals", sig.name, "Carson bandwidth", carson, "Hz")
-            ctx.publish("signals", sig.name, "power inside Carson's band (worst tone)",
-                        round(fmspectrum.carson_share(*worst_tone(sig)) * 100, 2), "%")
+            ctx.publish(
+                "signals",
+                sig.name,
+                "power inside Carson's band (worst tone)",
+                round(fmspectrum.carson_share(*worst_tone(sig)) * 100, 2),
+                "%",
+            )
         ctx.publish("signals", sig.name, "necessary bandwidth (ITU-R SM.1138)", bn, "Hz")
         if designator:
             ctx.publish("signals", sig.name, "emission designator", designator)
@@ -341,15 +451,25 @@ def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
     owner_name = f"{pb.name} path"
     if pb.shape is not None and sig.channel_spacing is not None:
         acr = pb.shape.attenuation(sig.channel_spacing.si) - pb.shape.attenuation(0.0)
-        ctx.publish("if-filter", owner_name, f"adjacent-channel rejection for {sig.name} "
-                    f"(±{khz(sig.channel_spacing.si)})", round(acr, 1), "dB")
+        ctx.publish(
+            "if-filter",
+            owner_name,
+            f"adjacent-channel rejection for {sig.name} (±{khz(sig.channel_spacing.si)})",
+            round(acr, 1),
+            "dB",
+        )
     if share is None:  # not FM: the necessary bandwidth against the path's stated width
         if pb.width < bn:
             others = [p for p in point.paths.values() if p.width is not None and p.width >= bn]
             hint = f"; the {others[0].name} path ({khz(others[0].width)}) would pass it" if others else ""
-            ctx.report(f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(pb.width)} "
-                       f"({pb.describe()}){hint}", where, values, stage=point.stage.label,
-                       fix=f"Set the signal's path to {others[0].name}." if others else None)
+            ctx.report(
+                f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(pb.width)} "
+                f"({pb.describe()}){hint}",
+                where,
+                values,
+                stage=point.stage.label,
+                fix=f"Set the signal's path to {others[0].name}." if others else None,
+            )
         elif pb.width > factor * bn:
             _too_wide(ctx, sig, pb, bn, des, factor, where, values, point)
         return
@@ -361,13 +481,21 @@ def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
         return
     values += [Value("share passed", share * 100, "%"), Value("loss", fmspectrum.loss_db(share), "dB")]
     shape = pb.shape.what
-    head = (f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(pb.width)} "
-            f"({pb.describe()}; {shape}): {share_text(share)} of the power of {tone_text(sig)}")
+    head = (
+        f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(pb.width)} "
+        f"({pb.describe()}; {shape}): {share_text(share)} of the power of {tone_text(sig)}"
+    )
     if level == "note":
-        ctx.report(f"the {pb.name} path ({khz(pb.width)}, {shape}) passes {share_text(share)} of the power of {tone_text(sig)} "
-                   f"for {sig.name} ({khz(bn)}{des}): only the outermost sidebands of the highest tones are "
-                   f"trimmed; usual practice, no change needed", where, values, level="note",
-                   stage=point.stage.label, fix="")
+        ctx.report(
+            f"the {pb.name} path ({khz(pb.width)}, {shape}) passes {share_text(share)} of the power "
+            f"of {tone_text(sig)} for {sig.name} ({khz(bn)}{des}): only the outermost sidebands of "
+            "the highest tones are trimmed; usual practice, no change needed",
+            where,
+            values,
+            level="note",
+            stage=point.stage.label,
+            fix="",
+        )
         return
     # A builder's fix: another path that passes it without being far too wide, else the width needed.
     better = []
@@ -384,26 +512,44 @@ def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
         fix = f"Set the signal's path to {p.name}."
     else:
         hint = ""
-        fix = (f"Fit a filter of about {khz(need_width)} at {pb.shape.at_db:g} dB (it passes "
-               f"{levels['note_share']:.0%}), or reduce the deviation or the highest audio frequency."
-               if need_width else "Fit a wider filter, or reduce the deviation or the highest audio frequency.")
-    tail = (": the spectrum is clearly cut and the audio distorts badly" if level == "error" else
-            ": the peaks of high tones at full deviation distort")
+        fix = (
+            f"Fit a filter of about {khz(need_width)} at {pb.shape.at_db:g} dB (it passes "
+            f"{levels['note_share']:.0%}), or reduce the deviation or the highest audio frequency."
+            if need_width
+            else "Fit a wider filter, or reduce the deviation or the highest audio frequency."
+        )
+    tail = (
+        ": the spectrum is clearly cut and the audio distorts badly"
+        if level == "error"
+        else ": the peaks of high tones at full deviation distort"
+    )
     ctx.report(head + tail + hint, where, values, level=level, stage=point.stage.label, fix=fix)
 
 
 def _too_wide(ctx, sig, pb, bn, des, factor, where, values, point):
-    ctx.report(f"the {pb.name} path ({khz(pb.width)}) is {pb.width / bn:.1f} times the {khz(bn)}{des} that "
-               f"{sig.name} needs: it lets in noise and neighbouring channels", where, values, level="warning",
-               stage=point.stage.label, fix="Use a filter nearer the signal's necessary bandwidth for this signal.")
+    ctx.report(
+        f"the {pb.name} path ({khz(pb.width)}) is {pb.width / bn:.1f} times the {khz(bn)}{des} that "
+        f"{sig.name} needs: it lets in noise and neighbouring channels",
+        where,
+        values,
+        level="warning",
+        stage=point.stage.label,
+        fix="Use a filter nearer the signal's necessary bandwidth for this signal.",
+    )
 
 
 # ---- 4. upstream bandwidth ---------------------------------------------------------------
 
-@rule("freqplan.upstream-bandwidth", verify="Step a generator across the upstream receiver's input and read the level at its IF output: the -6 dB points give its IF bandwidth.",
-      level="error",
-      title="Upstream IF or resolution bandwidth that cuts the signal",
-      explanation="""
+
+@rule(
+    "freqplan.upstream-bandwidth",
+    verify="""
+      Step a generator across the upstream receiver's input and read the level at its IF output: the -6 dB
+      points give its IF bandwidth.
+      """,
+    level="error",
+    title="Upstream IF or resolution bandwidth that cuts the signal",
+    explanation="""
       When the build taps another receiver's or instrument's IF output, that equipment has already
       filtered the signal with its own IF or resolution bandwidth. Nothing downstream can restore
       what it cut. speccheck computes the share of each signal's power the upstream response
@@ -414,10 +560,11 @@ def _too_wide(ctx, sig, pb, bn, des, factor, where, values, point):
       98 %. About 1 MHz of upstream bandwidth suits broadcast FM; a spectrum analyser's IF
       output at a narrow resolution bandwidth does not.
       """,
-      fix="Set the upstream receiver or instrument to a wider IF or resolution bandwidth.",
-      source="ITU-R SM.1138 (necessary bandwidth); Bessel spectrum of FM (Haykin); Gaussian resolution filter "
-             "(speccheck.formulas.shapes); common practice: about 1 MHz upstream suits broadcast FM",
-      settings=dict(SHARE_LEVELS))
+    fix="Set the upstream receiver or instrument to a wider IF or resolution bandwidth.",
+    source="ITU-R SM.1138 (necessary bandwidth); Bessel spectrum of FM (Haykin); Gaussian resolution "
+    "filter (speccheck.formulas.shapes); common practice: about 1 MHz upstream suits broadcast FM",
+    settings=dict(SHARE_LEVELS),
+)
 def upstream_bandwidth(build, ctx):
     src = build.source
     if src is None or src.kind not in ("receiver-if", "instrument-if"):
@@ -427,9 +574,14 @@ def upstream_bandwidth(build, ctx):
     if not needs:
         return
     if src.bandwidth is None:
-        ctx.report("source.bandwidth is not given: the upstream IF or resolution bandwidth cannot be checked "
-                   "against the signals", src.loc, level="note", stage="source",
-                   fix="Give source.bandwidth (the upstream IF or resolution bandwidth).")
+        ctx.report(
+            "source.bandwidth is not given: the upstream IF or resolution bandwidth cannot be checked "
+            "against the signals",
+            src.loc,
+            level="note",
+            stage="source",
+            fix="Give source.bandwidth (the upstream IF or resolution bandwidth).",
+        )
         return
     for sig, need in needs:
         upstream_one(ctx, src, sig, need)
@@ -445,9 +597,13 @@ def upstream_one(ctx, src, sig, need: tuple) -> None:
     share = passed(sig, shape.attenuation) if shape is not None else None
     if share is None:
         if bw < bn:
-            ctx.report(f"the upstream bandwidth {khz(bw)} is narrower than the {khz(bn)}{des} that {sig.name} "
-                       f"needs: the source has cut the signal before it reaches the build", src.at("bandwidth"),
-                       values, stage="source")
+            ctx.report(
+                f"the upstream bandwidth {khz(bw)} is narrower than the {khz(bn)}{des} that "
+                f"{sig.name} needs: the source has cut the signal before it reaches the build",
+                src.at("bandwidth"),
+                values,
+                stage="source",
+            )
         return
     levels = share_settings(ctx)
     ctx.publish("source", "upstream", f"share of {sig.name} passed", round(share * 100, 2), "%")
@@ -457,17 +613,40 @@ def upstream_one(ctx, src, sig, need: tuple) -> None:
     values += [Value("share passed", share * 100, "%"), Value("loss", fmspectrum.loss_db(share), "dB")]
     what = shape.what
     if level == "note":
-        ctx.report(f"the upstream bandwidth {khz(bw)} ({what}) passes {share_text(share)} of the power of {tone_text(sig)} for "
-                   f"{sig.name} ({khz(bn)}{des}): only the outermost sidebands are trimmed; usual practice",
-                   src.at("bandwidth"), values, level="note", stage="source", fix="")
+        ctx.report(
+            f"the upstream bandwidth {khz(bw)} ({what}) passes {share_text(share)} of the power of "
+            f"{tone_text(sig)} for {sig.name} ({khz(bn)}{des}): only the outermost sidebands are "
+            "trimmed; usual practice",
+            src.at("bandwidth"),
+            values,
+            level="note",
+            stage="source",
+            fix="",
+        )
         return
-    need_width = width_for(sig, lambda w: response_shape(w, src, default=("gaussian" if src.kind == "instrument-if"
-                                                                            else shapes.DEFAULT_CLASS)),
-                           levels["note_share"])
-    fix = (f"Set the upstream receiver or instrument to about {khz(need_width)} or more." if need_width else
-           "Set the upstream receiver or instrument to a wider IF or resolution bandwidth.")
-    ctx.report(f"the upstream bandwidth {khz(bw)} ({what}) passes only {share_text(share)} of the power of {tone_text(sig)}, "
-               f"the {khz(bn)}{des} that {sig.name} needs: the source has "
-               + ("cut the signal before it reaches the build" if level == "error" else
-                  "trimmed the signal's high tones at full deviation"),
-               src.at("bandwidth"), values, level=level, stage="source", fix=fix)
+    need_width = width_for(
+        sig,
+        lambda w: response_shape(
+            w, src, default=("gaussian" if src.kind == "instrument-if" else shapes.DEFAULT_CLASS)
+        ),
+        levels["note_share"],
+    )
+    fix = (
+        f"Set the upstream receiver or instrument to about {khz(need_width)} or more."
+        if need_width
+        else "Set the upstream receiver or instrument to a wider IF or resolution bandwidth."
+    )
+    ctx.report(
+        f"the upstream bandwidth {khz(bw)} ({what}) passes only {share_text(share)} of the power of "
+        f"{tone_text(sig)}, the {khz(bn)}{des} that {sig.name} needs: the source has "
+        + (
+            "cut the signal before it reaches the build"
+            if level == "error"
+            else "trimmed the signal's high tones at full deviation"
+        ),
+        src.at("bandwidth"),
+        values,
+        level=level,
+        stage="source",
+        fix=fix,
+    )

@@ -3,9 +3,9 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
-from speccheck.chain import (Band, Conversion, PathBand, frequency_plan, hz,
-                             khz, used_paths)
+from speccheck.chain import Band, Conversion, frequency_plan, hz, khz, used_paths
 from speccheck.findings import Value
 from speccheck.formulas import harmonics, mixing
 from speccheck.registry import rule
@@ -39,10 +39,12 @@ def _spur_level_settings(ctx) -> dict:
     return {name: setting(ctx, name) for name in ("limiter_level", "isolation", "asymmetry", "per_order")}
 
 
-def spur_responses(c: Conversion, pb: PathBand, order: int, s: dict, strongest: float | None) -> list:
+def spur_responses(c: Any, pb: Any, order: int, s: dict, strongest: float | None) -> list:
     """The responses of conversion c that land in IF path pb: mixer products |m·fs ± n·fLO| up to
     `order`, and the IF and LO harmonics that fall inside the passband ahead of the mixer (all
-    of them, up to the input frequency, whatever the order), each with an estimated level."""
+    of them, up to the input frequency, whatever the order), each with an estimated level.
+    c is a Conversion with its LO, IF and the band ahead known, pb a PathBand with centre and
+    width (the caller picks only those; typed Any because their fields are Optional)."""
     band = c.ahead
     duty = 0.5 - s["asymmetry"]
     out = []
@@ -58,8 +60,9 @@ def spur_responses(c: Conversion, pb: PathBand, order: int, s: dict, strongest: 
             # each order of the signal above the first costs per_order dB
             lo_db = harmonics.pulse_harmonic_db(abs(k), duty) if k else 0.0
             level = strongest - band.attenuation(fs) + lo_db - (m - 1) * s["per_order"]
-            how = (f"a {strongest:g} dBm signal there, {band.attenuation(fs):.0f} dB down ahead of the mixer, "
-                   f"LO harmonic {abs(k)} at {lo_db:.0f} dB, {(m - 1) * s['per_order']:.0f} dB for signal order {m}")
+            how = (f"a {strongest:g} dBm signal there, {band.attenuation(fs):.0f} dB down ahead of the "
+                   f"mixer, LO harmonic {abs(k)} at {lo_db:.0f} dB, {(m - 1) * s['per_order']:.0f} dB for "
+                   f"signal order {m}")
         out.append(Response("spur " + _spur_name(m, k, sign), fs, fs - c.f_in, level, how or "", False))
     for n in range(1, order + 1):
         if pb.low <= n * c.lo <= pb.high:
@@ -77,13 +80,18 @@ def spur_responses(c: Conversion, pb: PathBand, order: int, s: dict, strongest: 
                 h_db = harmonics.pulse_harmonic_db(n, duty)
                 through = pb.attenuation(abs(h - c.lo))
                 level = s["limiter_level"] + h_db - s["isolation"] - through
-                how = (f"limiter {s['limiter_level']:g} dBm, harmonic {n} at {h_db:.0f} dB, {s['isolation']:g} dB "
-                       f"isolation to the input, {through:.0f} dB down in the {pb.name} path")
+                how = (f"limiter {s['limiter_level']:g} dBm, harmonic {n} at {h_db:.0f} dB, "
+                       f"{s['isolation']:g} dB isolation to the input, {through:.0f} dB down in the "
+                       f"{pb.name} path")
             out.append(Response(f"{what} harmonic {n}", h, h - c.f_in, level, how, True))
     return out
 
 
-@rule("freqplan.mixer-spurs", verify='Sweep a strong generator across the input band and note each frequency where the squelch opens or the RSSI rises: each one is a spurious response.',
+@rule("freqplan.mixer-spurs",
+      verify="""
+      Sweep a strong generator across the input band and note each frequency where the squelch opens or
+      the RSSI rises: each one is a spurious response.
+      """,
       level="warning",
       title="Mixer spurious response or harmonic that can be heard",
       explanation="""
@@ -114,8 +122,8 @@ def spur_responses(c: Conversion, pb: PathBand, order: int, s: dict, strongest: 
       (source.level_min, else -110 dBm): there it opens the squelch or whistles in the audio.
       An IF or LO harmonic that is close but too weak to hear is a note with its level.
       """,
-      fix="Move the LO (other injection side or another IF), narrow the passband ahead of the mixer, or shield "
-          "and decouple the limiter and oscillator from the input.",
+      fix="Move the LO (other injection side or another IF), narrow the passband ahead of the mixer, or "
+          "shield and decouple the limiter and oscillator from the input.",
       source="Fourier series of a rectangular wave (Oppenheim & Willsky, Signals and Systems); mixer spur "
              "arithmetic: common practice (spur charts); limiter level, asymmetry, isolation and per-order "
              "suppression: from memory",
@@ -171,12 +179,14 @@ def mixer_spurs(build, ctx):
             if r0.level is not None:
                 values += [Value("estimated level", r0.level, "dBm"), Value("weakest wanted", weakest, "dBm")]
             if level == "warning":
-                head = (f"{c.owner}: {len(group)} response{'s' if len(group) > 1 else ''} within {khz(close)} of the "
-                        f"wanted {hz(c.f_in)} (LO {hz(c.lo)}) strong enough to hear (within "
-                        f"{setting(ctx, 'audible_margin'):g} dB of the weakest wanted {weakest:g} dBm): ")
+                head = (f"{c.owner}: {len(group)} response{'s' if len(group) > 1 else ''} within "
+                        f"{khz(close)} of the wanted {hz(c.f_in)} (LO {hz(c.lo)}) strong enough to hear "
+                        f"(within {setting(ctx, 'audible_margin'):g} dB of the weakest wanted {weakest:g} "
+                        "dBm): ")
             else:
-                head = (f"{c.owner}: {'a harmonic' if len(group) == 1 else f'{len(group)} harmonics'} of the build's "
-                        f"own IF or LO within {khz(close)} of the wanted {hz(c.f_in)}, estimated too weak to hear: ")
+                head = (f"{c.owner}: {'a harmonic' if len(group) == 1 else f'{len(group)} harmonics'} of "
+                        f"the build's own IF or LO within {khz(close)} of the wanted {hz(c.f_in)}, "
+                        "estimated too weak to hear: ")
             ctx.report(head + shown + more + (f" ({r0.how})" if r0.how else ""), where, values, level=level,
                        stage=c.stage.label)
 

@@ -2,9 +2,7 @@
 
 from __future__ import annotations
 
-
-from speccheck.budget import (RESERVOIR_MIN, ambient, budget,
-                              bulk_capacitors, fused_rail, supply_fuse)
+from speccheck.budget import RESERVOIR_MIN, ambient, budget, bulk_capacitors, fused_rail, supply_fuse
 from speccheck.findings import Value
 from speccheck.formulas.fuses import FUSE_GATES, awg_ampacity, fuse_gate_i2t, inrush, rerate
 from speccheck.formulas.preferred import r10_up
@@ -39,7 +37,10 @@ def fuse_choice(build, ctx, normal: float) -> dict:
     return {"share": share, "ambient": ta, "rerate": factor, "least": least, "preferred": r10_up(least)}
 
 
-@rule("power.fuse-size", verify='Measure the normal current with a meter in series and compare it with the fuse rating.',
+@rule("power.fuse-size",
+      verify="""
+      Measure the normal current with a meter in series and compare it with the fuse rating.
+      """,
       level="warning",
       title="Supply fuse rating against the build's normal current",
       explanation="""
@@ -70,14 +71,15 @@ def fuse_size(build, ctx):
     if part is None or part.kind == "resistor":
         return  # missing: input.reference; a resistor: power.resistor-fuse
     if part.kind != "fuse":
-        ctx.report(f"supply.fuse names {part.name}, a {part.kind}, not a fuse", supply.at("fuse"), level="note",
+        ctx.report(f"supply.fuse names {part.name}, a {part.kind}, not a fuse",
+                   supply.at("fuse"), level="note",
                    stage="power")
         return
     b = budget(build)
     normal = b.input
     if not normal:
-        ctx.report(f"{part.name} cannot be sized: the build's current budget is unknown (no device on the supply "
-                   f"rail states a quiescent current)", part.loc, level="note", stage="power")
+        ctx.report(f"{part.name} cannot be sized: the build's current budget is unknown (no device on the "
+                   "supply rail states a quiescent current)", part.loc, level="note", stage="power")
         return
     ctx.publish("fuse", part.name, "normal current (budget at full output)", normal, "A")
     if carries_rectifier_pulses(build, part):
@@ -87,44 +89,72 @@ def fuse_size(build, ctx):
     c = fuse_choice(build, ctx, normal)
     ctx.publish("fuse", part.name, "continuous-use share of rating", c["share"] * 100, "%")
     if c["ambient"] is not None:
-        ctx.publish("fuse", part.name, f"temperature rerating at {fmt(c['ambient'], '°C')}", c["rerate"] * 100, "%")
+        ctx.publish(
+            "fuse", part.name, f"temperature rerating at {fmt(c['ambient'], '°C')}", c["rerate"] * 100, "%"
+        )
     ctx.publish("fuse", part.name, "least rating", c["least"], "A")
     ctx.publish("fuse", part.name, "preferred rating (R10)", c["preferred"], "A")
     if part.current_rating is None:
-        ctx.report(f"{part.name} states no current_rating; the build needs {fmt(c['preferred'], 'A')}", part.loc,
-                   [Value("preferred rating", c["preferred"], "A")], level="note", stage="power")
+        ctx.report(
+            f"{part.name} states no current_rating; the build needs {fmt(c['preferred'], 'A')}",
+            part.loc,
+            [Value("preferred rating", c["preferred"], "A")],
+            level="note",
+            stage="power",
+        )
         return
     rating = part.current_rating.si
     ctx.publish("fuse", part.name, "fitted rating", rating, "A")
     if part.speed:
         ctx.publish("fuse", part.name, "fitted speed", part.speed)
     carry = rating * c["rerate"]
-    values = [Value("normal current", normal, "A"), Value("fitted", rating, "A"),
-              Value("preferred", c["preferred"], "A")]
+    values = [
+        Value("normal current", normal, "A"),
+        Value("fitted", rating, "A"),
+        Value("preferred", c["preferred"], "A"),
+    ]
     warm = f" (at {fmt(c['ambient'], '°C')} it carries {fmt(carry, 'A')})" if c["rerate"] < 1 else ""
     if normal > carry:
-        ctx.report(f"{part.name} ({part.current_rating.text}) is below the build's normal current of {fmt(normal, 'A')}"
-                   f"{warm}: it will open in normal use; fit {fmt(c['preferred'], 'A')}", part.at("current_rating"),
-                   values, level="error", stage="power")
+        ctx.report(
+            f"{part.name} ({part.current_rating.text}) is below the build's normal current of "
+            f"{fmt(normal, 'A')}{warm}: it will open in normal use; fit {fmt(c['preferred'], 'A')}",
+            part.at("current_rating"),
+            values,
+            level="error",
+            stage="power",
+        )
     elif rating < c["least"] * (1 - 1e-9):
-        ctx.report(f"{part.name} ({part.current_rating.text}) runs at {normal / carry:.0%} of its rating"
-                   f"{' after rerating' if c['rerate'] < 1 else ''} in normal use (keep under {c['share']:.0%}): "
-                   f"expect nuisance opening; fit {fmt(c['preferred'], 'A')}", part.at("current_rating"), values,
-                   stage="power")
+        ctx.report(
+            f"{part.name} ({part.current_rating.text}) runs at {normal / carry:.0%} of its "
+            f"rating{' after rerating' if c['rerate'] < 1 else ''} in normal use (keep under "
+            f"{c['share']:.0%}): expect nuisance opening; fit {fmt(c['preferred'], 'A')}",
+            part.at("current_rating"),
+            values,
+            stage="power",
+        )
     elif not b.complete:
         ctx.publish("fuse", part.name, "budget left out", b.gaps())
     elif rating > ctx.setting("oversize_factor") * c["preferred"] * (1 + 1e-9):
-        ctx.report(f"{part.name} ({part.current_rating.text}) is {rating / c['preferred']:.3g} times the "
-                   f"{fmt(c['preferred'], 'A')} the build needs (normal current {fmt(normal, 'A')}, derated to "
-                   f"{c['share']:.0%}{' and rerated for the ambient' if c['rerate'] < 1 else ''}, rounded up to R10): "
-                   f"a fault drawing a few times the normal current leaves it intact", part.at("current_rating"),
-                   values, stage="power")
+        ctx.report(
+            f"{part.name} ({part.current_rating.text}) is {rating / c['preferred']:.3g} times the "
+            f"{fmt(c['preferred'], 'A')} the build needs (normal current {fmt(normal, 'A')}, derated "
+            f"to {c['share']:.0%}{' and rerated for the ambient' if c['rerate'] < 1 else ''}, "
+            "rounded up to R10): a fault drawing a few times the normal current leaves it intact",
+            part.at("current_rating"),
+            values,
+            stage="power",
+        )
 
 
-@rule("power.fuse-wire", verify='Check the wire gauge printed on the insulation, or measure the conductor diameter, against the fuse rating.',
-      level="error",
-      title="Supply fuse larger than the wiring can carry",
-      explanation="""
+@rule(
+    "power.fuse-wire",
+    verify="""
+      Check the wire gauge printed on the insulation, or measure the conductor diameter, against the fuse
+      rating.
+      """,
+    level="error",
+    title="Supply fuse larger than the wiring can carry",
+    explanation="""
       The fuse protects the wiring behind it. If the fuse is rated above what the supply wiring
       can carry, a fault heats the wire (its insulation softens, smokes, can catch fire) long
       before the fuse opens. The chassis-wiring ampacity of copper wire by AWG (Handbook of
@@ -132,16 +162,22 @@ def fuse_size(build, ctx):
       26 AWG 2.2 A, 28 AWG 1.4 A, 30 AWG 0.86 A. Wire bundled or in a warm case carries less.
       An odd gauge is checked against the next thinner row of the table.
       """,
-      fix="Fit the fuse the build needs (see power.fuse-size), or use heavier wire.",
-      source="Handbook of Electronic Tables and Formulas, chassis wiring ampacity (26 and 28 AWG from memory)")
+    fix="Fit the fuse the build needs (see power.fuse-size), or use heavier wire.",
+    source="Handbook of Electronic Tables and Formulas, chassis wiring ampacity (26 and 28 AWG from memory)",
+)
 def fuse_wire(build, ctx):
     supply = build.supply
     if supply is None or supply.wire_gauge is None:
         return
     row = awg_ampacity(supply.wire_gauge)
     if row is None:
-        ctx.report(f"{supply.wire_gauge} AWG is not in the chassis-wiring table (10 to 40 AWG); the fuse is not "
-                   f"checked against the wiring", supply.at("wire_gauge"), level="note", stage="power")
+        ctx.report(
+            f"{supply.wire_gauge} AWG is not in the chassis-wiring table (10 to 40 AWG); the fuse is "
+            "not checked against the wiring",
+            supply.at("wire_gauge"),
+            level="note",
+            stage="power",
+        )
         return
     amps, used = row
     gauge = f"{supply.wire_gauge} AWG" + (f" (checked as {used} AWG)" if used != supply.wire_gauge else "")
@@ -149,20 +185,32 @@ def fuse_wire(build, ctx):
     normal = budget(build).input
     fuse = supply_fuse(build)
     if fuse is not None and fuse.current_rating is not None and fuse.current_rating.si > amps * (1 + 1e-9):
-        ctx.report(f"{fuse.name} ({fuse.current_rating.text}) is above the {fmt(amps, 'A')} that the {gauge} supply "
-                   f"wiring carries: a fault can overheat the wire before the fuse opens", fuse.at("current_rating"),
-                   [Value("fuse rating", fuse.current_rating.si, "A"), Value("wire ampacity", amps, "A")],
-                   stage="power")
+        ctx.report(
+            f"{fuse.name} ({fuse.current_rating.text}) is above the {fmt(amps, 'A')} that the "
+            f"{gauge} supply wiring carries: a fault can overheat the wire before the fuse opens",
+            fuse.at("current_rating"),
+            [Value("fuse rating", fuse.current_rating.si, "A"), Value("wire ampacity", amps, "A")],
+            stage="power",
+        )
     if normal and normal > amps:
-        ctx.report(f"the build draws {fmt(normal, 'A')} at full output, more than the {fmt(amps, 'A')} the {gauge} supply "
-                   f"wiring carries", supply.at("wire_gauge"),
-                   [Value("input current budget", normal, "A"), Value("wire ampacity", amps, "A")], stage="power")
+        ctx.report(
+            f"the build draws {fmt(normal, 'A')} at full output, more than the {fmt(amps, 'A')} the "
+            f"{gauge} supply wiring carries",
+            supply.at("wire_gauge"),
+            [Value("input current budget", normal, "A"), Value("wire ampacity", amps, "A")],
+            stage="power",
+        )
 
 
-@rule("power.fuse-inrush", verify='Switch on repeatedly from cold: a quick-acting fuse that survives a few times may still open later; a current probe on a scope shows the inrush peak.',
-      level="warning",
-      title="Fuse speed against the bulk capacitor's inrush",
-      explanation="""
+@rule(
+    "power.fuse-inrush",
+    verify="""
+      Switch on repeatedly from cold: a quick-acting fuse that survives a few times may still open later;
+      a current probe on a scope shows the inrush peak.
+      """,
+    level="warning",
+    title="Fuse speed against the bulk capacitor's inrush",
+    explanation="""
       At switch-on the bulk capacitor behind the fuse charges through the loop resistance R
       (the supply's output resistance, its leads, connector, the fuse itself and the
       capacitor's ESR): i = (V/R)·e^(−t/RC), a peak of V/R that falls with time constant RC.
@@ -174,11 +222,12 @@ def fuse_wire(build, ctx):
       before 10 ms at 10 × I_n, a quick-acting one before 3 ms at 4 × I_n. Real links are
       usually several times above that floor.
       """,
-      fix="Use a time-lag fuse, add series resistance (or a soft-start) ahead of the bulk capacitor, or state the "
-          "fuse's melting_i2t from its datasheet.",
-      source="inrush of an RC charge: circuit theory (cross-checked with scipy in the tests); fuse gates: "
-             "IEC 60127-2 (from memory); loop resistance and pulse share: from memory",
-      settings={"loop_resistance": 0.5, "pulse_share": 0.3})
+    fix="Use a time-lag fuse, add series resistance (or a soft-start) ahead of the bulk capacitor, or "
+    "state the fuse's melting_i2t from its datasheet.",
+    source="inrush of an RC charge: circuit theory (cross-checked with scipy in the tests); fuse gates: "
+    "IEC 60127-2 (from memory); loop resistance and pulse share: from memory",
+    settings={"loop_resistance": 0.5, "pulse_share": 0.3},
+)
 def fuse_inrush(build, ctx):
     supply = build.supply
     fuse = supply_fuse(build)
@@ -192,7 +241,10 @@ def fuse_inrush(build, ctx):
     series = build.part(supply.series_resistor)
     r_series = series.value.si if series is not None and series.kind == "resistor" and series.value else 0.0
     if supply.source_resistance is not None:
-        r_source, source_text = supply.source_resistance.si, f"supply.source_resistance {supply.source_resistance.text}"
+        r_source, source_text = (
+            supply.source_resistance.si,
+            f"supply.source_resistance {supply.source_resistance.text}",
+        )
     else:
         r_source = ctx.setting("loop_resistance")
         source_text = f"an assumed {fmt(r_source, 'Ω')} of supply, leads, fuse and ESR"
@@ -200,7 +252,11 @@ def fuse_inrush(build, ctx):
     if ohms <= 0 or volts <= 0:
         return
     peak, tau, i2t = inrush(volts, farads, ohms)
-    if supply.kind in ("battery", "bench") and supply.max_current is not None and supply.max_current.si < peak:
+    if (
+        supply.kind in ("battery", "bench")
+        and supply.max_current is not None
+        and supply.max_current.si < peak
+    ):
         limit = supply.max_current.si
         peak, i2t = limit, min(i2t, limit * farads * volts)  # a current-limited charge: I²t <= I·C·V
     owner = fuse.name
@@ -217,55 +273,92 @@ def fuse_inrush(build, ctx):
     elif fuse.speed in FUSE_GATES:
         allowed = fuse_gate_i2t(fuse.speed, rating)
         k, t_min = FUSE_GATES[fuse.speed]
-        basis = f"the {fmt(allowed, 'A²s')} a {fuse.speed} link withstands ({k:g} × I_n for {fmt(t_min, 's')}, IEC 60127-2)"
+        basis = (
+            f"the {fmt(allowed, 'A²s')} a {fuse.speed} link withstands ({k:g} × I_n for {fmt(t_min, 's')}, "
+            "IEC 60127-2)"
+        )
     else:
-        ctx.report(f"{fuse.name} states neither speed nor melting_i2t; its inrush withstand is not checked "
-                   f"({fmt(i2t, 'A²s')} into {names})", fuse.loc, level="note", stage="power")
+        ctx.report(
+            f"{fuse.name} states neither speed nor melting_i2t; its inrush withstand is not checked "
+            f"({fmt(i2t, 'A²s')} into {names})",
+            fuse.loc,
+            level="note",
+            stage="power",
+        )
         return
     ctx.publish("fuse", owner, "I²t it withstands", allowed, "A²s")
     if i2t <= allowed:
         return
-    values = [Value("inrush peak", peak, "A"), Value("time constant", tau, "s"), Value("inrush I²t", i2t, "A²s"),
-              Value("fuse withstands", allowed, "A²s")]
-    head = (f"switching {fmt(volts, 'V')} onto {names} ({fmt(farads, 'F')}) through {fmt(ohms, 'Ω')} ({source_text}"
-            f"{f' plus {series.name}' if r_series else ''}) gives a {fmt(peak, 'A')} peak and {fmt(i2t, 'A²s')}, more "
-            f"than {basis}")
+    values = [
+        Value("inrush peak", peak, "A"),
+        Value("time constant", tau, "s"),
+        Value("inrush I²t", i2t, "A²s"),
+        Value("fuse withstands", allowed, "A²s"),
+    ]
+    head = (
+        f"switching {fmt(volts, 'V')} onto {names} ({fmt(farads, 'F')}) through {fmt(ohms, 'Ω')} "
+        f"({source_text}{f' plus {series.name}' if r_series else ''}) gives a {fmt(peak, 'A')} peak and "
+        f"{fmt(i2t, 'A²s')}, more than {basis}"
+    )
     where = fuse.at("speed") if fuse.given("speed") else fuse.loc
     if fuse.speed == "quick-acting":
         slow = fuse_gate_i2t("time-lag", rating)
-        tail = (f": the quick-acting {fuse.name} will open at switch-on; fit a time-lag fuse of the same rating"
-                + ("" if slow >= i2t else f", and add series resistance (a time-lag link withstands only "
-                                            f"{fmt(slow, 'A²s')})"))
+        tail = (
+            f": the quick-acting {fuse.name} will open at switch-on; fit a time-lag fuse of the same "
+            "rating"
+            + (
+                ""
+                if slow >= i2t
+                else f", and add series resistance (a time-lag link withstands only {fmt(slow, 'A²s')})"
+            )
+        )
     else:
-        tail = f": {fuse.name} may open at switch-on; add series resistance or a soft-start ahead of the capacitor"
+        tail = (
+            f": {fuse.name} may open at switch-on; add series resistance or a soft-start ahead of the "
+            "capacitor"
+        )
     ctx.report(head + tail, where, values, stage="power")
 
 
-@rule("power.fuse-voltage", verify='Read the voltage rating printed on the fuse body or its end cap.',
-      level="error",
-      title="Fuse voltage rating below the circuit voltage",
-      explanation="""
+@rule(
+    "power.fuse-voltage",
+    verify='Read the voltage rating printed on the fuse body or its end cap.',
+    level="error",
+    title="Fuse voltage rating below the circuit voltage",
+    explanation="""
       A fuse's voltage rating is the highest voltage it can safely interrupt: above it, the arc
       that forms when the element melts may keep burning and the fault current keeps flowing.
       The rating must be at least the voltage of the circuit it protects.
       """,
-      fix="Fit a fuse rated for at least the circuit voltage.",
-      source="UL 248-14; IEC 60127-1 (rated voltage)")
+    fix="Fit a fuse rated for at least the circuit voltage.",
+    source="UL 248-14; IEC 60127-1 (rated voltage)",
+)
 def fuse_voltage(build, ctx):
     supply = build.supply
     fuse = supply_fuse(build)
     if supply is None or fuse is None or fuse.voltage_rating is None or supply.voltage is None:
         return
     if fuse.voltage_rating.si < abs(supply.voltage.si) - 1e-9:
-        ctx.report(f"{fuse.name} is rated {fuse.voltage_rating.text} but protects a {supply.voltage.text} supply",
-                   fuse.at("voltage_rating"), [Value("fuse voltage rating", fuse.voltage_rating.si, "V"),
-                                               Value("supply", supply.voltage.si, "V")], stage="power")
+        ctx.report(
+            f"{fuse.name} is rated {fuse.voltage_rating.text} but protects a {supply.voltage.text} supply",
+            fuse.at("voltage_rating"),
+            [
+                Value("fuse voltage rating", fuse.voltage_rating.si, "V"),
+                Value("supply", supply.voltage.si, "V"),
+            ],
+            stage="power",
+        )
 
 
-@rule("power.fuse-missing", verify='Follow the supply lead from the connector: the first part on the positive conductor should be the fuse.',
-      level="warning",
-      title="No fuse on a supply that can deliver more than the build needs",
-      explanation="""
+@rule(
+    "power.fuse-missing",
+    verify="""
+      Follow the supply lead from the connector: the first part on the positive conductor should be the
+      fuse.
+      """,
+    level="warning",
+    title="No fuse on a supply that can deliver more than the build needs",
+    explanation="""
       Any supply that can deliver more current than the build needs can feed a fault (a shorted
       capacitor, a solder splash, a reversed part) until something burns: a battery delivers
       tens of amperes into a short, a bench supply its current limit, an adapter its rating and
@@ -273,8 +366,9 @@ def fuse_voltage(build, ctx):
       Only a supply whose own limit sits below what the build needs protects the build by
       itself.
       """,
-      fix="Add a fuse at the supply input (supply.fuse) of the preferred rating from power.fuse-size.",
-      source="common practice")
+    fix="Add a fuse at the supply input (supply.fuse) of the preferred rating from power.fuse-size.",
+    source="common practice",
+)
 def fuse_missing(build, ctx):
     supply = build.supply
     if supply is None or supply.fuse or supply.series_resistor or supply.kind == "mains-transformer":
@@ -288,15 +382,23 @@ def fuse_missing(build, ctx):
         c = fuse_choice(build, ctx, b.input)
         values = [Value("normal current", b.input, "A"), Value("preferred rating", c["preferred"], "A")]
         need = f"; the build needs about {fmt(c['preferred'], 'A')}"
-    can = f" (up to {supply.max_current.text}{' into a short' if supply.kind == 'battery' else ''})" \
-        if supply.max_current is not None else ""
+    can = (
+        f" (up to {supply.max_current.text}{' into a short' if supply.kind == 'battery' else ''})"
+        if supply.max_current is not None
+        else ""
+    )
     ctx.report(f"the {supply.kind} supply{can} has no fuse{need}", supply.at("kind"), values, stage="power")
 
 
-@rule("power.resistor-fuse", verify="Read the resistor's marking or datasheet for 'fusible' or 'flame-proof'; measure its drop with the build at full output.",
-      level="warning",
-      title="A resistor in series with the supply, or used as its fuse",
-      explanation="""
+@rule(
+    "power.resistor-fuse",
+    verify="""
+      Read the resistor's marking or datasheet for 'fusible' or 'flame-proof'; measure its drop with the
+      build at full output.
+      """,
+    level="warning",
+    title="A resistor in series with the supply, or used as its fuse",
+    explanation="""
       A small resistor in series with the supply input (about 1 Ω with a large bulk capacitor)
       is used to knock down noise and to soften the inrush. It costs a voltage drop I·R and a
       dissipation I²·R in normal use, which must stay well inside its power rating. It is no
@@ -305,10 +407,11 @@ def fuse_missing(build, ctx):
       if it opens at all. Only a fusible (flame-proof) resistor, made to open safely, may serve
       as the fuse, and only when the fault power is well above its rating so that it does open.
       """,
-      fix="Fit a real fuse at the supply input; where the resistor must also protect, use a fusible "
-          "(flame-proof) type whose fusing curve opens at the fault power shown.",
-      source="common practice; fusing power of fusible resistors: from memory",
-      settings={"power_share": 0.5, "drop_share": 0.05, "fusing_factor": 10.0})
+    fix="Fit a real fuse at the supply input; where the resistor must also protect, use a fusible "
+    "(flame-proof) type whose fusing curve opens at the fault power shown.",
+    source="common practice; fusing power of fusible resistors: from memory",
+    settings={"power_share": 0.5, "drop_share": 0.05, "fusing_factor": 10.0},
+)
 def resistor_fuse(build, ctx):
     supply = build.supply
     if supply is None:
@@ -326,36 +429,70 @@ def resistor_fuse(build, ctx):
     ohms = part.value.si
     volts = abs(supply.voltage.si) if supply.voltage else None
     normal = budget(build).input or 0.0
-    p_normal, drop = normal ** 2 * ohms, normal * ohms
+    p_normal, drop = normal**2 * ohms, normal * ohms
     ctx.publish("power", part.name, "drop in normal use", drop, "V")
     ctx.publish("power", part.name, "dissipation in normal use", p_normal, "W")
-    values = [Value("normal current", normal, "A"), Value("drop", drop, "V"), Value("dissipation", p_normal, "W")]
+    values = [
+        Value("normal current", normal, "A"),
+        Value("drop", drop, "V"),
+        Value("dissipation", p_normal, "W"),
+    ]
     p_short = None
     if volts is not None:
         r_int = volts / supply.max_current.si if supply.kind == "battery" and supply.max_current else 0.0
         i_short = volts / (ohms + r_int)
-        p_short = i_short ** 2 * ohms
+        p_short = i_short**2 * ohms
         ctx.publish("power", part.name, "power into a short at its far end", p_short, "W")
         values.append(Value("power at a short", p_short, "W"))
     where = part.at("fusible") if part.given("fusible") else part.loc
     if as_fuse and not part.fusible:
         short = f": into a short it takes {fmt(p_short, 'W')}" if p_short is not None else ""
-        ctx.report(f"{part.name} ({part.value.text}) is the only protection on the supply input but is a plain "
-                   f"resistor{short}, glows and can set the board alight before it opens; fit a fuse or a fusible "
-                   f"(flame-proof) resistor", where, values, level="error", stage=stage)
-    elif as_fuse and part.power_rating is not None and p_short is not None and \
-            p_short < ctx.setting("fusing_factor") * part.power_rating.si:
-        ctx.report(f"fusible {part.name} takes only {fmt(p_short, 'W')} into a short, {p_short / part.power_rating.si:.3g} "
-                   f"times its {part.power_rating.text} rating: it may sit hot instead of opening (check its fusing "
-                   f"curve)", part.at("power_rating"), values, stage=stage)
+        ctx.report(
+            f"{part.name} ({part.value.text}) is the only protection on the supply input but is a "
+            f"plain resistor{short}, glows and can set the board alight before it opens; fit a fuse "
+            "or a fusible (flame-proof) resistor",
+            where,
+            values,
+            level="error",
+            stage=stage,
+        )
+    elif (
+        as_fuse
+        and part.power_rating is not None
+        and p_short is not None
+        and p_short < ctx.setting("fusing_factor") * part.power_rating.si
+    ):
+        ctx.report(
+            f"fusible {part.name} takes only {fmt(p_short, 'W')} into a short, "
+            f"{p_short / part.power_rating.si:.3g} times its {part.power_rating.text} rating: it may "
+            "sit hot instead of opening (check its fusing curve)",
+            part.at("power_rating"),
+            values,
+            stage=stage,
+        )
     if part.power_rating is None:
         if p_normal > 0:
-            ctx.report(f"{part.name} dissipates {fmt(p_normal, 'W')} in normal use; state its power_rating",
-                       part.loc, values, level="note", stage=stage)
+            ctx.report(
+                f"{part.name} dissipates {fmt(p_normal, 'W')} in normal use; state its power_rating",
+                part.loc,
+                values,
+                level="note",
+                stage=stage,
+            )
     elif p_normal > ctx.setting("power_share") * part.power_rating.si:
-        ctx.report(f"{part.name} dissipates {fmt(p_normal, 'W')} in normal use, {p_normal / part.power_rating.si:.0%} "
-                   f"of its {part.power_rating.text} rating (keep under {ctx.setting('power_share'):.0%})",
-                   part.at("power_rating"), values, stage=stage)
+        ctx.report(
+            f"{part.name} dissipates {fmt(p_normal, 'W')} in normal use, "
+            f"{p_normal / part.power_rating.si:.0%} of its {part.power_rating.text} rating (keep "
+            f"under {ctx.setting('power_share'):.0%})",
+            part.at("power_rating"),
+            values,
+            stage=stage,
+        )
     if volts and drop > ctx.setting("drop_share") * volts:
-        ctx.report(f"{part.name} drops {fmt(drop, 'V')} at the build's {fmt(normal, 'A')}, {drop / volts:.0%} of the "
-                   f"{supply.voltage.text} supply", part.at("value"), values, stage=stage)
+        ctx.report(
+            f"{part.name} drops {fmt(drop, 'V')} at the build's {fmt(normal, 'A')}, "
+            f"{drop / volts:.0%} of the {supply.voltage.text} supply",
+            part.at("value"),
+            values,
+            stage=stage,
+        )

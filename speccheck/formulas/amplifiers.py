@@ -38,7 +38,7 @@ def class_b_dissipation(topology: str, v_supply: float, r_load: float,
 
 
 def class_b_full_output(topology: str, v_supply: float, r_load: float,
-                        v_negative: float | None = None) -> dict:
+                        v_negative: float | None = None) -> dict[str, float]:
     """Ideal full (clipping-limited) sine output: peak load voltage, output power, supply
     current drawn from each rail, input power. A half-wave of peak I_p averages I_p/π; the
     bridge draws a full-wave, 2·I_p/π (Boylestad & Nashelsky §12: P_i = V_CC·(2/π)·I_p)."""

@@ -52,7 +52,7 @@ def bandwidth_code(hz: float) -> str:
         if r < 1:
             thousandths = int((r * 1000).to_integral_value(rounding=ROUND_HALF_UP))
             return f"H{max(thousandths, 1):03d}"
-    for letter, scale in (("H", 1.0), ("K", 1e3), ("M", 1e6), ("G", 1e9)):
+    for letter, scale in (("H", 1.0), ("K", 1e3), ("M", 1e6), ("G", 1e9)):  # noqa: B007 (used after the loop)
         r = _round3(hz / scale)
         if r < 1000:
             break

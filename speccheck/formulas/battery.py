@@ -62,4 +62,4 @@ def running_hours(capacity_ah: float, current: float, rated_current: float | Non
     if not rated_current or exponent == 1.0:
         return capacity_ah / current
     rated_hours = capacity_ah / rated_current
-    return rated_hours * (capacity_ah / (current * rated_hours)) ** exponent
+    return float(rated_hours * (capacity_ah / (current * rated_hours)) ** exponent)

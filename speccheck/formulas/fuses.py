@@ -5,8 +5,6 @@ SI: A, s, A2s, degC, F, ohm.
 
 from __future__ import annotations
 
-
-
 # Chassis-wiring ampacity of copper wire by AWG (Handbook of Electronic Tables and Formulas,
 # chassis wiring column): 18, 20, 22, 24 and 30 from the handbook table; 10-16, 26, 28 and
 # 32-40 from memory of the same table.

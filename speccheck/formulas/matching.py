@@ -8,11 +8,21 @@ scikit-rf in the tests). SI: ohm, H, F, Hz; dB.
 from __future__ import annotations
 
 import math
+from typing import TypedDict
 
 TWO_PI = 2.0 * math.pi
 
 
-def l_network(r_source: float, r_load: float, f: float) -> dict:
+class LNetwork(TypedDict):
+    q: float
+    x_series: float
+    x_shunt: float
+    inductance: float
+    capacitance: float
+    shunt_on: str  # "load" or "source": the side the shunt C sits on
+
+
+def l_network(r_source: float, r_load: float, f: float) -> LNetwork:
     """Low-pass L-network (series L, shunt C) between two resistances at f. The shunt C sits
     across the higher resistance: Q = sqrt(R_high / R_low - 1), X_series = Q R_low,
     X_shunt = R_high / Q."""

@@ -6,6 +6,8 @@ analysis, e.g. the ARRL Handbook's chapter on mixers, and any receiver-design te
 
 from __future__ import annotations
 
+from collections.abc import Iterator
+
 
 def lo_for(f_in: float, f_if: float, injection: str) -> float:
     """Local oscillator for a wanted IF: low side f_LO = f_in - f_IF, high side f_in + f_IF."""
@@ -17,7 +19,7 @@ def image_frequency(f_in: float, f_lo: float) -> float:
     return 2.0 * f_lo - f_in
 
 
-def spur_inputs(f_lo: float, f_if: float, order: int):
+def spur_inputs(f_lo: float, f_if: float, order: int) -> Iterator[tuple[int, int, int, float]]:
     """Every (m, k, s, f_s) with m = 1..order, k = -order..order and s = +1/-1 for which
     m f_s + k f_LO = s f_IF has a positive root f_s. The wanted response and the image are
     m = 1, k = -1; callers drop them."""

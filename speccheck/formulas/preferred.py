@@ -9,7 +9,6 @@ from __future__ import annotations
 import math
 from functools import lru_cache
 
-
 # IEC 60063 preferred number series, written out in full: the published values are NOT the
 # rounded powers of ten (the E24 step 10**(11/24) = 2.61 is published as 2.7, 10**(12/24)
 # = 3.16 as 3.3, and so on).
@@ -33,28 +32,28 @@ E96 = (1.00, 1.02, 1.05, 1.07, 1.10, 1.13, 1.15, 1.18, 1.21, 1.24, 1.27, 1.30, 1
 SERIES = {"E12": E12, "E24": E24, "E96": E96}
 
 
-def nearest_preferred(value: float, series=E24) -> tuple[float, float]:
+def nearest_preferred(value: float, series: tuple[float, ...] = E24) -> tuple[float, float]:
     """(nearest preferred value, its error as a fraction of `value`), nearest on a log scale."""
     if not (value > 0 and math.isfinite(value)):
         raise ValueError("a preferred value needs a positive number")
     decade = math.floor(math.log10(value))
-    best = None
+    best = (math.inf, value)
     for d in (decade - 1, decade, decade + 1):
         for cand in _decade(d, series):
             dist = abs(math.log(cand / value))
-            if best is None or dist < best[0]:
+            if dist < best[0]:
                 best = (dist, cand)
     pick = best[1]
     return pick, pick / value - 1.0
 
 
-def decade_values(exponent: int, series: tuple) -> tuple:
+def decade_values(exponent: int, series: tuple[float, ...]) -> tuple[float, ...]:
     """The series' values from 10^exponent up to (not including) 10^(exponent+1)."""
     return _decade(exponent, series)
 
 
 @lru_cache(maxsize=256)
-def _decade(exponent: int, series: tuple) -> tuple:
+def _decade(exponent: int, series: tuple[float, ...]) -> tuple[float, ...]:
     """The series' values in one decade, rounded to 6 digits so that 4.7e-9 stays 4.7e-9."""
     scale = 10.0 ** exponent
     return tuple(float(f"{mantissa * scale:.6g}") for mantissa in series)

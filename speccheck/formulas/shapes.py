@@ -103,7 +103,7 @@ class Shape:
         if self.kind == "flat":
             return self.width
         ratio = (10 ** (db / 10) - 1) / (10 ** (self.at_db / 10) - 1)
-        return self.width * ratio ** (1 / (2 * self.order))
+        return float(self.width * ratio ** (1 / (2 * self.order)))
 
 
 def gaussian(width: float, at_db: float = 3.0, typical: bool = False) -> Shape:
@@ -127,6 +127,7 @@ def from_class(name: str, width: float, at_db: float | None = None) -> Shape:
         return Shape(width, at, "gaussian", typical=True, what=t.what)
     if t.factor is None:
         return Shape(width, at, "butterworth", 1.0, typical=True, what=t.what)
+    assert t.stop_db is not None  # every class with a shape factor quotes its stopband attenuation
     order = butterworth_order(1.0, t.at_db, t.factor, t.stop_db)
     return Shape(width, at, "butterworth", order, typical=True, what=t.what)
 

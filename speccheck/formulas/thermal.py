@@ -12,7 +12,9 @@ def junction_temperature(t_ambient: float, power: float, theta: float) -> float:
     return t_ambient + power * theta
 
 
-def heat_sink_needed(power: float, tj_max: float, t_ambient: float, theta_jc: float, theta_cs: float) -> float:
+def heat_sink_needed(
+    power: float, tj_max: float, t_ambient: float, theta_jc: float, theta_cs: float
+) -> float:
     """Largest sink-to-ambient resistance that holds T_j at tj_max:
     θ_SA = (T_j,max − T_a)/P − θ_JC − θ_CS (handbook heat-sink selection)."""
     return (tj_max - t_ambient) / power - theta_jc - theta_cs

@@ -18,15 +18,15 @@ FORMATS = ("text", "json", "sarif", "markdown")
 def render(fmt: str, results, settings, color: bool = False, run: RunInfo | None = None) -> str:
     run = run or RunInfo()
     if fmt == "text":
-        from speccheck.reporters.text import render as out
-        return out(results, settings, color=color, run=run)
+        from speccheck.reporters import text
+        return text.render(results, settings, color=color, run=run)
     if fmt == "json":
-        from speccheck.reporters.json import render as out
-        return out(results, settings, run=run)
+        from speccheck.reporters import json
+        return json.render(results, settings, run=run)
     if fmt == "sarif":
-        from speccheck.reporters.sarif import render as out
-        return out(results, settings, run=run)
+        from speccheck.reporters import sarif
+        return sarif.render(results, settings, run=run)
     if fmt == "markdown":
-        from speccheck.reporters.markdown import render as out
-        return out(results, settings, run=run)
+        from speccheck.reporters import markdown
+        return markdown.render(results, settings, run=run)
     raise ValueError(f"unknown format {fmt}")

@@ -109,8 +109,13 @@ def finding_block(f, rule, explained: set) -> list[str]:
 def sheet_block(result) -> list[str]:
     if not result.sheet:
         return []
-    lines = ["", f"<details><summary>Design sheet: {_plural(len(result.sheet), 'derived value')}</summary>", "",
-             "| section | part or path | quantity | value |", "|---|---|---|---|"]
+    lines = [
+        "",
+        f"<details><summary>Design sheet: {_plural(len(result.sheet), 'derived value')}</summary>",
+        "",
+        "| section | part or path | quantity | value |",
+        "|---|---|---|---|",
+    ]
     for e in result.sheet:
         lines.append(f"| {md(e.section)} | {md(e.owner)} | {md(e.value.name)} | {md(e.value.text)} |")
     lines += ["", "</details>"]
@@ -155,8 +160,11 @@ def render(results, settings, run=None) -> str:
     lines = ["# speccheck review", ""]
     cautioned = [r for r in results if r.cautions]
     if cautioned:
-        lines += ["> **Safety first.** These builds can hurt someone. The cautions below apply before anything "
-                  "else in this report.", ">"]
+        lines += [
+            "> **Safety first.** These builds can hurt someone. The cautions below apply before "
+            "anything else in this report.",
+            ">",
+        ]
         by_text: dict = {}
         for r in cautioned:
             for c in r.cautions:
@@ -170,8 +178,10 @@ def render(results, settings, run=None) -> str:
             lines += [f"> - {md(c)}" for c in texts]
             lines.append(">")
         if not any("electrical code" in c for c in by_text):
-            lines.append("> speccheck is a review aid, not an approval: local electrical codes and licensed "
-                         "practice decide.")
+            lines.append(
+                "> speccheck is a review aid, not an approval: local electrical codes and licensed "
+                "practice decide."
+            )
         if lines[-1] == ">":
             lines.pop()
         lines.append("")
@@ -181,9 +191,12 @@ def render(results, settings, run=None) -> str:
         extra.append(f"{counts['waived']} waived")
     if run.baseline:
         extra.append(f"{run.hidden_total} hidden by the baseline")
-    lines.append(f"**{_plural(len(results), 'file')} checked: {_counts_words(counts)}"
-                 + (f" ({', '.join(extra)})" if extra else "") + f"**; fail level: {settings.fail_level}.")
-    waived_by_level = {level: 0 for level in LEVELS}
+    lines.append(
+        f"**{_plural(len(results), 'file')} checked: {_counts_words(counts)}"
+        + (f" ({', '.join(extra)})" if extra else "")
+        + f"**; fail level: {settings.fail_level}."
+    )
+    waived_by_level = dict.fromkeys(LEVELS, 0)
     for r in results:
         for f in r.findings:
             if f.waived:

@@ -15,6 +15,7 @@ import hashlib
 import json
 import os
 from pathlib import Path
+from typing import Any
 from urllib.parse import quote
 
 from speccheck import __version__
@@ -94,11 +95,11 @@ def _value_props(f) -> list:
 
 def result_of(f, index: dict, artifacts: dict, with_baseline: bool) -> dict:
     loc = f.location
-    where = dict(artifact_location(loc.file))
+    where: dict[str, Any] = dict(artifact_location(loc.file))
     if loc.file in artifacts:
         where["index"] = artifacts[loc.file]
     physical = {"artifactLocation": where, "region": region(loc)}
-    location = {"physicalLocation": physical}
+    location: dict[str, Any] = {"physicalLocation": physical}
     if loc.path:
         location["logicalLocations"] = [{"fullyQualifiedName": loc.path, "kind": "member"}]
     props = {"stage": f.stage, "fix": f.fix, "values": _value_props(f)}
@@ -133,7 +134,7 @@ def caution_result(result, text: str, index: dict, artifacts: dict) -> dict:
 
 
 def _note(text: str, level: str = "note", file: str | None = None) -> dict:
-    out = {"level": level, "message": {"text": text}}
+    out: dict[str, Any] = {"level": level, "message": {"text": text}}
     if file:
         out["locations"] = [{"physicalLocation": {"artifactLocation": artifact_location(file)}}]
     return out
@@ -161,7 +162,7 @@ def report(results, settings, run=None) -> dict:
     rules = sorted(registry.load_rules().values(), key=lambda r: r.id)
     index = {r.id: i for i, r in enumerate(rules)}
     artifacts: dict = {}
-    artifact_list = []
+    artifact_list: list[dict[str, Any]] = []
     for r in results:
         if r.path not in artifacts:
             artifacts[r.path] = len(artifact_list)

@@ -36,13 +36,20 @@ def as_text(result) -> str:
 
 
 def as_markdown(result) -> str:
-    lines = [f"## Design sheet: {md_text(result.build_name or result.path)}", "", f"File: {md_code(result.path)}", ""]
+    lines = [
+        f"## Design sheet: {md_text(result.build_name or result.path)}",
+        "",
+        f"File: {md_code(result.path)}",
+        "",
+    ]
     if result.cautions:
         lines += ["**Safety cautions**", ""] + [f"- {md_text(c)}" for c in result.cautions] + [""]
     for section, owners in grouped(result).items():
         lines += [f"### {section}", "", "| part or path | quantity | value |", "|---|---|---|"]
         for owner, entries in owners.items():
-            lines += [f"| {md_text(owner)} | {md_text(e.value.name)} | {md_text(e.value.text)} |" for e in entries]
+            lines += [
+                f"| {md_text(owner)} | {md_text(e.value.name)} | {md_text(e.value.text)} |" for e in entries
+            ]
         lines.append("")
     return "\n".join(lines)
 
@@ -50,10 +57,15 @@ def as_markdown(result) -> str:
 def as_json(result) -> str:
     from speccheck.reporters.json import sheet_dict
 
-    doc = {"report": "speccheck-design-sheet", "version": SHEET_VERSION,
-           "tool": {"name": "speccheck", "version": __version__},
-           "file": result.path, "build": result.build_name, "cautions": list(result.cautions),
-           "entries": [sheet_dict(e) for e in result.sheet]}
+    doc = {
+        "report": "speccheck-design-sheet",
+        "version": SHEET_VERSION,
+        "tool": {"name": "speccheck", "version": __version__},
+        "file": result.path,
+        "build": result.build_name,
+        "cautions": list(result.cautions),
+        "entries": [sheet_dict(e) for e in result.sheet],
+    }
     return json_text(json.dumps(doc, indent=2, ensure_ascii=False)) + "\n"
 
 

@@ -56,7 +56,9 @@ def render(results, settings, color: bool = False, run=None) -> str:
         for f in result.findings:
             out.extend(finding_lines(f, color))
     if run is not None:
-        out.extend(f"{plain(path)}: note: skipped, not a build file (no 'build_spec:' key)" for path in run.skipped)
+        out.extend(
+            f"{plain(path)}: note: skipped, not a build file (no 'build_spec:' key)" for path in run.skipped
+        )
         out.extend(f"{plain(path)}: note: skipped, excluded by the project file" for path in run.excluded)
         out.extend(f"{plain(path)}: note: skipped, {why}" for path, why in run.set_aside)
     out.append(tail_line(results, run))

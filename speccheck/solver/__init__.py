@@ -12,4 +12,14 @@ from speccheck.solver.run import (
     write,
 )
 
-__all__ = ["SERIES_NAMES", "Change", "Option", "Outcome", "Proposal", "SolveTrouble", "read_plan", "solve", "write"]
+__all__ = [
+    "SERIES_NAMES",
+    "Change",
+    "Option",
+    "Outcome",
+    "Proposal",
+    "SolveTrouble",
+    "read_plan",
+    "solve",
+    "write",
+]

@@ -59,13 +59,14 @@ class Proposal:
 
 REMEDIES: dict = {}
 BEST_FEW = 3  # options shown where two parts trade against each other
-ASSUMED_STRAY = 3e-12  # a compact board's stray across a crystal, as freqplan.crystal-load suggests (from memory)
+ASSUMED_STRAY = 3e-12
 
 
 def remedy(rule_id: str):
     def register(fn):
         REMEDIES[rule_id] = fn
         return fn
+
     return register
 
 
@@ -84,22 +85,30 @@ class Situation:
     def sheet(self, section: str, owner: str, name: str) -> float | None:
         """A number a rule published on the design sheet."""
         for entry in self.before.sheet:
-            if entry.section == section and entry.owner == owner and entry.value.name == name \
-                    and isinstance(entry.value.value, (int, float)):
+            if (
+                entry.section == section
+                and entry.owner == owner
+                and entry.value.name == name
+                and isinstance(entry.value.value, (int, float))
+            ):
                 return float(entry.value.value)
         return None
 
     def new_name(self, prefix: str) -> str:
         """The next free reference designator with this prefix (R, C ...), never one proposed already."""
         used = set(self.build.parts) | self.proposed_names
-        numbers = [int(n[len(prefix):]) for n in used if n.startswith(prefix) and n[len(prefix):].isdigit()]
+        numbers = [int(n[len(prefix) :]) for n in used if n.startswith(prefix) and n[len(prefix) :].isdigit()]
         name = f"{prefix}{max(numbers, default=0) + 1}"
         self.proposed_names.add(name)
         return name
 
     def new_net(self, base: str) -> str:
-        known = set(self.build.nets.potentials) | set(self.build.rails) | self.proposed_names | {
-            end for part in self.build.parts.values() for end in part.ends}
+        known = (
+            set(self.build.nets.potentials)
+            | set(self.build.rails)
+            | self.proposed_names
+            | {end for part in self.build.parts.values() for end in part.ends}
+        )
         name, n = base, 1
         while name in known:
             n += 1

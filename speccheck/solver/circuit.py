@@ -35,11 +35,12 @@ def cap_voltage(s: Situation, f: Finding) -> Proposal | None:
     while pick is not None and len(options) < 2:
         options.append(Option([set_or_add(part, "voltage_rating", units.plan_text(pick, "V"))],
                               f"{part.name} rated {units.fmt(pick, 'V')}",
-                              f"{working:.3g} V is {working / pick:.0%} of {units.fmt(pick, 'V')} (keep under "
-                              f"{share:.0%})"))
+                              f"{working:.3g} V is {working / pick:.0%} of {units.fmt(pick, 'V')} (keep "
+                              f"under {share:.0%})"))
         pick = picks.voltage_rating_up(pick * 1.001)
     return Proposal(f, f"{part.name} voltage rating", options,
-                    source="stocked capacitor voltage ratings (R5 of ISO 3, and common practice); derating: the rule's")
+                    source="stocked capacitor voltage ratings (R5 of ISO 3, and common practice); derating: "
+                           "the rule's")
 
 
 def _polarity(s: Situation, f: Finding, positive: str | None, why: str) -> Proposal | None:
@@ -77,7 +78,9 @@ def polarity_reversed(s: Situation, f: Finding) -> Proposal | None:
 @remedy("wiring.speaker-coupling")
 def speaker_coupling(s: Situation, f: Finding) -> Proposal | None:
     part = s.part_for(f)
-    stage = next((st for st in s.build.stages("audio-amp") if part is not None and st.coupling == part.name), None)
+    stage = next(
+        (st for st in s.build.stages("audio-amp") if part is not None and st.coupling == part.name), None
+    )
     load = s.build.part(stage.load) if stage is not None else None
     if part is None or load is None or len(part.ends) != 2:
         return None
@@ -93,8 +96,12 @@ def _swap_end(s: Situation, f: Finding, part, old: str, new: str, why: str, titl
         return None
     index = part.ends.index(old)
     path = part.places["ends"] + (index,)
-    return Proposal(f, title, [Option([Change(path, new)], f"{part.name} ends: {old} -> {new}", why)],
-                    source="common practice (the fix the rule names)")
+    return Proposal(
+        f,
+        title,
+        [Option([Change(path, new)], f"{part.name} ends: {old} -> {new}", why)],
+        source="common practice (the fix the rule names)",
+    )
 
 
 @remedy("wiring.tank-return")
@@ -105,9 +112,16 @@ def tank_return(s: Situation, f: Finding) -> Proposal | None:
     dev = s.build.device(str(pin).split(".")[0]) if pin else None
     if coil is None or not isinstance(far, str) or dev is None or not dev.rail:
         return None
-    return _swap_end(s, f, coil, far, dev.rail,
-                     f"the coil returns {pin} to its supply {dev.rail}; better still through about 10 ohm with "
-                     f"100 nF to ground at the junction", f"{coil.name} return")
+    return _swap_end(
+        s,
+        f,
+        coil,
+        far,
+        dev.rail,
+        f"the coil returns {pin} to its supply {dev.rail}; better still through about 10 ohm "
+        "with 100 nF to ground at the junction",
+        f"{coil.name} return",
+    )
 
 
 @remedy("wiring.crystal-dc")
@@ -126,12 +140,19 @@ def crystal_dc(s: Situation, f: Finding) -> Proposal | None:
         return None
     if abs(nets.dc(dev.rail).volts - pots[pin_index].volts) > 1e-9:
         return None  # the pin does not sit at its supply: returning there would not remove the DC
-    return _swap_end(s, f, part, other, dev.rail,
-                     f"both ends at {pots[pin_index].volts:g} V; {dev.rail} must be bypassed to ground at the crystal",
-                     f"{part.name} return")
+    return _swap_end(
+        s,
+        f,
+        part,
+        other,
+        dev.rail,
+        f"both ends at {pots[pin_index].volts:g} V; {dev.rail} must be bypassed to ground at the crystal",
+        f"{part.name} return",
+    )
 
 
 # ---- power ------------------------------------------------------------------------------------
+
 
 @remedy("power.fuse-size")
 def fuse_size(s: Situation, f: Finding) -> Proposal | None:
@@ -139,10 +160,19 @@ def fuse_size(s: Situation, f: Finding) -> Proposal | None:
     preferred = number(f, "preferred")
     if part is None or not preferred:
         return None
-    return Proposal(f, f"{part.name} rating", [Option(
-        [set_or_add(part, "current_rating", units.plan_text(preferred, "A"))], f"{part.name} {units.fmt(preferred, 'A')}",
-        f"normal current {units.fmt(number(f, 'normal current') or 0.0, 'A')} within the derated share of "
-        f"{units.fmt(preferred, 'A')}")], source="R10 series, IEC 60127-1 Annex A (the rule's pick)")
+    return Proposal(
+        f,
+        f"{part.name} rating",
+        [
+            Option(
+                [set_or_add(part, "current_rating", units.plan_text(preferred, "A"))],
+                f"{part.name} {units.fmt(preferred, 'A')}",
+                f"normal current {units.fmt(number(f, 'normal current') or 0.0, 'A')} within the derated "
+                f"share of {units.fmt(preferred, 'A')}",
+            )
+        ],
+        source="R10 series, IEC 60127-1 Annex A (the rule's pick)",
+    )
 
 
 @remedy("power.fuse-inrush")
@@ -150,10 +180,18 @@ def fuse_inrush(s: Situation, f: Finding) -> Proposal | None:
     part = s.part_for(f)
     if part is None or part.kind != "fuse" or part.speed == "time-lag":
         return None
-    return Proposal(f, f"{part.name} speed", [Option([set_or_add(part, "speed", "time-lag")],
-                                                     f"{part.name} time-lag", "a time-lag fuse rides through the "
-                                                     "charging surge of the bulk capacitor")],
-                    source="IEC 60127-2 time-lag characteristic (the rule's comparison)")
+    return Proposal(
+        f,
+        f"{part.name} speed",
+        [
+            Option(
+                [set_or_add(part, "speed", "time-lag")],
+                f"{part.name} time-lag",
+                "a time-lag fuse rides through the charging surge of the bulk capacitor",
+            )
+        ],
+        source="IEC 60127-2 time-lag characteristic (the rule's comparison)",
+    )
 
 
 @remedy("power.heat")
@@ -171,17 +209,26 @@ def heat(s: Situation, f: Finding) -> Proposal | None:
             change = Change(dev.heat_sink.doc_path, text, key="theta_sa")
         else:
             change = Change(dev.doc_path, {"theta_sa": text}, key="heat_sink")
-        options.append(Option([change], f"{dev.name} heat sink θSA {units.fmt(pick, '°C/W')}",
-                              f"needs {units.fmt(need, '°C/W')} or less; choose a heat sink rated at or below "
-                              f"{units.fmt(pick, '°C/W')} in its mounting"))
-    return Proposal(f, f"{dev.name} heat sink", options,
-                    source="θSA = (Tj,max - Ta)/P - θJC - θCS (the rule's figure), rounded down")
+        options.append(
+            Option(
+                [change],
+                f"{dev.name} heat sink θSA {units.fmt(pick, '°C/W')}",
+                f"needs {units.fmt(need, '°C/W')} or less; choose a heat sink rated at or "
+                f"below {units.fmt(pick, '°C/W')} in its mounting",
+            )
+        )
+    return Proposal(
+        f,
+        f"{dev.name} heat sink",
+        options,
+        source="θSA = (Tj,max - Ta)/P - θJC - θCS (the rule's figure), rounded down",
+    )
 
 
 def _heat_sink_steps(need: float) -> list[float]:
     """Round numbers at or below the needed θSA (heat sinks have no preferred series): two figures."""
     exponent = math.floor(math.log10(need)) - 1
-    first = math.floor(need / 10 ** exponent) * 10 ** exponent
+    first = math.floor(need / 10**exponent) * 10**exponent
     return [float(f"{first:.2g}")] + ([float(f"{first * 0.8:.2g}")] if first * 0.8 > 0 else [])
 
 
@@ -200,18 +247,37 @@ def add_output_network(s: Situation, f: Finding, stage) -> Proposal | None:
     r_name, c_name, middle = s.new_name("R"), s.new_name("C"), s.new_net("OUT_RC")
     ohms, farads = 10.0, 100e-9
     changes = [
-        Change(("parts",), {"kind": "resistor", "value": units.plan_text(ohms, "Ω"), "ends": [outs[0], middle]},
-               key=r_name),
-        Change(("parts",), {"kind": "capacitor", "value": units.plan_text(farads, "F"), "dielectric": "film",
-                            "ends": [middle, ground]}, key=c_name),
+        Change(
+            ("parts",),
+            {"kind": "resistor", "value": units.plan_text(ohms, "Ω"), "ends": [outs[0], middle]},
+            key=r_name,
+        ),
+        Change(
+            ("parts",),
+            {
+                "kind": "capacitor",
+                "value": units.plan_text(farads, "F"),
+                "dielectric": "film",
+                "ends": [middle, ground],
+            },
+            key=c_name,
+        ),
         Change(stage.doc_path, {"resistor": r_name, "capacitor": c_name}, key="output_network"),
     ]
-    return Proposal(f, f"output network of {dev.name}", [Option(
-        changes, f"add {r_name} {units.fmt(ohms, 'Ω')} and {c_name} {units.fmt(farads, 'F')} in series from "
-                 f"{outs[0]} to {ground}",
-        f"turnover {units.fmt(audio.rc_corner(ohms, farads), 'Hz')}, far above the audio band")],
+    return Proposal(
+        f,
+        f"output network of {dev.name}",
+        [
+            Option(
+                changes,
+                f"add {r_name} {units.fmt(ohms, 'Ω')} and {c_name} {units.fmt(farads, 'F')} in series from "
+                f"{outs[0]} to {ground}",
+                f"turnover {units.fmt(audio.rc_corner(ohms, farads), 'Hz')}, far above the audio band",
+            )
+        ],
         note="fit them close to the amplifier's output and ground pins",
-        source="common practice (audio amplifier IC application circuits)")
+        source="common practice (audio amplifier IC application circuits)",
+    )
 
 
 @remedy("audio.input-bypass")
@@ -227,13 +293,32 @@ def input_bypass(s: Situation, f: Finding) -> Proposal | None:
     inputs.sort(key=lambda net: (net not in wired, "plus" not in net and "+" not in net, net))
     name = s.new_name("C")
     farads = 470e-12
-    changes = [Change(("parts",), {"kind": "capacitor", "value": units.plan_text(farads, "F"), "dielectric": "ceramic",
-                                   "ends": [inputs[0], ground]}, key=name),
-               Change(stage.doc_path, name, key="input_bypass")]
-    return Proposal(f, f"RF bypass at {dev.name}'s input", [Option(
-        changes, f"add {name} {units.fmt(farads, 'F')} from {inputs[0]} to {ground}",
-        "shorts RF at the amplifier input; against a 10 kohm source it turns over near 34 kHz")],
-        note="fit it right at the input pin", source="common practice (the rule's fix)")
+    changes = [
+        Change(
+            ("parts",),
+            {
+                "kind": "capacitor",
+                "value": units.plan_text(farads, "F"),
+                "dielectric": "ceramic",
+                "ends": [inputs[0], ground],
+            },
+            key=name,
+        ),
+        Change(stage.doc_path, name, key="input_bypass"),
+    ]
+    return Proposal(
+        f,
+        f"RF bypass at {dev.name}'s input",
+        [
+            Option(
+                changes,
+                f"add {name} {units.fmt(farads, 'F')} from {inputs[0]} to {ground}",
+                "shorts RF at the amplifier input; against a 10 kohm source it turns over near 34 kHz",
+            )
+        ],
+        note="fit it right at the input pin",
+        source="common practice (the rule's fix)",
+    )
 
 
 @remedy("audio.output-network")
@@ -250,8 +335,13 @@ def output_network(s: Situation, f: Finding) -> Proposal | None:
     series = s.series_for("capacitor")
     options = []
     for c in reversed(picks.series_values(series, most / 3, most)[-2:]):
-        options.append(Option([value_change(cap, c, "F")], f"{cap.name} {units.fmt(c, 'F')}",
-                              f"turnover {units.fmt(audio.rc_corner(res.value.si, c), 'Hz')}, above the audio band"))
+        options.append(
+            Option(
+                [value_change(cap, c, "F")],
+                f"{cap.name} {units.fmt(c, 'F')}",
+                f"turnover {units.fmt(audio.rc_corner(res.value.si, c), 'Hz')}, above the audio band",
+            )
+        )
     return Proposal(f, f"output network {cap.name}", options, source=f"f = 1/(2 pi R C); IEC 60063 {series}")
 
 
@@ -264,11 +354,21 @@ def primary_fuse(s: Situation, f: Finding) -> Proposal | None:
     changes = [set_or_add(part, "current_rating", units.plan_text(preferred, "A"))]
     if part.speed != "time-lag":
         changes.append(set_or_add(part, "speed", "time-lag"))
-    return Proposal(f, f"{part.name} primary fuse", [Option(
-        changes, f"{part.name} time-lag {units.fmt(preferred, 'A')}",
-        f"primary current {units.fmt(number(f, 'primary current') or 0.0, 'A')} with room for the switch-on inrush")],
-        note="mains wiring: unplug before work; a competent person fits and checks it, under local electrical codes",
-        source="R10 series, IEC 60127-1 Annex A; time-lag per IEC 60127-2 (the rule's pick)")
+    return Proposal(
+        f,
+        f"{part.name} primary fuse",
+        [
+            Option(
+                changes,
+                f"{part.name} time-lag {units.fmt(preferred, 'A')}",
+                f"primary current {units.fmt(number(f, 'primary current') or 0.0, 'A')} with room for the "
+                "switch-on inrush",
+            )
+        ],
+        note="mains wiring: unplug before work; a competent person fits and checks it, under local "
+        "electrical codes",
+        source="R10 series, IEC 60127-1 Annex A; time-lag per IEC 60127-2 (the rule's pick)",
+    )
 
 
 @remedy("power.reverse-polarity")
@@ -277,15 +377,33 @@ def reverse_polarity(s: Situation, f: Finding) -> Proposal | None:
     supply = s.build.supply
     ground = s.ground()
     fuse = s.build.part(supply.fuse) if supply is not None else None
-    if supply is None or fuse is None or fuse.kind != "fuse" or not supply.rail or supply.rail not in fuse.ends \
-            or ground is None or supply.reverse_protection:
+    if (
+        supply is None
+        or fuse is None
+        or fuse.kind != "fuse"
+        or not supply.rail
+        or supply.rail not in fuse.ends
+        or ground is None
+        or supply.reverse_protection
+    ):
         return None
     name = s.new_name("D")
-    changes = [Change(("parts",), {"kind": "diode", "ends": [ground, supply.rail], "positive": ground}, key=name),
-               set_or_add(supply, "reverse_protection", name)]
-    return Proposal(f, "reverse-polarity protection", [Option(
-        changes, f"add {name}, a shunt diode from {ground} (anode) to {supply.rail} (cathode), behind {fuse.name}",
-        f"off in normal use; reversed, it conducts and opens {fuse.name}")],
-        note=f"a silicon rectifier diode that carries the fault current until {fuse.name} opens (a 1 A class part "
-             f"for a fuse under 1 A; common practice)",
-        source="common practice (the rule's fix)")
+    changes = [
+        Change(("parts",), {"kind": "diode", "ends": [ground, supply.rail], "positive": ground}, key=name),
+        set_or_add(supply, "reverse_protection", name),
+    ]
+    return Proposal(
+        f,
+        "reverse-polarity protection",
+        [
+            Option(
+                changes,
+                f"add {name}, a shunt diode from {ground} (anode) to {supply.rail} (cathode), behind "
+                f"{fuse.name}",
+                f"off in normal use; reversed, it conducts and opens {fuse.name}",
+            )
+        ],
+        note=f"a silicon rectifier diode that carries the fault current until {fuse.name} opens (a 1 A "
+        "class part for a fuse under 1 A; common practice)",
+        source="common practice (the rule's fix)",
+    )

@@ -100,8 +100,8 @@ def solve(path: str | Path, settings: Settings | None = None, series: str = "E12
     outcome = Outcome(path, text, bom, before, new_text=text)
     if not loaded.can_check or loaded.doc is None:
         errors = sum(1 for f in before.findings if f.rule.startswith("input.") and f.level == "error")
-        outcome.refused = (f"the plan has {errors} input error{'s' if errors != 1 else ''}; "
-                           f"fix {'them' if errors != 1 else 'it'} first (`speccheck check {path}` shows where)")
+        outcome.refused = (f"the plan has {errors} input error{'s' if errors != 1 else ''}; fix "
+                           f"{'them' if errors != 1 else 'it'} first (`speccheck check {path}` shows where)")
         return outcome
     situation = base.Situation(loaded, before, settings, series)
     seen: set = set()  # titles: two findings about one thing get one proposal
@@ -164,10 +164,13 @@ def write(outcome: Outcome, settings: Settings | None = None) -> engine.FileResu
     """Write the solved text over the plan (atomically) and check the file again."""
     if outcome.refused:
         raise SolveTrouble(f"{outcome.path}: not written: {outcome.refused}")
-    target = outcome.path.resolve() if outcome.path.is_symlink() else outcome.path  # edit the plan, keep the link
+    # edit the plan, keep the link
+    target = outcome.path.resolve() if outcome.path.is_symlink() else outcome.path
     try:
         mode = target.stat().st_mode & 0o7777
-        files.write_atomic(target, ("\ufeff" if outcome.bom else "") + outcome.new_text, force=True, mode=mode)
+        files.write_atomic(
+            target, ("\ufeff" if outcome.bom else "") + outcome.new_text, force=True, mode=mode
+        )
     except OSError as exc:
         raise SolveTrouble(f"{outcome.path}: cannot be written: {exc.strerror}") from None
     except files.FileTrouble as exc:

@@ -71,8 +71,9 @@ def render_after(outcome: Outcome) -> str:
     before = {f.fingerprint: f for f in outcome.before.findings if not f.waived}
     after = [f for f in outcome.after.findings if not f.waived]
     gone = [f for fp, f in before.items() if fp not in {a.fingerprint for a in after}]
-    head = (f"written {_plain(str(outcome.path))}; checked again: {len(gone)} finding{'s' if len(gone) != 1 else ''} "
-            f"gone, {len(after)} remain{'s' if len(after) == 1 else ''}")
+    head = (f"written {_plain(str(outcome.path))}; checked again: {len(gone)} "
+            f"finding{'s' if len(gone) != 1 else ''} gone, {len(after)} "
+            f"remain{'s' if len(after) == 1 else ''}")
     out = [head]
     for f in gone:
         out.append(f"  gone:   {_at(f)}: {_plain(f.message)}")

@@ -35,7 +35,13 @@ def crystal_load(s: Situation, f: Finding) -> Proposal | None:
         return None
     x = s.build.part(osc.crystal)
     c1, c2 = (s.build.part(ref) for ref in osc.load_caps)
-    if x is None or x.load_capacitance is None or c1 is None or c2 is None or number(f, "specified load") is None:
+    if (
+        x is None
+        or x.load_capacitance is None
+        or c1 is None
+        or c2 is None
+        or number(f, "specified load") is None
+    ):
         return None  # the note that no stray is given is cleared, if at all, with the load
     spec = x.load_capacitance.si
     stray_given = osc.stray is not None
@@ -47,29 +53,55 @@ def crystal_load(s: Situation, f: Finding) -> Proposal | None:
     near = picks.preferred_around(ideal, series, 3)
     # the two stay within 1.5 : 1 so the oscillator's feedback ratio stays near the design's (common practice)
     pairs = {(a, b) if a <= b else (b, a) for a in near for b in near if max(a, b) <= 1.5 * min(a, b)}
-    ranked = sorted(pairs, key=lambda p: (abs(resonators.series_load(p[0], p[1], stray) / spec - 1), p[1] - p[0], p))
+    ranked = sorted(
+        pairs, key=lambda p: (abs(resonators.series_load(p[0], p[1], stray) / spec - 1), p[1] - p[0], p)
+    )
     options = []
     for a, b in ranked[:BEST_FEW]:
         load = resonators.series_load(a, b, stray)
-        fitted = c1.value is not None and c2.value is not None and \
-            {round(c1.value.si, 15), round(c2.value.si, 15)} == {round(a, 15), round(b, 15)}
+        fitted = (
+            c1.value is not None
+            and c2.value is not None
+            and {round(c1.value.si, 15), round(c2.value.si, 15)} == {round(a, 15), round(b, 15)}
+        )
         changes = [] if fitted else [value_change(c1, a, "F"), value_change(c2, b, "F")]
         if not stray_given:
             changes.append(Change(osc.doc_path, units.plan_text(stray, "F"), key="stray"))
-        what = (f"{c1.name} = {c2.name} = {units.fmt(a, 'F')}" if a == b else
-                f"{c1.name} {units.fmt(a, 'F')}, {c2.name} {units.fmt(b, 'F')}")
+        what = (
+            f"{c1.name} = {c2.name} = {units.fmt(a, 'F')}"
+            if a == b
+            else f"{c1.name} {units.fmt(a, 'F')}, {c2.name} {units.fmt(b, 'F')}"
+        )
         what += " as fitted" if fitted else ""
         what += f", stating the {units.fmt(stray, 'F')} stray" if not stray_given else ""
-        options.append(Option(changes, what, f"load {units.fmt(load, 'F')} with {units.fmt(stray, 'F')} stray against "
-                                             f"the specified {units.fmt(spec, 'F')} ({pct(load / spec - 1)})"))
-    note = "" if stray_given else (f"no stray is stated: {units.fmt(stray, 'F')} (a compact board) is assumed and "
-                                   f"written as oscillator.stray; measure or estimate yours")
-    return Proposal(f, f"{x.name} loading capacitors", options, note=note,
-                    source="C_L = C1 C2 / (C1 + C2) + C_stray (crystal makers' application notes); "
-                           f"values from IEC 60063 {series}")
+        options.append(
+            Option(
+                changes,
+                what,
+                f"load {units.fmt(load, 'F')} with {units.fmt(stray, 'F')} stray against "
+                f"the specified {units.fmt(spec, 'F')} ({pct(load / spec - 1)})",
+            )
+        )
+    note = (
+        ""
+        if stray_given
+        else (
+            f"no stray is stated: {units.fmt(stray, 'F')} (a compact board) is "
+            "assumed and written as oscillator.stray; measure or estimate yours"
+        )
+    )
+    return Proposal(
+        f,
+        f"{x.name} loading capacitors",
+        options,
+        note=note,
+        source="C_L = C1 C2 / (C1 + C2) + C_stray (crystal makers' application notes); "
+        f"values from IEC 60063 {series}",
+    )
 
 
 # ---- quadrature tank --------------------------------------------------------------------------
+
 
 @dataclass
 class _Tank:
@@ -84,11 +116,15 @@ class _Tank:
 def _tank(s: Situation, f: Finding) -> _Tank | None:
     """The discriminator tank a finding is about, with the resonance and IF its rules published."""
     stage, part = s.stage_for(f), s.part_for(f)
-    candidates = [stage] if stage is not None and stage.kind == "discriminator" else s.build.stages("discriminator")
+    candidates = (
+        [stage] if stage is not None and stage.kind == "discriminator" else s.build.stages("discriminator")
+    )
     for st in candidates:
         if st.tank is None:
             continue
-        coil, cap, damping = (s.build.part(ref) for ref in (st.tank.inductor, st.tank.capacitor, st.tank.damping))
+        coil, cap, damping = (
+            s.build.part(ref) for ref in (st.tank.inductor, st.tank.capacitor, st.tank.damping)
+        )
         if coil is None or cap is None or coil.value is None or cap.value is None:
             continue
         if stage is None and part not in (coil, cap, damping):
@@ -121,14 +157,26 @@ def tank_tuning(s: Situation, f: Finding) -> Proposal | None:
         return None
     series = s.series_for("capacitor")
     options = []
-    for c in sorted(picks.preferred_around(ideal, series, 2), key=lambda c: (abs(math.log(c / ideal)), c))[:BEST_FEW]:
+    for c in sorted(picks.preferred_around(ideal, series, 2), key=lambda c: (abs(math.log(c / ideal)), c))[
+        :BEST_FEW
+    ]:
         low, high = resonators.resonance(l_high, c + extra), resonators.resonance(l_low, c + extra)
         where = picks.position_in_range(t.f_if, low, high)
-        options.append(Option([value_change(t.cap, c, "F")], f"{t.cap.name} {units.fmt(c, 'F')}",
-                              f"tunes {units.fmt(low, 'Hz')} to {units.fmt(high, 'Hz')}; the IF "
-                              f"{units.fmt(t.f_if, 'Hz')} sits at {where:.0%} of the range (50 % is the centre)"))
-    return Proposal(f, f"tank capacitor {t.cap.name}", options,
-                    source=f"f0 = 1/(2 pi sqrt(L C)) at the geometric centre of the coil's range; IEC 60063 {series}")
+        options.append(
+            Option(
+                [value_change(t.cap, c, "F")],
+                f"{t.cap.name} {units.fmt(c, 'F')}",
+                f"tunes {units.fmt(low, 'Hz')} to {units.fmt(high, 'Hz')}; the IF "
+                f"{units.fmt(t.f_if, 'Hz')} sits at {where:.0%} of the range (50 % is the "
+                "centre)",
+            )
+        )
+    return Proposal(
+        f,
+        f"tank capacitor {t.cap.name}",
+        options,
+        source=f"f0 = 1/(2 pi sqrt(L C)) at the geometric centre of the coil's range; IEC 60063 {series}",
+    )
 
 
 @remedy("freqplan.tank-range")
@@ -148,15 +196,25 @@ def tank_range(s: Situation, f: Finding) -> Proposal | None:
     for r in reversed(picks.series_values(series, most / 3, most)[-BEST_FEW:]):
         rp = resonators.parallel(r, coil_loss) if coil_loss else r
         q = resonators.parallel_q(rp, t.f0, L)
-        options.append(Option([value_change(t.damping, r, "Ω")], f"{t.damping.name} {units.fmt(r, 'Ω')}",
-                              f"loaded Q {q:.3g}, linear range {units.fmt(t.f0 / q, 'Hz')} against the "
-                              f"{units.fmt(need, 'Hz')} needed"))
-    return Proposal(f, f"damping resistor {t.damping.name}", options,
-                    note="a lower resistor widens the linear range and gives less recovered audio",
-                    source=f"Q = R_p / (omega0 L), linear range about f0 / Q (the rule's); IEC 60063 {series}")
+        options.append(
+            Option(
+                [value_change(t.damping, r, "Ω")],
+                f"{t.damping.name} {units.fmt(r, 'Ω')}",
+                f"loaded Q {q:.3g}, linear range {units.fmt(t.f0 / q, 'Hz')} against the "
+                f"{units.fmt(need, 'Hz')} needed",
+            )
+        )
+    return Proposal(
+        f,
+        f"damping resistor {t.damping.name}",
+        options,
+        note="a lower resistor widens the linear range and gives less recovered audio",
+        source=f"Q = R_p / (omega0 L), linear range about f0 / Q (the rule's); IEC 60063 {series}",
+    )
 
 
 # ---- audio ------------------------------------------------------------------------------------
+
 
 def _rc_options(s: Situation, stage, tau: float, what: str) -> list:
     """Options for an RC stage with a wanted time constant: keep C and pick R, or keep R and pick C."""
@@ -166,43 +224,78 @@ def _rc_options(s: Situation, stage, tau: float, what: str) -> list:
     options = []
     for keep, change, unit in ((cap, res, "Ω"), (res, cap, "F")):
         ideal = picks.rc_partner(tau, keep.value.si)
-        for value in sorted(picks.preferred_around(ideal, s.series_for(change.kind), 1),
-                            key=lambda v: abs(math.log(v / ideal))):
+        for value in sorted(
+            picks.preferred_around(ideal, s.series_for(change.kind), 1),
+            key=lambda v: abs(math.log(v / ideal)),
+        ):
             got = value * keep.value.si
-            options.append((abs(got / tau - 1), Option(
-                [value_change(change, value, unit)], f"{change.name} {units.fmt(value, unit)}",
-                f"{what} {units.fmt(got, 's')} (corner {units.fmt(audio.corner_from_tau(got), 'Hz')}) against "
-                f"{units.fmt(tau, 's')} ({pct(got / tau - 1)})")))
+            options.append(
+                (
+                    abs(got / tau - 1),
+                    Option(
+                        [value_change(change, value, unit)],
+                        f"{change.name} {units.fmt(value, unit)}",
+                        f"{what} {units.fmt(got, 's')} (corner "
+                        f"{units.fmt(audio.corner_from_tau(got), 'Hz')}) against {units.fmt(tau, 's')} "
+                        f"({pct(got / tau - 1)})",
+                    ),
+                )
+            )
     return [o for _, o in sorted(options, key=lambda item: item[0])][:BEST_FEW]
 
 
 @remedy("freqplan.de-emphasis")
 def de_emphasis(s: Situation, f: Finding) -> Proposal | None:
-    stage = s.stage_for(f) or next((st for st in s.build.stages("de-emphasis")
-                                    if s.part_for(f) in (s.build.part(st.resistor), s.build.part(st.capacitor))),
-                                   None)
+    stage = s.stage_for(f) or next(
+        (
+            st
+            for st in s.build.stages("de-emphasis")
+            if s.part_for(f) in (s.build.part(st.resistor), s.build.part(st.capacitor))
+        ),
+        None,
+    )
     want = number(f, "wanted")
     if stage is None or not want:
         return None
     if stage.time_constant is not None:
-        return Proposal(f, "de-emphasis time constant", [Option(
-            [Change(stage.places["time_constant"], units.plan_text(want, "s"))],
-            f"time_constant {units.fmt(want, 's')}", "the region's value")], source="ITU-R BS.450-3")
+        return Proposal(
+            f,
+            "de-emphasis time constant",
+            [
+                Option(
+                    [Change(stage.places["time_constant"], units.plan_text(want, "s"))],
+                    f"time_constant {units.fmt(want, 's')}",
+                    "the region's value",
+                )
+            ],
+            source="ITU-R BS.450-3",
+        )
     options = _rc_options(s, stage, want, "de-emphasis")
-    return Proposal(f, "de-emphasis R and C", options, source=f"tau = R C (ITU-R BS.450-3 values); IEC 60063 {s.series}")
+    return Proposal(
+        f, "de-emphasis R and C", options, source=f"tau = R C (ITU-R BS.450-3 values); IEC 60063 {s.series}"
+    )
 
 
 @remedy("freqplan.audio-corner")
 def audio_corner(s: Situation, f: Finding) -> Proposal | None:
-    stage = s.stage_for(f) or next((st for st in s.build.stages("audio-filter")
-                                    if s.part_for(f) in (s.build.part(st.resistor), s.build.part(st.capacitor))),
-                                   None)
+    stage = s.stage_for(f) or next(
+        (
+            st
+            for st in s.build.stages("audio-filter")
+            if s.part_for(f) in (s.build.part(st.resistor), s.build.part(st.capacitor))
+        ),
+        None,
+    )
     top = number(f, "highest audio")
     if stage is None or not top or stage.resistor is None:
         return None
     tau = audio.rc_time_constant(top * 1.2)  # a little above the highest audio frequency
-    return Proposal(f, "audio low-pass R and C", _rc_options(s, stage, tau, "time constant"),
-                    source=f"f = 1/(2 pi R C), corner 1.2 x the highest audio (common practice); IEC 60063 {s.series}")
+    return Proposal(
+        f,
+        "audio low-pass R and C",
+        _rc_options(s, stage, tau, "time constant"),
+        source=f"f = 1/(2 pi R C), corner 1.2 x the highest audio (common practice); IEC 60063 {s.series}",
+    )
 
 
 @remedy("audio.coupling-corner")
@@ -217,10 +310,19 @@ def coupling_corner(s: Situation, f: Finding) -> Proposal | None:
     options = []
     for c in picks.series_values(series, need, need * 3)[:2]:
         corner = audio.rc_corner(load.value.si, c)
-        options.append(Option([value_change(cap, c, "F")], f"{cap.name} {units.fmt(c, 'F')}",
-                              f"corner {units.fmt(corner, 'Hz')} into {load.name} ({load.value.text})"))
-    return Proposal(f, f"coupling capacitor {cap.name}", options,
-                    source=f"f_c = 1/(2 pi R_L C) (circuit theory); IEC 60063 {series}")
+        options.append(
+            Option(
+                [value_change(cap, c, "F")],
+                f"{cap.name} {units.fmt(c, 'F')}",
+                f"corner {units.fmt(corner, 'Hz')} into {load.name} ({load.value.text})",
+            )
+        )
+    return Proposal(
+        f,
+        f"coupling capacitor {cap.name}",
+        options,
+        source=f"f_c = 1/(2 pi R_L C) (circuit theory); IEC 60063 {series}",
+    )
 
 
 @remedy("rfpath.input-match")
@@ -241,20 +343,32 @@ def input_match(s: Situation, f: Finding) -> Proposal | None:
         return None
     if coil is None or cap is None or coil.value is None or cap.value is None:
         return None
-    zin = matching.zin_series_l_shunt_c if stage.topology == "series-l-shunt-c" else matching.zin_shunt_c_series_l
+    zin = (
+        matching.zin_series_l_shunt_c
+        if stage.topology == "series-l-shunt-c"
+        else matching.zin_shunt_c_series_l
+    )
     ranked = []
     for henries in picks.preferred_around(l_ideal, s.series_for("inductor"), 2):
         for farads in picks.preferred_around(c_ideal, s.series_for("capacitor"), 2):
             loss = matching.return_loss_db(zin(freq, henries, farads, rl), rs)
             ranked.append((-loss, henries, farads, loss))
     ranked.sort()
-    options = [Option([value_change(coil, henries, "H"), value_change(cap, farads, "F")],
-                      f"{coil.name} {units.fmt(henries, 'H')}, {cap.name} {units.fmt(farads, 'F')}",
-                      f"return loss {loss:.1f} dB at {units.fmt(freq, 'Hz')} (ideal {units.fmt(l_ideal, 'H')} "
-                      f"and {units.fmt(c_ideal, 'F')})")
-               for _, henries, farads, loss in ranked[:BEST_FEW]]
-    return Proposal(f, f"input network {coil.name} and {cap.name}", options,
-                    source=f"L-network design and its input impedance (the rule's formulas); IEC 60063 {s.series}")
+    options = [
+        Option(
+            [value_change(coil, henries, "H"), value_change(cap, farads, "F")],
+            f"{coil.name} {units.fmt(henries, 'H')}, {cap.name} {units.fmt(farads, 'F')}",
+            f"return loss {loss:.1f} dB at {units.fmt(freq, 'Hz')} (ideal "
+            f"{units.fmt(l_ideal, 'H')} and {units.fmt(c_ideal, 'F')})",
+        )
+        for _, henries, farads, loss in ranked[:BEST_FEW]
+    ]
+    return Proposal(
+        f,
+        f"input network {coil.name} and {cap.name}",
+        options,
+        source=f"L-network design and its input impedance (the rule's formulas); IEC 60063 {s.series}",
+    )
 
 
 @remedy("freqplan.filter-fit")
@@ -262,10 +376,22 @@ def filter_fit(s: Situation, f: Finding) -> Proposal | None:
     """The crystal that puts the IF on the filter's centre: LO = f_in -/+ f_centre, over the multiplier."""
     crystal = s.part_for(f)
     low, high = number(f, "passband low"), number(f, "passband high")
-    if crystal is None or crystal.kind != "crystal" or crystal.frequency is None or low is None or high is None:
+    if (
+        crystal is None
+        or crystal.kind != "crystal"
+        or crystal.frequency is None
+        or low is None
+        or high is None
+    ):
         return None
-    stage = next((st for st in s.build.stages("conversion")
-                  if st.oscillator is not None and st.oscillator.crystal == crystal.name), None)
+    stage = next(
+        (
+            st
+            for st in s.build.stages("conversion")
+            if st.oscillator is not None and st.oscillator.crystal == crystal.name
+        ),
+        None,
+    )
     if stage is None:
         return None
     f_in = s.sheet("conversion", owner(s.build, stage), "input frequency")
@@ -277,10 +403,17 @@ def filter_fit(s: Situation, f: Finding) -> Proposal | None:
     marked = mixing.lo_for(f_in, centre, osc.injection) / mult
     ordered = round(marked / 1e3) * 1e3  # crystals are ordered to the kilohertz (common practice)
     if_after = abs(f_in - ordered * mult)
-    return Proposal(f, f"{crystal.name} frequency", [Option(
-        [Change(crystal.places["frequency"], units.plan_text(ordered, "Hz"))],
-        f"{crystal.name} {units.fmt(ordered, 'Hz')}",
-        f"LO {units.fmt(ordered * mult, 'Hz')}, IF {units.fmt(if_after, 'Hz')} against the filter's centre "
-        f"{units.fmt(centre, 'Hz')}")],
+    return Proposal(
+        f,
+        f"{crystal.name} frequency",
+        [
+            Option(
+                [Change(crystal.places["frequency"], units.plan_text(ordered, "Hz"))],
+                f"{crystal.name} {units.fmt(ordered, 'Hz')}",
+                f"LO {units.fmt(ordered * mult, 'Hz')}, IF {units.fmt(if_after, 'Hz')} against the filter's "
+                f"centre {units.fmt(centre, 'Hz')}",
+            )
+        ],
         note="the load pulling of the crystal is left as it is: check the crystal-load finding too",
-        source="f_LO = f_in - f_IF (low side) or f_in + f_IF (high side), the rule's conversion arithmetic")
+        source="f_LO = f_in - f_IF (low side) or f_in + f_IF (high side), the rule's conversion arithmetic",
+    )

@@ -106,7 +106,8 @@ def _as_wired(build, deck: Deck, names: Names, res, cap, inp: str, out: str, cor
     deck.lines += [(f"* as wired: the same RC with what loads {comment(out)} on the plan's nets "
                    "(rails as AC ground, device pins open)"),
                    f"{drive} {node(inp)} 0 DC 0 AC 1",
-                   f"{names.element('R', res.name + ' wired')} {node(inp)} {node(out)} {number(res.value.si)}",
+                   f"{names.element('R', res.name + ' wired')} {node(inp)} {node(out)} "
+                   f"{number(res.value.si)}",
                    (f"{names.element('C', cap.name + ' wired')} {node(out)} {node(cap.other_end(out))} "
                    f"{number(cap.value.si)}")]
     for part in load:
@@ -127,12 +128,22 @@ def audio_output(build, sheet: Sheet, stage) -> Deck | None:
     cap_n = build.part(net.capacitor) if net is not None else None
     label = stage.label  # the audio rules publish under the stage label
     names = Names(ac_grounds(build))
-    deck = Deck("audio-output", "audio-output" if label == "audio-amp" else file_label("audio-output", label), f"amplifier output side of stage '{label}'",
-                stands_for(build))
+    deck = Deck(
+        "audio-output",
+        "audio-output" if label == "audio-amp" else file_label("audio-output", label),
+        f"amplifier output side of stage '{label}'",
+        stands_for(build),
+    )
     lowest, highest = math.inf, 0.0
     drive = None
-    coupling_ok = (cap is not None and load is not None and cap.kind == "capacitor" and cap.value is not None
-                   and load.value is not None and load.kind in ("speaker", "resistor"))
+    coupling_ok = (
+        cap is not None
+        and load is not None
+        and cap.kind == "capacitor"
+        and cap.value is not None
+        and load.value is not None
+        and load.kind in ("speaker", "resistor")
+    )
     if coupling_ok:
         corner = sheet.get("audio", label, f"coupling {cap.name} into {load.name} corner")
         shared = [n for n in cap.ends if n in load.ends]
@@ -140,40 +151,63 @@ def audio_output(build, sheet: Sheet, stage) -> Deck | None:
             spk = shared[0]
             drive = cap.other_end(spk)
             drive_node, spk_node = names.net(drive or "amplifier output"), names.net(spk)
-            deck.lines += ["* the amplifier output as an ideal source of 1 V",
-                           f"V_AMP {drive_node} 0 DC 0 AC 1",
-                           f"* {comment(described(cap))}",
-                           f"{names.element('C', cap.name)} {drive_node} {spk_node} {number(cap.value.si)}",
-                           f"* {comment(described(load))}: its nominal impedance as a resistor",
-                           (f"{names.element('R', load.name)} {spk_node} "
-                           f"{names.net(load.other_end(spk) or '0')} {number(load.value.si)}"),
-                           f".save v({spk_node})",
-                           f".measure ac coupling_corner when vdb({spk_node})={number(HALF_POWER_DB)} cross=1"]
-            sheet.check(deck, "coupling_corner", "audio", label, f"coupling {cap.name} into {load.name} corner")
+            deck.lines += [
+                "* the amplifier output as an ideal source of 1 V",
+                f"V_AMP {drive_node} 0 DC 0 AC 1",
+                f"* {comment(described(cap))}",
+                f"{names.element('C', cap.name)} {drive_node} {spk_node} {number(cap.value.si)}",
+                f"* {comment(described(load))}: its nominal impedance as a resistor",
+                (
+                    f"{names.element('R', load.name)} {spk_node} "
+                    f"{names.net(load.other_end(spk) or '0')} {number(load.value.si)}"
+                ),
+                f".save v({spk_node})",
+                f".measure ac coupling_corner when vdb({spk_node})={number(HALF_POWER_DB)} cross=1",
+            ]
+            sheet.check(
+                deck, "coupling_corner", "audio", label, f"coupling {cap.name} into {load.name} corner"
+            )
             lowest, highest = min(lowest, corner), max(highest, corner)
     if res_n is not None and cap_n is not None and res_n.value is not None and cap_n.value is not None:
         turnover = sheet.get("audio", label, f"output network {res_n.name} + {cap_n.name} turnover")
         mid = [n for n in res_n.ends if n in cap_n.ends]
         if turnover is not None and mid:
-            first = res_n if drive is not None and drive in res_n.ends else cap_n if drive in cap_n.ends else res_n
+            first = (
+                res_n
+                if drive is not None and drive in res_n.ends
+                else cap_n
+                if drive in cap_n.ends
+                else res_n
+            )
             second = cap_n if first is res_n else res_n
             start = first.other_end(mid[0]) if drive is None or drive not in first.ends else drive
             start_node = names.net(start or "amplifier output")
             if drive is None or start != drive:
-                deck.lines += ["* the amplifier output as an ideal source of 1 V",
-                               f"{names.element('V', 'network drive')} {start_node} 0 DC 0 AC 1"]
+                deck.lines += [
+                    "* the amplifier output as an ideal source of 1 V",
+                    f"{names.element('V', 'network drive')} {start_node} 0 DC 0 AC 1",
+                ]
             mid_node = names.net(mid[0])
             letter = {"resistor": "R", "capacitor": "C"}
-            deck.lines += [f"* output network: {comment(described(first))}",
-                           (f"{names.element(letter[first.kind], first.name)} {start_node} {mid_node} "
-                           f"{number(first.value.si)}"),
-                           f"* {comment(described(second))}",
-                           f"{names.element(letter[second.kind], second.name)} {mid_node} 0 {number(second.value.si)}",
-                           f".save v({mid_node})",
-                           "* the turnover: where the voltage across the capacitor is 3 dB down from the whole",
-                           f".measure ac network_turnover when vdb({mid_node})={number(HALF_POWER_DB)} cross=1"]
-            sheet.check(deck, "network_turnover", "audio", label,
-                        f"output network {res_n.name} + {cap_n.name} turnover")
+            deck.lines += [
+                f"* output network: {comment(described(first))}",
+                (
+                    f"{names.element(letter[first.kind], first.name)} {start_node} {mid_node} "
+                    f"{number(first.value.si)}"
+                ),
+                f"* {comment(described(second))}",
+                f"{names.element(letter[second.kind], second.name)} {mid_node} 0 {number(second.value.si)}",
+                f".save v({mid_node})",
+                "* the turnover: where the voltage across the capacitor is 3 dB down from the whole",
+                f".measure ac network_turnover when vdb({mid_node})={number(HALF_POWER_DB)} cross=1",
+            ]
+            sheet.check(
+                deck,
+                "network_turnover",
+                "audio",
+                label,
+                f"output network {res_n.name} + {cap_n.name} turnover",
+            )
             lowest, highest = min(lowest, turnover), max(highest, turnover)
     if not deck.checks:
         return None

@@ -89,7 +89,8 @@ def crystal(build, sheet: Sheet, stage) -> Deck | None:
         else:
             if tag == "specified":
                 a, b = names.net("specified a"), "0"
-                lines.append(f"{names.element('C', 'specified load')} {a} {b} {number(x.load_capacitance.si)}")
+                lines.append(f"{names.element('C', 'specified load')} {a} {b} "
+                             f"{number(x.load_capacitance.si)}")
             else:
                 more, a, b = _load(names, tag, caps, stray, a_net, b_net)
                 lines += more

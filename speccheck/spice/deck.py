@@ -37,13 +37,15 @@ class Deck:
                 f"* build: {comment(build_name)}",
                 f"* plan: {comment(source_file)}",
                 f"* stands for: {comment(self.stands_for)}",
-                "* written by speccheck from the plan and its design sheet; run it with: ngspice -b THIS_FILE"]
+                "* written by speccheck from the plan and its design sheet; run it with: ngspice -b "
+                "THIS_FILE"]
         head += [f"* {comment(n)}" for n in self.notes]
         if self.checks:
             head.append("* design sheet values this deck measures:")
             from speccheck import units
 
-            head += [f"*   {c.measure}: {comment(f'{c.section} / {c.owner} / {c.name} = {units.fmt(c.value, c.unit)}')}"
+            head += [f"*   {c.measure}: "
+                     f"{comment(f'{c.section} / {c.owner} / {c.name} = {units.fmt(c.value, c.unit)}')}"
                      for c in self.checks]
         return "\n".join([*head, *self.lines, ".end", ""])
 
