@@ -124,7 +124,7 @@ def _inside(path: str, holder: str) -> bool:
 
 
 def _report(result, settings, rule_id, message, w: Waiver, path=""):
-    own = registry.RULES[rule_id] if rule_id in registry.RULES else registry.load_rules()[rule_id]
+    own = registry.load_rules()[rule_id]
     result.findings.append(
         Finding(
             rule_id,

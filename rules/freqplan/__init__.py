@@ -8,6 +8,6 @@ order their rules run.
 
 import importlib
 
-PARTS = ("conversion", "spurs", "resonators", "audio")
+PARTS = ("conversion", "passband", "spurs", "resonators", "audio")
 for _part in PARTS:
     importlib.import_module(f"{__name__}.{_part}")
