@@ -277,11 +277,11 @@ def load_project(path) -> Settings:
     from speccheck import registry, yamlnodes
 
     file = str(path)
-    from speccheck import files
+    from speccheck import files as files_mod
 
     try:
-        text = files.read_bytes_bounded(path, PROJECT_FILE_LIMIT).decode("utf-8-sig")
-    except files.FileTrouble as exc:
+        text = files_mod.read_bytes_bounded(path, PROJECT_FILE_LIMIT).decode("utf-8-sig")
+    except files_mod.FileTrouble as exc:
         raise ConfigError([f"{file}: the project file {exc}"]) from None
     except UnicodeDecodeError as exc:
         raise ConfigError([f"{file}: the project file is not UTF-8 text (byte {exc.start})"]) from None
@@ -355,8 +355,6 @@ def load_project(path) -> Settings:
     if "fail_level" in data:
         settings.fail_level = data["fail_level"]
     if data.get("baseline"):
-        from speccheck import files as files_mod
-
         target, why = files_mod.confined(data["baseline"], settings.root, settings.root, "the project file")
         if target is None:
             reader.error(("baseline",), f"baseline '{data['baseline']}' {why}")
