@@ -321,3 +321,19 @@ def test_as_wired_copy_shows_the_load_of_the_volume_control(tmp_path):
     assert measured["corner_as_wired"] == pytest.approx(thevenin, rel=0.01)
     assert measured["passband_as_wired_db"] == pytest.approx(20 * math.log10(0.5), abs=0.1)
     assert measured["corner"] == pytest.approx(1 / (2 * math.pi * 10e3 * 4.7e-9), rel=TOLERANCE)
+
+
+def test_switched_plan_gets_a_deck_per_position_only_where_the_circuit_differs(tmp_path):
+    """Format 2: S1 puts R7 across the tank only in 'wide', and C13 on the audio filter only in
+    'narrow'; every other sub-circuit is the same in both positions and is written once."""
+    decks, _ = export(EXAMPLES / "bench-demod-selector.yaml", tmp_path)
+    by_label = {d.label: d for d in decks}
+    narrow = "repeater-voice-s1-narrow-upstream-rbw-100k"
+    wide = "broadcast-fm-s1-wide-upstream-rbw-1m"
+    assert {f"tank.{narrow}", f"tank.{wide}", f"audio-filter.{narrow}", f"audio-filter.{wide}"} <= set(by_label)
+    assert by_label[f"tank.{wide}"].stands_for == "broadcast FM; S1 wide; upstream rbw-1m"
+    assert any(line.startswith("R_R7 ") for line in by_label[f"tank.{wide}"].lines)
+    assert not any(line.startswith("R_R7 ") for line in by_label[f"tank.{narrow}"].lines)
+    assert any(line.startswith("C_C13 ") for line in by_label[f"audio-filter.{narrow}"].lines)
+    for once in ("input-match", "audio-output", "switch-on", "de-emphasis"):
+        assert by_label[once].stands_for == "every signal and switch position of this plan"
