@@ -254,10 +254,10 @@ def test_comment_text_stays_on_its_line(text):
     assert len(spice.comment(text * 100)) <= 160
 
 
-@pytest.mark.parametrize("text", [*HOSTILE, "+.control", "9lives", "", "U1.quad", "A-B", "a b"])
+@pytest.mark.parametrize("text", [*HOSTILE, "+.control", "9lives", "", "U1.quad", "A-B", "a b", "DC__RETURN_1"])
 def test_safe_names(text):
     name = spice.safe_name(text)
-    assert re.fullmatch(r"[a-z][a-z0-9_]{0,39}", name), name
+    assert re.fullmatch(r"[a-z][a-z0-9_]{0,39}", name) and "__" not in name, name
 
 
 def test_names_stay_distinct_when_spice_folds_case():
@@ -289,7 +289,7 @@ def test_hostile_text_cannot_reach_a_deck_line(tmp_path, clean_text):
     decks = spice.decks(loaded.build, result.sheet)
     assert len(decks) == 6
     allowed_dot = re.compile(r"^\.(ac|tran|save|measure|end)\b")
-    element = re.compile(r"^[VRLCIEB]_[A-Z0-9_]+ ")
+    element = re.compile(r"^[VRLCIEB]_[A-Z0-9_]+ ")  # R__DC_RETURN_n: the deck's own DC returns
     for deck in decks:
         body = deck.text(result.build_name, str(plan))
         for line in body.splitlines():

@@ -10,7 +10,6 @@ from speccheck.spice.text import Names, comment, number
 
 MOTIONAL_OHMS = 1.0  # not in the plan; a small motional resistance does not move the resonances
 TWO_PI = 2 * math.pi
-DC_RETURN = 1e12  # ohm
 
 
 def _crystal(names: Names, tag: str, a: str, b: str, x, motional_l: float) -> list:
@@ -105,10 +104,6 @@ def crystal(build, sheet: Sheet, stage) -> Deck | None:
               f".measure ac shift_hz param='(f_wired/f_specified-1)*{number(fx)}'",
               # from just below the marked frequency to above the load resonances, in steps of 0.05 ppm
               f".ac lin 42001 {number(fx * (1 - 100e-6))} {number(fx * (1 + 2000e-6))}"]
-    # nodes joined to ground only through capacitors need a DC path for the operating point
-    lines.append(f"* {DC_RETURN:g} ohm DC returns for the operating point; they do not touch the AC result")
-    for node in sorted(set(names.nodes.values()) - {"0"}):
-        lines.append(f"{names.element('R', f'dc return {node}')} {node} 0 {number(DC_RETURN)}")
     sheet.check(deck, "pulling_specified", "crystal", x.name, "pulling at the specified load")
     sheet.check(deck, "pulling_wired", "crystal", x.name, "pulling at the actual load")
     sheet.check(deck, "shift_ppm", "crystal", x.name, "shift from the specified frequency")

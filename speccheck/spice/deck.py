@@ -47,7 +47,43 @@ class Deck:
             head += [f"*   {c.measure}: "
                      f"{comment(f'{c.section} / {c.owner} / {c.name} = {units.fmt(c.value, c.unit)}')}"
                      for c in self.checks]
-        return "\n".join([*head, *self.lines, ".end", ""])
+        return "\n".join([*head, *self.lines, *dc_returns(self.lines), ".end", ""])
+
+
+DC_RETURN = 1e12  # ohm: a DC path for the operating point that the AC result does not feel
+_CONDUCTS = {"R", "L", "V", "E", "B"}  # element letters whose first two nodes are joined at DC
+
+
+def dc_returns(lines: list) -> list:
+    """A very large resistor to ground (named with a double underscore, which no safe name has)
+    from every node with no DC path there (a node joined to
+    the rest only by capacitors or a current source): the operating point ngspice finds before
+    an AC sweep needs one, and without it prints a long round of gmin-stepping warnings."""
+    joined: dict = {}
+
+    def root(node):
+        while joined.get(node, node) != node:
+            node = joined[node]
+        return node
+
+    nodes = []
+    for line in lines:
+        words = line.split()
+        if len(words) < 3 or line.startswith(("*", ".")):
+            continue
+        a, b = words[1], words[2]
+        nodes += [a, b]
+        if line[0] in _CONDUCTS:
+            joined[root(a)] = root(b)
+    floating = sorted({n for n in nodes if root(n) != root("0")})
+    if not floating:
+        return []
+    out = [f"* {DC_RETURN:g} ohm DC returns for the operating point; they do not touch the AC result"]
+    groups: dict = {}
+    for n in floating:
+        groups.setdefault(root(n), n)
+    out += [f"R__DC_RETURN_{i} {n} 0 {DC_RETURN:g}" for i, n in enumerate(groups.values(), 1)]
+    return out
 
 
 class Sheet:

@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 import re
 
-_UNSAFE = re.compile(r"[^a-z0-9_]+")
+_UNSAFE = re.compile(r"[^a-z0-9]+")
 _LONGEST_NAME = 40
 _LONGEST_COMMENT = 160
 _ASCII_FOR = {"µ": "u", "Ω": "ohm", "°": "deg", "±": "+/-", "·": "*", "²": "^2", "−": "-", "–": "-",
@@ -69,7 +69,7 @@ class Names:
         name, n = base, 1
         while name in self.taken:
             n += 1
-            name = f"{base[:_LONGEST_NAME - 4]}_{n}"
+            name = f"{base[:_LONGEST_NAME - 4].rstrip('_')}_{n}"
         self.taken.add(name)
         return name
 
