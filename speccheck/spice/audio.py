@@ -147,7 +147,7 @@ def audio_output(build, sheet: Sheet, stage) -> Deck | None:
     if coupling_ok:
         corner = sheet.get("audio", label, f"coupling {cap.name} into {load.name} corner")
         shared = [n for n in cap.ends if n in load.ends]
-        if corner is not None and shared:
+        if corner is not None and shared and load.other_end(shared[0]) in names.grounds:
             spk = shared[0]
             drive = cap.other_end(spk)
             drive_node, spk_node = names.net(drive or "amplifier output"), names.net(spk)
