@@ -254,7 +254,8 @@ def test_comment_text_stays_on_its_line(text):
     assert len(spice.comment(text * 100)) <= 160
 
 
-@pytest.mark.parametrize("text", [*HOSTILE, "+.control", "9lives", "", "U1.quad", "A-B", "a b", "DC__RETURN_1"])
+@pytest.mark.parametrize("text", [*HOSTILE, "+.control", "9lives", "", "U1.quad", "A-B", "a b",
+                                  "DC__RETURN_1"])
 def test_safe_names(text):
     name = spice.safe_name(text)
     assert re.fullmatch(r"[a-z][a-z0-9_]{0,39}", name) and "__" not in name, name
@@ -330,7 +331,8 @@ def test_switched_plan_gets_a_deck_per_position_only_where_the_circuit_differs(t
     by_label = {d.label: d for d in decks}
     narrow = "repeater-voice-s1-narrow-upstream-rbw-100k"
     wide = "broadcast-fm-s1-wide-upstream-rbw-1m"
-    assert {f"tank.{narrow}", f"tank.{wide}", f"audio-filter.{narrow}", f"audio-filter.{wide}"} <= set(by_label)
+    wanted = {f"tank.{narrow}", f"tank.{wide}", f"audio-filter.{narrow}", f"audio-filter.{wide}"}
+    assert wanted <= set(by_label)
     assert by_label[f"tank.{wide}"].stands_for == "broadcast FM; S1 wide; upstream rbw-1m"
     assert any(line.startswith("R_R7 ") for line in by_label[f"tank.{wide}"].lines)
     assert not any(line.startswith("R_R7 ") for line in by_label[f"tank.{narrow}"].lines)
