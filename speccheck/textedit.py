@@ -52,14 +52,19 @@ _NON_STR_PLAIN = re.compile(
     r"~|null|Null|NULL|true|True|TRUE|false|False|FALSE"
     r"|[-+]?[0-9]+|0o[0-7]+|0x[0-9a-fA-F]+"
     r"|[-+]?(\.[0-9]+|[0-9]+(\.[0-9]*)?)([eE][-+]?[0-9]+)?"
-    r"|[-+]?\.(inf|Inf|INF)|\.(nan|NaN|NAN)")  # YAML 1.2.2 section 10.3.2, as yamlnodes resolves
+    r"|[-+]?\.(inf|Inf|INF)|\.(nan|NaN|NAN)"
+)  # YAML 1.2.2 section 10.3.2, as yamlnodes resolves
 
 
 def _printable(ch: str) -> bool:
     """YAML 1.2.2 section 5.1 printable characters, less the breaks and the byte-order mark."""
     code = ord(ch)
-    return (0x20 <= code <= 0x7E or 0xA0 <= code <= 0xD7FF or 0xE000 <= code <= 0xFFFD
-            or 0x10000 <= code <= 0x10FFFF) and ch not in "\u2028\u2029\ufeff"
+    return (
+        0x20 <= code <= 0x7E
+        or 0xA0 <= code <= 0xD7FF
+        or 0xE000 <= code <= 0xFFFD
+        or 0x10000 <= code <= 0x10FFFF
+    ) and ch not in "\u2028\u2029\ufeff"
 
 
 _ESCAPES = {"\\": "\\\\", '"': '\\"', "\t": "\\t", "\n": "\\n", "\r": "\\r", "\x00": "\\0"}
@@ -103,8 +108,11 @@ def render(value: Value, style: str = "plain", *, flow: bool = False) -> str:
     """Text for a value, in `style` ('plain', "'", '"') where that style can hold it; a dict or a
     list becomes a flow collection."""
     if isinstance(value, dict):
-        return "{" + ", ".join(f"{render_key(str(k), flow=True)}: {render(v, flow=True)}"
-                               for k, v in value.items()) + "}"
+        return (
+            "{"
+            + ", ".join(f"{render_key(str(k), flow=True)}: {render(v, flow=True)}" for k, v in value.items())
+            + "}"
+        )
     if isinstance(value, list | tuple):
         return "[" + ", ".join(render(v, flow=True) for v in value) + "]"
     if isinstance(value, bool):
@@ -132,6 +140,7 @@ def render_key(key: str, *, flow: bool) -> str:
 
 
 # -- finding places in the text ----------------------------------------------------------------
+
 
 def _value_span(doc: yamlnodes.Document, path: tuple) -> yamlnodes.Span:
     span = doc.value_span(path)
@@ -214,6 +223,7 @@ def _entry_path(doc: yamlnodes.Document, path: tuple, after: str | None) -> tupl
 
 # -- the edits ---------------------------------------------------------------------------------
 
+
 def replace_value(text: str, doc: yamlnodes.Document, path: tuple, value: Scalar) -> Edit:
     """Replace the scalar at path, keeping its quoting style where the new value allows it."""
     path = tuple(path)
@@ -238,8 +248,9 @@ def rename_key(text: str, doc: yamlnodes.Document, path: tuple, new_key: str) ->
     return Edit(span.start, span.end, render_key(new_key, flow=_in_flow(doc, path)))
 
 
-def insert_entry(text: str, doc: yamlnodes.Document, path: tuple, key: str, value: Value,
-                 *, after: str | None = None) -> Edit:
+def insert_entry(
+    text: str, doc: yamlnodes.Document, path: tuple, key: str, value: Value, *, after: str | None = None
+) -> Edit:
     """Add `key: value` to the mapping at path, after the entry `after` (default: the last one).
 
     In a block mapping the entry goes on a new line at the mapping's indentation, after the
@@ -300,13 +311,13 @@ def remove_entry(text: str, doc: yamlnodes.Document, path: tuple) -> Edit:
     parent = _value_span(doc, path[:-1])
     end = _last_offset(text, doc, path)
     if parent.style == "flow":  # take the comma before the entry; the first entry takes the one after
-        before = re.compile(r",\s*\Z").search(text[parent.start:key.start])
+        before = re.compile(r",\s*\Z").search(text[parent.start : key.start])
         if before:
             return Edit(parent.start + before.start(), end, "")
         after = re.compile(r"\s*,[ \t]*").match(text, end)
         return Edit(key.start, after.end() if after else end, "")
     start = _line_start(text, key.start)
-    if text[start:key.start].strip(" \t"):
+    if text[start : key.start].strip(" \t"):
         raise EditTrouble(f"{_dotted(path)} shares its line with a list dash; edit it by hand")
     stop = _line_end(text, end)
     stop += 2 if text.startswith("\r\n", stop) else (1 if stop < len(text) else 0)
@@ -320,7 +331,7 @@ def apply(text: str, edits: list[Edit]) -> str:
     for _, edit in ordered:
         if edit.start < pos:
             raise EditTrouble("two edits overlap")
-        out.append(text[pos:edit.start])
+        out.append(text[pos : edit.start])
         out.append(edit.text)
         pos = edit.end
     out.append(text[pos:])

@@ -43,6 +43,7 @@ def _solve_copy(plan, tmp_path, series="E12"):
 
 # ---- every example and starter ---------------------------------------------------------------
 
+
 @pytest.mark.parametrize("plan", PLANS, ids=lambda p: p.name)
 def test_apply_keeps_untouched_lines_and_clears_what_it_claims(plan, tmp_path):
     copy, outcome = _solve_copy(plan, tmp_path)
@@ -77,8 +78,9 @@ def test_beginner_plan_gets_real_parts_and_keeps_its_comments(tmp_path):
     assert "19.5 pF" in crystal.chosen.result
     assert "wiring.speaker-coupling" in {f.rule for p in outcome.taken for f in p.clears}
     after = solver.write(outcome)
-    assert not {"wiring.cap-voltage", "wiring.speaker-coupling", "wiring.tank-return"} & \
-        {f.rule for f in after.findings}
+    assert not {"wiring.cap-voltage", "wiring.speaker-coupling", "wiring.tank-return"} & {
+        f.rule for f in after.findings
+    }
     text = copy.read_text("utf-8")
     assert text.startswith("# A first build plan from a club beginner")
     assert "stray: 3 pF" in text and "voltage_rating: 16 V, ends: [V12, GND], positive: V12}" in text
@@ -88,8 +90,9 @@ def test_same_plan_same_proposal(tmp_path):
     plan = EXAMPLES / "beginner-plan.yaml"
     one, two = solver.solve(plan), solver.solve(plan)
     assert one.new_text == two.new_text
-    assert [(p.title, p.chosen and p.chosen.summary) for p in one.proposals] == \
-        [(p.title, p.chosen and p.chosen.summary) for p in two.proposals]
+    assert [(p.title, p.chosen and p.chosen.summary) for p in one.proposals] == [
+        (p.title, p.chosen and p.chosen.summary) for p in two.proposals
+    ]
 
 
 def test_a_change_that_fires_another_rule_is_held_back():
@@ -121,10 +124,14 @@ def test_fuse_rating_is_the_r10_value():
 
 def test_input_errors_are_never_solved_or_written(tmp_path):
     bad = tmp_path / "bad.yaml"
-    text = (EXAMPLES / "beginner-plan.yaml").read_text("utf-8").replace("value: 33 pF, dielectric: ceramic, "
-                                                                        "ends: [U1.osc_base",
-                                                                        "value: 33 bananas, dielectric: "
-                                                                        "ceramic, ends: [U1.osc_base")
+    text = (
+        (EXAMPLES / "beginner-plan.yaml")
+        .read_text("utf-8")
+        .replace(
+            "value: 33 pF, dielectric: ceramic, ends: [U1.osc_base",
+            "value: 33 bananas, dielectric: ceramic, ends: [U1.osc_base",
+        )
+    )
     bad.write_text(text, "utf-8")
     outcome = solver.solve(bad)
     assert outcome.refused and not outcome.proposals
@@ -158,6 +165,7 @@ def test_series_setting_picks_from_e24_and_e96(tmp_path):
 
 
 # ---- the arithmetic of the picks, against its sources ----------------------------------------
+
 
 def test_e96_is_the_rounded_geometric_series():
     # IEC 60063: the E96 values are 10^(i/96) rounded to three figures.
@@ -227,16 +235,21 @@ BEGINNER = (EXAMPLES / "beginner-plan.yaml").read_text("utf-8")
 
 
 @settings(max_examples=12, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(load=st.sampled_from([8, 10, 12, 12.5, 15, 16, 18, 20, 22, 27, 30, 32]),
-       rating=st.sampled_from(["4 V", "6.3 V", "10 V", "16 V"]),
-       cap=st.sampled_from(["68 pF", "82 pF", "100 pF", "150 pF", "180 pF"]),
-       series=st.sampled_from(["E12", "E24", "E96"]))
+@given(
+    load=st.sampled_from([8, 10, 12, 12.5, 15, 16, 18, 20, 22, 27, 30, 32]),
+    rating=st.sampled_from(["4 V", "6.3 V", "10 V", "16 V"]),
+    cap=st.sampled_from(["68 pF", "82 pF", "100 pF", "150 pF", "180 pF"]),
+    series=st.sampled_from(["E12", "E24", "E96"]),
+)
 def test_generated_plans_never_gain_a_finding(tmp_path_factory, load, rating, cap, series):
-    text = (BEGINNER.replace("load_capacitance: 20 pF", f"load_capacitance: {load} pF")
-            .replace("voltage_rating: 10 V, ends: [V12", f"voltage_rating: {rating}, ends: [V12")
-            .replace("value: 120 pF, dielectric: ceramic, ends: [U1.quad",
-                     f"value: {cap}, dielectric: ceramic, "
-                                                                          "ends: [U1.quad"))
+    text = (
+        BEGINNER.replace("load_capacitance: 20 pF", f"load_capacitance: {load} pF")
+        .replace("voltage_rating: 10 V, ends: [V12", f"voltage_rating: {rating}, ends: [V12")
+        .replace(
+            "value: 120 pF, dielectric: ceramic, ends: [U1.quad",
+            f"value: {cap}, dielectric: ceramic, ends: [U1.quad",
+        )
+    )
     plan = tmp_path_factory.mktemp("gen") / "plan.yaml"
     plan.write_text(text, "utf-8")
     outcome = solver.solve(plan, series=series)
@@ -250,6 +263,7 @@ def test_generated_plans_never_gain_a_finding(tmp_path_factory, load, rating, ca
 
 
 # ---- remedies no shipped example needs, on edited copies ---------------------------------------
+
 
 def _solve_text(tmp_path, text):
     plan = tmp_path / "plan.yaml"
@@ -271,8 +285,10 @@ def _edited(name, *pairs):
 def test_de_emphasis_for_the_region(tmp_path):
     # ITU-R BS.450-3: 50 us in Region 1. With C13 kept, R = 50 us / C; the plan's 5.1 kohm is set
     # to 10 kohm here (100 us), and the proposal must bring tau back to within the rule's 10 %.
-    text = _edited("freq-broadcast-through-narrow.yaml", ("value: 5.1 kohm, ends: [U1.audio, DE1]",
-                                                          "value: 10 kohm, ends: [U1.audio, DE1]"))
+    text = _edited(
+        "freq-broadcast-through-narrow.yaml",
+        ("value: 5.1 kohm, ends: [U1.audio, DE1]", "value: 10 kohm, ends: [U1.audio, DE1]"),
+    )
     outcome = _solve_text(tmp_path, text)
     (proposal,) = [p for p in outcome.taken if p.finding.rule == "freqplan.de-emphasis"]
     # C13 is 10 nF: R = 50 us / 10 nF = 5 kohm; E12 neighbours 4.7 kohm (47 us, -6 %) and 5.6 kohm
@@ -364,3 +380,40 @@ def test_shunt_diode_behind_the_fuse():
     assert "D1: {kind: diode, ends: [GND, V12], positive: GND}" in outcome.new_text
     assert "reverse_protection: D1" in outcome.new_text
     assert proposal.clears[0].rule == "power.reverse-polarity"
+
+
+def test_mains_build_shows_the_safety_cautions_first():
+    from speccheck.solver import show
+
+    text = show.render(solver.solve(EXAMPLES / "mains-bench-unit.yaml"))
+    assert text.splitlines()[0].endswith("SAFETY CAUTIONS for this build:")
+    assert "local electrical codes" in text.split("\n\n")[0]
+
+
+def test_a_failing_remedy_leaves_its_finding_unsolved(monkeypatch):
+    from speccheck.solver import base
+
+    def broken(situation, finding):
+        raise ZeroDivisionError("a remedy bug")
+
+    monkeypatch.setitem(base.REMEDIES, "wiring.cap-voltage", broken)
+    outcome = solver.solve(EXAMPLES / "beginner-plan.yaml")
+    assert {f.rule for f in outcome.unsolved} >= {"wiring.cap-voltage"}
+    assert outcome.taken  # the other remedies still ran
+
+
+def test_coil_range_when_the_capacitor_is_a_trimmer(tmp_path):
+    # Keep C, move the coil: L = 1 / ((2 pi f)^2 C) (parallel resonance, Wikibooks Practical
+    # Electronics); the slug range scales with the coil, so its geometric centre lands on the IF.
+    assert math.isclose(picks.inductance_for(455e3, 120e-12), 1 / ((2 * math.pi * 455e3) ** 2 * 120e-12))
+    text = _edited(
+        "freq-tank-off-if.yaml",
+        (
+            "value: 82 pF, dielectric: polystyrene, ends: [U1.quad, TANK_RET]",
+            "value: 82 pF, adjust: {min: 70 pF, max: 90 pF}, dielectric: polystyrene, "
+            "ends: [U1.quad, TANK_RET]",
+        ),
+    )
+    outcome = _solve_text(tmp_path, text)
+    proposal = next(p for p in outcome.proposals if p.finding.rule == "freqplan.tank-tuning")
+    assert all(o.summary.startswith("L2 ") for o in proposal.options)

@@ -58,12 +58,15 @@ def test_mixed_edits_on_beginner_plan_change_only_their_lines():
 def test_quoting_style_is_kept_and_widened_only_when_needed():
     text = "a: 'x y'\nb: \"p\"\nc: plain\nd: {e: f}\n"
     doc = yamlnodes.parse(text)
-    new = textedit.apply(text, [
-        textedit.replace_value(text, doc, ("a",), "it's"),
-        textedit.replace_value(text, doc, ("b",), "q"),
-        textedit.replace_value(text, doc, ("c",), "12"),  # a str that plain would read as a number
-        textedit.replace_value(text, doc, ("d", "e"), "g, h"),  # a comma inside a flow mapping
-    ])
+    new = textedit.apply(
+        text,
+        [
+            textedit.replace_value(text, doc, ("a",), "it's"),
+            textedit.replace_value(text, doc, ("b",), "q"),
+            textedit.replace_value(text, doc, ("c",), "12"),  # a str that plain would read as a number
+            textedit.replace_value(text, doc, ("d", "e"), "g, h"),  # a comma inside a flow mapping
+        ],
+    )
     assert new == "a: 'it''s'\nb: \"q\"\nc: \"12\"\nd: {e: \"g, h\"}\n"
     assert yamlnodes.parse(new).data == {"a": "it's", "b": "q", "c": "12", "d": {"e": "g, h"}}
 
@@ -78,18 +81,28 @@ def test_crlf_files_keep_their_line_ending():
 def test_block_list_append_and_flow_list_append():
     text = "xs:\n  - one  # first\n  - two\nys: [a, b]\nzs: []\n"
     doc = yamlnodes.parse(text)
-    new = textedit.apply(text, [textedit.append_item(text, doc, ("xs",), "three"),
-                                textedit.append_item(text, doc, ("ys",), "c"),
-                                textedit.append_item(text, doc, ("zs",), "z")])
+    new = textedit.apply(
+        text,
+        [
+            textedit.append_item(text, doc, ("xs",), "three"),
+            textedit.append_item(text, doc, ("ys",), "c"),
+            textedit.append_item(text, doc, ("zs",), "z"),
+        ],
+    )
     assert new == "xs:\n  - one  # first\n  - two\n  - three\nys: [a, b, c]\nzs: [z]\n"
 
 
 def test_remove_entry_block_and_flow():
     text = "m:\n  a: 1  # keep me? no, the line goes\n  b: 2\nf: {x: 1, y: 2, z: 3}\n"
     doc = yamlnodes.parse(text)
-    new = textedit.apply(text, [textedit.remove_entry(text, doc, ("m", "a")),
-                                textedit.remove_entry(text, doc, ("f", "y")),
-                                textedit.remove_entry(text, doc, ("f", "z"))])
+    new = textedit.apply(
+        text,
+        [
+            textedit.remove_entry(text, doc, ("m", "a")),
+            textedit.remove_entry(text, doc, ("f", "y")),
+            textedit.remove_entry(text, doc, ("f", "z")),
+        ],
+    )
     assert yamlnodes.parse(new).data == {"m": {"b": 2}, "f": {"x": 1}}
     assert new == "m:\n  b: 2\nf: {x: 1}\n"
 
@@ -110,10 +123,18 @@ def test_refusals_are_clear():
 
 # -- property tests ----------------------------------------------------------------------------
 
+
 def _scalar_paths(doc: yamlnodes.Document) -> list[tuple]:
-    return sorted((p for p, n in doc.value_nodes.items()
-                   if doc.value_span(p).kind == "scalar" and doc.value_span(p).style in ("plain", "'", '"')
-                   and doc.value_span(p).start < doc.value_span(p).end), key=repr)
+    return sorted(
+        (
+            p
+            for p, n in doc.value_nodes.items()
+            if doc.value_span(p).kind == "scalar"
+            and doc.value_span(p).style in ("plain", "'", '"')
+            and doc.value_span(p).start < doc.value_span(p).end
+        ),
+        key=repr,
+    )
 
 
 def _mapping_paths(doc: yamlnodes.Document) -> list[tuple]:
@@ -126,10 +147,33 @@ def _set(data, path, value):
     data[path[-1]] = value
 
 
-VALUES = st.one_of(st.text(max_size=30), st.integers(-10**9, 10**9), st.booleans(),
-                   st.floats(allow_nan=False, allow_infinity=True),
-                   st.sampled_from(["12 V", "-100 dBm", "4.7 kohm", "a: b", "x #y", "[1]", "null", "1e3",
-                                    "- item", "?q", "it's", "'", '"', "\\", "é µ €", "\u2028", "\t"]))
+VALUES = st.one_of(
+    st.text(max_size=30),
+    st.integers(-(10**9), 10**9),
+    st.booleans(),
+    st.floats(allow_nan=False, allow_infinity=True),
+    st.sampled_from(
+        [
+            "12 V",
+            "-100 dBm",
+            "4.7 kohm",
+            "a: b",
+            "x #y",
+            "[1]",
+            "null",
+            "1e3",
+            "- item",
+            "?q",
+            "it's",
+            "'",
+            '"',
+            "\\",
+            "é µ €",
+            "\u2028",
+            "\t",
+        ]
+    ),
+)
 
 
 @settings(max_examples=150, deadline=None, suppress_health_check=[HealthCheck.too_slow])
@@ -142,7 +186,7 @@ def test_replacing_any_value_reads_back_and_keeps_every_other_line(plan, pick, v
     edit = textedit.replace_value(text, doc, path, value)
     new = textedit.apply(text, [edit])
     after = yamlnodes.parse(new)
-    assert not after.problems, (path, value, new[edit.start - 40:edit.start + 60])
+    assert not after.problems, (path, value, new[edit.start - 40 : edit.start + 60])
     expected = yamlnodes.parse(text).data
     _set(expected, path, value)
     assert after.data == expected
@@ -168,7 +212,7 @@ def test_inserting_an_entry_reads_back_and_keeps_every_line(plan, pick, key, val
     edit = textedit.insert_entry(text, doc, path, key, value)
     new = textedit.apply(text, [edit])
     after = yamlnodes.parse(new)
-    assert not after.problems, (path, key, value, new[edit.start - 40:edit.start + 60])
+    assert not after.problems, (path, key, value, new[edit.start - 40 : edit.start + 60])
     target[key] = value
     assert after.data == expected
     # an insertion touches no existing line, except the flow mapping it goes into

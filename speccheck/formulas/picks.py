@@ -14,8 +14,26 @@ from speccheck.formulas import preferred
 # Rated DC voltages of aluminium electrolytic and ceramic capacitors as sold. 4, 6.3, 10, 16, 25,
 # 40, 63 and 100 V are the R5 series of ISO 3 (which IEC 60384-1 names for rated voltages);
 # 35, 50, 160, 200, 350 and 450 V are the further steps the trade stocks: common practice.
-CAPACITOR_VOLTAGES = (4.0, 6.3, 10.0, 16.0, 25.0, 35.0, 40.0, 50.0, 63.0, 100.0, 160.0, 200.0, 250.0,
-                      350.0, 400.0, 450.0, 500.0, 630.0)
+CAPACITOR_VOLTAGES = (
+    4.0,
+    6.3,
+    10.0,
+    16.0,
+    25.0,
+    35.0,
+    40.0,
+    50.0,
+    63.0,
+    100.0,
+    160.0,
+    200.0,
+    250.0,
+    350.0,
+    400.0,
+    450.0,
+    500.0,
+    630.0,
+)
 
 
 def series_values(name: str, low: float, high: float) -> list[float]:
@@ -58,6 +76,7 @@ def voltage_rating_up(volts: float) -> float | None:
 
 # ---- inverse formulas ---------------------------------------------------------------------
 
+
 def equal_load_capacitors(load: float, stray: float) -> float:
     """Each of two equal loading capacitors that give a crystal `load` with `stray` on the board.
 
@@ -87,6 +106,11 @@ def centre_capacitance(f0: float, l_low: float, l_high: float) -> float:
     f = 1 / (2 pi sqrt(L C)): the range runs 1/(2 pi sqrt(L_high C)) to 1/(2 pi sqrt(L_low C));
     its geometric centre is 1/(2 pi sqrt(sqrt(L_low L_high) C))."""
     return 1.0 / ((2 * math.pi * f0) ** 2 * math.sqrt(l_low * l_high))
+
+
+def inductance_for(f0: float, capacitance: float) -> float:
+    """The inductance that resonates `capacitance` at f0: L = 1 / ((2 pi f0)^2 C)."""
+    return 1.0 / ((2 * math.pi * f0) ** 2 * capacitance)
 
 
 def position_in_range(f: float, low: float, high: float) -> float:

@@ -21,6 +21,7 @@ from speccheck.solver.base import (
 
 # ---- wiring -----------------------------------------------------------------------------------
 
+
 @remedy("wiring.cap-voltage")
 def cap_voltage(s: Situation, f: Finding) -> Proposal | None:
     part = s.part_for(f)
@@ -33,14 +34,20 @@ def cap_voltage(s: Situation, f: Finding) -> Proposal | None:
     options: list[Option] = []
     pick = picks.voltage_rating_up(working / share)
     while pick is not None and len(options) < 2:
-        options.append(Option([set_or_add(part, "voltage_rating", units.plan_text(pick, "V"))],
-                              f"{part.name} rated {units.fmt(pick, 'V')}",
-                              f"{working:.3g} V is {working / pick:.0%} of {units.fmt(pick, 'V')} (keep "
-                              f"under {share:.0%})"))
+        options.append(
+            Option(
+                [set_or_add(part, "voltage_rating", units.plan_text(pick, "V"))],
+                f"{part.name} rated {units.fmt(pick, 'V')}",
+                f"{working:.3g} V is {working / pick:.0%} of {units.fmt(pick, 'V')} (keep under {share:.0%})",
+            )
+        )
         pick = picks.voltage_rating_up(pick * 1.001)
-    return Proposal(f, f"{part.name} voltage rating", options,
-                    source="stocked capacitor voltage ratings (R5 of ISO 3, and common practice); derating: "
-                           "the rule's")
+    return Proposal(
+        f,
+        f"{part.name} voltage rating",
+        options,
+        source="stocked capacitor voltage ratings (R5 of ISO 3, and common practice); derating: the rule's",
+    )
 
 
 def _polarity(s: Situation, f: Finding, positive: str | None, why: str) -> Proposal | None:
@@ -48,8 +55,12 @@ def _polarity(s: Situation, f: Finding, positive: str | None, why: str) -> Propo
     if part is None or not positive:
         return None
     change = set_or_add(part, "positive", positive)
-    return Proposal(f, f"{part.name} polarity", [Option([change], f"{part.name} positive: {positive}", why)],
-                    source="common practice: + toward the higher DC potential")
+    return Proposal(
+        f,
+        f"{part.name} polarity",
+        [Option([change], f"{part.name} positive: {positive}", why)],
+        source="common practice: + toward the higher DC potential",
+    )
 
 
 def _higher_end(s: Situation, part) -> tuple[str, str] | None:

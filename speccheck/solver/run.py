@@ -26,6 +26,8 @@ from pathlib import Path
 
 from speccheck import engine, files, loader, textedit, yamlnodes
 from speccheck.config import Settings
+from speccheck.findings import Finding
+from speccheck.solver import base, circuit, tuning  # noqa: F401  (importing them registers the remedies)
 
 SERIES_NAMES = ("E12", "E24", "E96")
 
@@ -49,9 +51,14 @@ class Outcome:
 
     def diff(self) -> str:
         name = str(self.path)
-        return "".join(difflib.unified_diff(self.text.splitlines(keepends=True),
-                                            self.new_text.splitlines(keepends=True),
-                                            fromfile=name, tofile=f"{name} (solved)"))
+        return "".join(
+            difflib.unified_diff(
+                self.text.splitlines(keepends=True),
+                self.new_text.splitlines(keepends=True),
+                fromfile=name,
+                tofile=f"{name} (solved)",
+            )
+        )
 
 
 class SolveTrouble(Exception):
@@ -89,8 +96,6 @@ def read_plan(path: Path) -> tuple[str, bool]:
 
 
 def solve(path: str | Path, settings: Settings | None = None, series: str = "E12") -> Outcome:
-    from speccheck.solver import base, circuit, tuning  # noqa: F401  (the remedies register)
-
     path = Path(path)
     settings = settings or Settings()
     text, bom = read_plan(path)
@@ -100,16 +105,17 @@ def solve(path: str | Path, settings: Settings | None = None, series: str = "E12
     outcome = Outcome(path, text, bom, before, new_text=text)
     if not loaded.can_check or loaded.doc is None:
         errors = sum(1 for f in before.findings if f.rule.startswith("input.") and f.level == "error")
-        outcome.refused = (f"the plan has {errors} input error{'s' if errors != 1 else ''}; fix "
-                           f"{'them' if errors != 1 else 'it'} first (`speccheck check {path}` shows where)")
+        outcome.refused = (
+            f"the plan has {errors} input error{'s' if errors != 1 else ''}; fix "
+            f"{'them' if errors != 1 else 'it'} first (`speccheck check {path}` shows where)"
+        )
         return outcome
     situation = base.Situation(loaded, before, settings, series)
     seen: set = set()  # titles: two findings about one thing get one proposal
     for finding in before.findings:
         if finding.waived:
             continue
-        remedy = base.REMEDIES.get(finding.rule)
-        proposal = remedy(situation, finding) if remedy else None
+        proposal = _propose(situation, finding)
         if proposal is None or not proposal.options or proposal.title in seen:
             outcome.unsolved.append(finding)
             continue
@@ -119,6 +125,17 @@ def solve(path: str | Path, settings: Settings | None = None, series: str = "E12
     cleared = {id(f) for p in outcome.proposals for f in p.clears}
     outcome.unsolved = [f for f in outcome.unsolved if id(f) not in cleared]
     return outcome
+
+
+def _propose(situation, finding: Finding):
+    """The remedy's proposal; a remedy that fails is a finding left unsolved, never a crash."""
+    remedy = base.REMEDIES.get(finding.rule)
+    if remedy is None:
+        return None
+    try:
+        return remedy(situation, finding)
+    except Exception:  # noqa: BLE001 - one remedy's bug must not stop the others
+        return None
 
 
 def _choose(outcome: Outcome, doc: yamlnodes.Document, check) -> None:

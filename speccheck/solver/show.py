@@ -22,8 +22,9 @@ def _proposal_lines(p: Proposal) -> list[str]:
         for other in others:
             lines.append(f"  or:     {_plain(other.summary)}: {_plain(other.result)}")
         said = [_at(f) for f in p.clears]
-        cleared = ", ".join(dict.fromkeys(f"{at} ({said.count(at)} findings)" if said.count(at) > 1 else at
-                                          for at in said))
+        cleared = ", ".join(
+            dict.fromkeys(f"{at} ({said.count(at)} findings)" if said.count(at) > 1 else at for at in said)
+        )
         lines.append(f"  clears: {cleared}")
     else:
         lines.append(f"  held back: {_plain(p.held)}")
@@ -43,10 +44,22 @@ def render(outcome: Outcome, show_diff: bool = True) -> str:
     live = [f for f in outcome.before.findings if not f.waived]
     taken = outcome.taken
     held = [p for p in outcome.proposals if p.chosen is None]
-    out = [f"{name}: {len(live)} finding{'s' if len(live) != 1 else ''}; "
-           f"{len(taken)} change{'s' if len(taken) != 1 else ''} proposed"
-           + (f", {len(held)} held back" if held else "")
-           + (f", {len(outcome.unsolved)} with no computed remedy" if outcome.unsolved else ""), ""]
+    out = (
+        [
+            f"{name}: SAFETY CAUTIONS for this build:",
+            *(f"  ! {_plain(c)}" for c in outcome.before.cautions),
+            "",
+        ]
+        if outcome.before.cautions
+        else []
+    )
+    out += [
+        f"{name}: {len(live)} finding{'s' if len(live) != 1 else ''}; "
+        f"{len(taken)} change{'s' if len(taken) != 1 else ''} proposed"
+        + (f", {len(held)} held back" if held else "")
+        + (f", {len(outcome.unsolved)} with no computed remedy" if outcome.unsolved else ""),
+        "",
+    ]
     for p in taken:
         out += _proposal_lines(p) + [""]
     if held:
@@ -71,9 +84,11 @@ def render_after(outcome: Outcome) -> str:
     before = {f.fingerprint: f for f in outcome.before.findings if not f.waived}
     after = [f for f in outcome.after.findings if not f.waived]
     gone = [f for fp, f in before.items() if fp not in {a.fingerprint for a in after}]
-    head = (f"written {_plain(str(outcome.path))}; checked again: {len(gone)} "
-            f"finding{'s' if len(gone) != 1 else ''} gone, {len(after)} "
-            f"remain{'s' if len(after) == 1 else ''}")
+    head = (
+        f"written {_plain(str(outcome.path))}; checked again: {len(gone)} "
+        f"finding{'s' if len(gone) != 1 else ''} gone, {len(after)} "
+        f"remain{'s' if len(after) == 1 else ''}"
+    )
     out = [head]
     for f in gone:
         out.append(f"  gone:   {_at(f)}: {_plain(f.message)}")

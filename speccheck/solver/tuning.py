@@ -27,6 +27,7 @@ from speccheck.solver.base import (
 
 # ---- crystal ----------------------------------------------------------------------------------
 
+
 @remedy("freqplan.crystal-load")
 def crystal_load(s: Situation, f: Finding) -> Proposal | None:
     stage = s.stage_for(f)
@@ -147,36 +148,82 @@ def _coil_range(coil) -> tuple[float, float]:
 
 @remedy("freqplan.tank-tuning")
 def tank_tuning(s: Situation, f: Finding) -> Proposal | None:
+    """The tank capacitor that centres the IF in the coil's range; or, keeping the capacitor, the coil
+    (its slug range scaled with it) whose range the IF sits in the middle of."""
     t = _tank(s, f)
-    if t is None or t.f_if is None or t.cap.adjust is not None:
+    if t is None or t.f_if is None:
         return None
     extra = t.stage.tank.extra_capacitance.si if t.stage.tank.extra_capacitance is not None else 0.0
     l_low, l_high = _coil_range(t.coil)
-    ideal = picks.centre_capacitance(t.f_if, l_low, l_high) - extra
-    if ideal <= 0:
-        return None
-    series = s.series_for("capacitor")
-    options = []
-    for c in sorted(picks.preferred_around(ideal, series, 2), key=lambda c: (abs(math.log(c / ideal)), c))[
-        :BEST_FEW
-    ]:
-        low, high = resonators.resonance(l_high, c + extra), resonators.resonance(l_low, c + extra)
-        where = picks.position_in_range(t.f_if, low, high)
-        options.append(
-            Option(
-                [value_change(t.cap, c, "F")],
-                f"{t.cap.name} {units.fmt(c, 'F')}",
-                f"tunes {units.fmt(low, 'Hz')} to {units.fmt(high, 'Hz')}; the IF "
-                f"{units.fmt(t.f_if, 'Hz')} sits at {where:.0%} of the range (50 % is the "
-                "centre)",
-            )
-        )
+    caps = [] if t.cap.adjust is not None else _tank_capacitors(s, t, l_low, l_high, extra)
+    ranked = sorted(
+        caps + _tank_coils(s, t, l_low, l_high, extra),
+        key=lambda item: (abs(item[0] - 0.5) > 0.25 or item[2], abs(item[0] - 0.5)),
+    )
+    # a capacitor that puts the IF in the middle half of the range comes first: it is the easier change
+    options = [option for where, option, _ in ranked if 0.0 < where < 1.0]
     return Proposal(
         f,
-        f"tank capacitor {t.cap.name}",
+        f"tank {t.cap.name} or {t.coil.name}",
         options,
-        source=f"f0 = 1/(2 pi sqrt(L C)) at the geometric centre of the coil's range; IEC 60063 {series}",
+        source=f"f0 = 1/(2 pi sqrt(L C)) at the geometric centre of the tuning range; IEC 60063 "
+        f"{s.series_for('capacitor')}",
     )
+
+
+def _where(t: _Tank, low: float, high: float) -> tuple[float, str]:
+    where = picks.position_in_range(t.f_if or 0.0, low, high)
+    return where, (
+        f"tunes {units.fmt(low, 'Hz')} to {units.fmt(high, 'Hz')}; the IF {units.fmt(t.f_if or 0.0, 'Hz')} "
+        f"sits at {where:.0%} of the range (50 % is the centre)"
+    )
+
+
+def _tank_capacitors(s: Situation, t: _Tank, l_low: float, l_high: float, extra: float) -> list:
+    ideal = picks.centre_capacitance(t.f_if or 0.0, l_low, l_high) - extra
+    if ideal <= 0:
+        return []
+    options = []
+    near = sorted(
+        picks.preferred_around(ideal, s.series_for("capacitor"), 2),
+        key=lambda c: (abs(math.log(c / ideal)), c),
+    )
+    for c in near[:BEST_FEW]:
+        where, said = _where(
+            t, resonators.resonance(l_high, c + extra), resonators.resonance(l_low, c + extra)
+        )
+        options.append(
+            (where, Option([value_change(t.cap, c, "F")], f"{t.cap.name} {units.fmt(c, 'F')}", said), False)
+        )
+    return options
+
+
+def _tank_coils(s: Situation, t: _Tank, l_low: float, l_high: float, extra: float) -> list:
+    """A coil of the series near the one that centres the IF, its adjust range scaled in proportion."""
+    c_total = t.cap.value.si + extra
+    nominal = t.coil.value.si
+    ideal = picks.inductance_for(t.f_if or 0.0, c_total) * nominal / math.sqrt(l_low * l_high)
+    options = []
+    near = sorted(
+        picks.preferred_around(ideal, s.series_for("inductor"), 1), key=lambda v: abs(math.log(v / ideal))
+    )
+    for henries in near[:2]:
+        scale = henries / nominal
+        low, high = (
+            resonators.resonance(l_high * scale, c_total),
+            resonators.resonance(l_low * scale, c_total),
+        )
+        changes = [value_change(t.coil, henries, "H")]
+        span = ""
+        adjust = t.coil.places.get("adjust")
+        if adjust is not None and t.coil.adjust.min is not None and t.coil.adjust.max is not None:
+            for end in ("min", "max"):
+                q = getattr(t.coil.adjust, end)
+                changes.append(Change(tuple(adjust) + (end,), units.plan_text(q.si * scale, "H", q.text)))
+            span = f" (slug {units.fmt(l_low * scale, 'H')} to {units.fmt(l_high * scale, 'H')})"
+        where, said = _where(t, low, high)
+        options.append((where, Option(changes, f"{t.coil.name} {units.fmt(henries, 'H')}{span}", said), True))
+    return options
 
 
 @remedy("freqplan.tank-range")
