@@ -134,7 +134,7 @@ def _propose(situation, finding: Finding):
         return None
     try:
         return remedy(situation, finding)
-    except Exception:  # noqa: BLE001 - one remedy's bug must not stop the others
+    except Exception:
         return None
 
 
