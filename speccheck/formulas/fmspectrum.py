@@ -13,7 +13,8 @@ from the filter's centre. The worst case for a voice or broadcast channel is the
 modulating frequency at full deviation (the widest single-tone spectrum that fits the
 channel's Carson band), so that is the tone the rules test with.
 
-scipy.special.jv computes J_n; scipy is imported only inside the functions that need it.
+mpmath.besselj computes J_n (a small pure-Python library: a plain check must not pay for a
+large numerical package's start-up); the tests cross-check it with scipy.special.jv.
 """
 
 from __future__ import annotations
@@ -27,14 +28,14 @@ NEGLIGIBLE = 1e-9
 
 def sideband_powers(beta: float) -> list[tuple[int, float]]:
     """(n, J_n(β)²) for every line that carries more than NEGLIGIBLE of the power."""
-    from scipy.special import jv  # heavy import, only when a spectrum is wanted
+    from mpmath import besselj  # imported only when a spectrum is wanted
 
     if beta < 0 or not math.isfinite(beta):
         raise ValueError("a modulation index must be a finite number, zero or more")
     top = int(beta + 20 + 3 * math.sqrt(beta + 1))  # J_n falls off fast beyond n = β + 1
     lines = []
     for n in range(-top, top + 1):
-        p = float(jv(n, beta)) ** 2
+        p = float(besselj(n, beta)) ** 2
         if p > NEGLIGIBLE or n == 0:
             lines.append((n, p))
     return lines
