@@ -115,10 +115,17 @@ def _as_wired(build, deck: Deck, names: Names, res, cap, inp: str, out: str, cor
                        (f"{names.element(PASSIVE[part.kind], part.name + ' wired')} {node(part.ends[0])} "
                        f"{node(part.ends[1])} {number(part.value.si)}")]
     deck.lines += [f".save v({node(out)})",
-                   f".measure ac corner_as_wired when vp({node(out)})={number(-EIGHTH_TURN)} cross=1",
-                   f".measure ac passband_as_wired_db find vdb({node(out)}) at={number(corner / 10)}"]
-    deck.notes.append(f"as wired, {', '.join(p.name for p in load)} load the output: corner_as_wired shows "
-                      "where that moves the corner (not a design-sheet value)")
+                   f".measure ac passband_as_wired_db find vdb({node(out)}) at={number(corner / 10)}",
+                   f".measure ac at_corner_as_wired_db find vdb({node(out)}) at={number(corner)}"]
+    listed = ", ".join(p.name for p in load)
+    if any(p.kind == "capacitor" and any(e in names.grounds for e in p.ends) for p in load):
+        # another capacitor to ground in the load makes a second pole: 45 degrees is no corner there
+        deck.notes.append(f"as wired, {listed} load the output; compare at_corner_as_wired_db with "
+                          "passband_as_wired_db (3 dB apart when the load leaves the corner where it was)")
+        return
+    deck.lines.append(f".measure ac corner_as_wired when vp({node(out)})={number(-EIGHTH_TURN)} cross=1")
+    deck.notes.append(f"as wired, {listed} load the output: corner_as_wired shows where that moves the "
+                      "corner (not a design-sheet value)")
 
 
 def audio_output(build, sheet: Sheet, stage) -> Deck | None:
