@@ -338,6 +338,74 @@ def schema(kind, version):
 
 
 @main.command()
+@click.argument("name", required=False)
+@click.option("--build", "build_file", type=click.Path(dir_okay=False), default=None,
+              help="Also look in this build file's own profiles and its parts files.")
+def profile(name, build_file):
+    """Show a device profile's values and pins (built in, or declared in --build FILE); no NAME lists them."""
+    from speccheck import loader, profileview
+
+    profiles = dict(loader.builtin_profiles())
+    if build_file:
+        loaded = loader.load(build_file)
+        if loaded.build is None:
+            for f in loaded.findings[:5]:
+                click.echo(f"{f.location.file}:{f.location.line}:{f.location.col}: {f.level} {f.rule} "
+                           f"{_plain(f.message)}", err=True)
+            _trouble(f"{_plain(build_file)}: cannot read its profiles")
+        profiles = loaded.build.profiles
+    if not name:
+        click.echo("\n".join(profileview.listing(profiles)))
+        return
+    if name not in profiles:
+        import difflib
+
+        close = difflib.get_close_matches(name, list(profiles), n=1)
+        _trouble(f"no profile '{_plain(name)}'{f'; did you mean {close[0]!r}?' if close else ''} "
+                 "(`speccheck profile` lists them)")
+    click.echo("\n".join(_plain(line) for line in profileview.lines(profiles[name])))
+
+
+@main.command()
+@click.argument("path", type=click.Path(dir_okay=False))
+@click.option("--output", "-o", type=click.Path(dir_okay=False), default=None,
+              help="Write the format-2 plan to this file instead of standard output.")
+@click.option("--in-place", is_flag=True, help="Rewrite the file itself (atomically).")
+@_force_option
+def upgrade(path, output, in_place, force):
+    """Rewrite a format-1 build file as format 2, keeping its comments, order and layout."""
+    import os
+
+    from speccheck import files, yamlnodes
+    from speccheck.upgrade import upgrade_text
+
+    if output and in_place:
+        _trouble("give either --output or --in-place, not both")
+    try:
+        raw = files.read_bytes_bounded(path, yamlnodes.MAX_BYTES)
+        text = raw.decode("utf-8-sig")
+    except files.FileTrouble as exc:
+        _trouble(f"{_plain(path)} {exc}")
+    except UnicodeDecodeError:
+        _trouble(f"{_plain(path)} is not UTF-8 text")
+    done = upgrade_text(text)
+    if done.trouble:
+        _trouble(f"{_plain(path)}: {done.trouble}")
+    if in_place:
+        try:
+            files.write_atomic(path, done.text, force=True, mode=os.stat(path).st_mode & 0o7777)
+        except files.FileTrouble as exc:
+            _trouble(f"{_plain(path)} {exc}")
+    elif output:
+        _write(output, done.text, force, [path], "format-2 plan")
+    else:
+        click.echo(done.text, nl=False)
+    if in_place or output:
+        for change in done.changes:
+            click.echo(f"{_plain(path)}: {change}", err=True)
+
+
+@main.command()
 @click.option(
     "--layout", default=None, metavar="NAME", help="Which configuration to start from; `--list` shows them."
 )

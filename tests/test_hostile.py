@@ -53,7 +53,7 @@ def with_parts_files(repo: Path, *entries: str) -> Path:
     plan = repo / "builds" / "plan.yaml"
     listed = ", ".join(json.dumps(e) for e in entries)
     plan.write_text(
-        edited(CLEAN.read_text("utf-8"), "build_spec: 1\n", f"build_spec: 1\nparts_files: [{listed}]\n")
+        edited(CLEAN.read_text("utf-8"), "build_spec: 2\n", f"build_spec: 2\nparts_files: [{listed}]\n")
     )
     return plan
 

@@ -113,8 +113,7 @@ def test_bad_switch_references_are_input_errors():
 def test_v1_build_spec_refuses_v2_keys_and_v2_refuses_load_impedance(clean_text):
     text = edited(bench(), "build_spec: 2", "build_spec: 1")
     assert any("unknown key" in f.message for f in of(check(text), "input.schema"))
-    text = edited(clean_text, "build_spec: 1", "build_spec: 2")
-    text = edited(text, "    topology: series-l-shunt-c\n",
+    text = edited(clean_text, "    topology: series-l-shunt-c\n",
                   "    topology: series-l-shunt-c\n    load_impedance: 1.5 kohm\n")
     found = of(check(text), "input.schema")
     assert found and "load_impedance" in found[0].message and "works_into" in found[0].message

@@ -232,7 +232,7 @@ def test_the_baseline_hides_old_findings_and_shows_a_new_one(repo):
     # lines added above the old findings keep them hidden; a new mistake shows
     clean = Path("builds/clean.yaml")
     text = clean.read_text()
-    text = edited(text, "build_spec: 1\n", "# reviewed at the club night\nbuild_spec: 1\n")
+    text = edited(text, "build_spec: 2\n", "# reviewed at the club night\nbuild_spec: 2\n")
     text = edited(text, "ends: [U1.osc_base, V6]", "ends: [U1.osc_base, GND]")
     clean.write_text(text)
     begin = Path("builds/beginner.yaml")
