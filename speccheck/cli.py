@@ -51,8 +51,11 @@ def _gather(paths, settings, build_files_only: bool):
         click.echo(f"speccheck: {plain(path)}: no such file or folder", err=True)
     if found.missing:
         sys.exit(EXIT_TROUBLE)
-    run = RunInfo(skipped=[str(p) for p in found.skipped], config=settings.source,
-                  set_aside=[(str(p), why) for p, why in found.set_aside])
+    run = RunInfo(
+        skipped=[str(p) for p in found.skipped],
+        config=settings.source,
+        set_aside=[(str(p), why) for p, why in found.set_aside],
+    )
     wanted = []
     for f in found.files:
         if settings.wants(f):
@@ -71,8 +74,9 @@ def _write(output: str, text: str, force: bool, protected, what: str):
 
     for other in protected:
         if other and files.same_file(output, other):
-            _trouble(f"{plain(output)}: refusing to write the {what} onto {plain(other)}, which this run "
-                     "reads")
+            _trouble(
+                f"{plain(output)}: refusing to write the {what} onto {plain(other)}, which this run reads"
+            )
     try:
         files.write_atomic(output, text, force=force)
     except files.FileTrouble as exc:
@@ -84,8 +88,14 @@ def _force_option(fn):
 
 
 def _jobs_option(fn):
-    return click.option("--jobs", "-j", type=click.IntRange(min=0), default=1, show_default=True,
-                        help="Check this many files at once in worker processes (0: one per CPU).")(fn)
+    return click.option(
+        "--jobs",
+        "-j",
+        type=click.IntRange(min=0),
+        default=1,
+        show_default=True,
+        help="Check this many files at once in worker processes (0: one per CPU).",
+    )(fn)
 
 
 def _project_options(fn):
@@ -170,8 +180,10 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
 
         baseline = settings.baseline
         if files_mod.not_regular(baseline):
-            _trouble(f"{_plain(baseline)}: the project file names this baseline, but it cannot be read; "
-                     "write it with `speccheck baseline PATHS`")
+            _trouble(
+                f"{_plain(baseline)}: the project file names this baseline, but it cannot be read; "
+                "write it with `speccheck baseline PATHS`"
+            )
     if baseline:
         from speccheck import baseline as baseline_mod
 
@@ -339,8 +351,13 @@ def schema(kind, version):
 
 @main.command()
 @click.argument("name", required=False)
-@click.option("--build", "build_file", type=click.Path(dir_okay=False), default=None,
-              help="Also look in this build file's own profiles and its parts files.")
+@click.option(
+    "--build",
+    "build_file",
+    type=click.Path(dir_okay=False),
+    default=None,
+    help="Also look in this build file's own profiles and its parts files.",
+)
 def profile(name, build_file):
     """Show a device profile's values and pins (built in, or declared in --build FILE); no NAME lists them."""
     from speccheck import loader, profileview
@@ -348,11 +365,15 @@ def profile(name, build_file):
     profiles = dict(loader.builtin_profiles())
     if build_file:
         loaded = loader.load(build_file)
-        if loaded.build is None:
+        if loaded.build is None or not loaded.can_check:
             for f in loaded.findings[:5]:
-                click.echo(f"{f.location.file}:{f.location.line}:{f.location.col}: {f.level} {f.rule} "
-                           f"{_plain(f.message)}", err=True)
+                click.echo(
+                    f"{f.location.file}:{f.location.line}:{f.location.col}: {f.level} {f.rule} "
+                    f"{_plain(f.message)}",
+                    err=True,
+                )
             _trouble(f"{_plain(build_file)}: cannot read its profiles")
+        assert loaded.build is not None
         profiles = loaded.build.profiles
     if not name:
         click.echo("\n".join(profileview.listing(profiles)))
@@ -361,15 +382,22 @@ def profile(name, build_file):
         import difflib
 
         close = difflib.get_close_matches(name, list(profiles), n=1)
-        _trouble(f"no profile '{_plain(name)}'{f'; did you mean {close[0]!r}?' if close else ''} "
-                 "(`speccheck profile` lists them)")
+        _trouble(
+            f"no profile '{_plain(name)}'{f'; did you mean {close[0]!r}?' if close else ''} "
+            "(`speccheck profile` lists them)"
+        )
     click.echo("\n".join(_plain(line) for line in profileview.lines(profiles[name])))
 
 
 @main.command()
 @click.argument("path", type=click.Path(dir_okay=False))
-@click.option("--output", "-o", type=click.Path(dir_okay=False), default=None,
-              help="Write the format-2 plan to this file instead of standard output.")
+@click.option(
+    "--output",
+    "-o",
+    type=click.Path(dir_okay=False),
+    default=None,
+    help="Write the format-2 plan to this file instead of standard output.",
+)
 @click.option("--in-place", is_flag=True, help="Rewrite the file itself (atomically).")
 @_force_option
 def upgrade(path, output, in_place, force):

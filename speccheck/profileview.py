@@ -15,8 +15,12 @@ def _bias(pin) -> str:
         return "not stated"
     if hasattr(pin.dc, "text"):
         return pin.dc.text
-    return {"supply": "at its supply", "half-supply": "at half its supply", "ground": "at ground",
-            "none": "no DC bias"}.get(pin.dc, str(pin.dc))
+    return {
+        "supply": "at its supply",
+        "half-supply": "at half its supply",
+        "ground": "at ground",
+        "none": "no DC bias",
+    }.get(pin.dc, str(pin.dc))
 
 
 def where_from(prof) -> str:
@@ -31,13 +35,18 @@ def lines(prof) -> list[str]:
     out = [f"profile {prof.name}: {prof.cls} ({where_from(prof)})"]
     if prof.description:
         out.append(f"  {' '.join(prof.description.split())}")
-    out.append("  values are TYPICAL for the class, not a datasheet's: declare your own profile before you trust "
-               "a result that depends on them" if prof.typical else "  values as declared (datasheet)")
+    out.append(
+        "  values are TYPICAL for the class, not a datasheet's: declare your own profile before you trust "
+        "a result that depends on them"
+        if prof.typical
+        else "  values as declared (datasheet)"
+    )
     if prof.source:
         out.append(f"  source: {prof.source}")
     shown = [(name, getattr(prof, name)) for name in VALUE_FIELDS if getattr(prof, name) is not None]
-    shown += [(name, getattr(prof, name)) for name in ("output_topology", "output_network")
-              if getattr(prof, name)]
+    shown += [
+        (name, getattr(prof, name)) for name in ("output_topology", "output_network") if getattr(prof, name)
+    ]
     if shown:
         out.append("  values:")
         width = max(len(n) for n, _ in shown)
@@ -60,5 +69,7 @@ def lines(prof) -> list[str]:
 
 def listing(profiles: dict) -> list[str]:
     width = max((len(n) for n in profiles), default=0)
-    return [f"{name:<{width}}  {p.cls:24} {'typical' if p.typical else 'datasheet'}  {where_from(p)}"
-            for name, p in sorted(profiles.items())]
+    return [
+        f"{name:<{width}}  {p.cls:24} {'typical' if p.typical else 'datasheet'}  {where_from(p)}"
+        for name, p in sorted(profiles.items())
+    ]

@@ -31,8 +31,9 @@ class Upgraded:
 def upgrade_text(text: str) -> Upgraded:
     doc = yamlnodes.parse(text)
     if doc.problems or not isinstance(doc.data, dict):
-        return Upgraded(text, trouble="the file is not YAML a build plan can be read from; `speccheck check` "
-                                      "shows where")
+        return Upgraded(
+            text, trouble="the file is not YAML a build plan can be read from; `speccheck check` shows where"
+        )
     spec = doc.data.get("build_spec")
     if spec == 2:
         return Upgraded(text, trouble="the file is already format 2")
@@ -47,18 +48,20 @@ def upgrade_text(text: str) -> Upgraded:
     note(("build_spec",), "build_spec 1 -> 2")
     for i, stage in enumerate(doc.data.get("chain") or []):
         if isinstance(stage, dict) and "load_impedance" in stage:
-            new = LOAD_KEY.get(stage.get("stage"), "works_into")
+            new = LOAD_KEY.get(str(stage.get("stage")), "works_into")
             edits.append(textedit.rename_key(text, doc, ("chain", i, "load_impedance"), new))
             note(("chain", i, "load_impedance"), f"chain[{i}].load_impedance -> {new}")
-    parts = doc.data.get("parts") if isinstance(doc.data.get("parts"), dict) else {}
-    for ref, part in parts.items():
+    parts = doc.data.get("parts")
+    for ref, part in (parts.items() if isinstance(parts, dict) else ()):
         if not isinstance(part, dict) or part.get("kind") != "potentiometer" or "wiper" in part:
             continue
         m = WIPER_NOTE.match(str(part.get("note") or ""))
         if m:
             path = ("parts", ref, "note")
-            edits.append(textedit.rename_key(text, doc, path, "wiper"))
             span = doc.value_span(path)  # a net name reads plain: no quotes
+            if span is None:
+                continue
+            edits.append(textedit.rename_key(text, doc, path, "wiper"))
             edits.append(textedit.Edit(span.start, span.end, m.group("net")))
             note(path, f"parts.{ref}: note \"{part['note']}\" -> wiper: {m.group('net')}")
     try:

@@ -18,13 +18,15 @@ V1_FILES = sorted(V1.glob("*.yaml"))
 
 def shipped(v1: Path) -> Path:
     if v1.name.startswith("starter-"):
-        return ROOT / "speccheck" / "starters" / v1.name[len("starter-"):]
+        return ROOT / "speccheck" / "starters" / v1.name[len("starter-") :]
     return EXAMPLES / v1.name
 
 
 def _seen(result):
-    return ([(f.rule, f.level, f.location.line, f.location.col, f.message) for f in result.findings],
-            [(s.section, s.owner, s.value.name, s.value.text) for s in result.sheet])
+    return (
+        [(f.rule, f.level, f.location.line, f.location.col, f.message) for f in result.findings],
+        [(s.section, s.owner, s.value.name, s.value.text) for s in result.sheet],
+    )
 
 
 @pytest.mark.parametrize("v1", [p for p in V1_FILES if shipped(p).exists()], ids=lambda p: p.name)
@@ -37,8 +39,9 @@ def test_every_shipped_v1_plan_upgrades_to_the_shipped_v2_with_the_same_findings
     # only the edited lines changed; every comment line is still there, byte for byte
     changed = textedit.changed_lines(old, done.text)
     assert 0 < len(changed) <= len(done.changes)
-    assert [line for line in old.splitlines() if line.lstrip().startswith("#")] == \
-        [line for line in done.text.splitlines() if line.lstrip().startswith("#")]
+    assert [line for line in old.splitlines() if line.lstrip().startswith("#")] == [
+        line for line in done.text.splitlines() if line.lstrip().startswith("#")
+    ]
     assert "build_spec: 2" in done.text
 
 
@@ -48,13 +51,17 @@ def test_the_v1_path_still_checks():
 
 
 def test_load_impedance_is_renamed_by_stage_kind():
-    text = ("build_spec: 1  # a comment\nbuild: {name: x}\nparts: {}\nchain:\n"
-            "  - stage: input-match\n    load_impedance: 1.5 kohm   # the chip's input\n"
-            "  - {stage: audio-amp, load_impedance: 8 ohm}\n")
+    text = (
+        "build_spec: 1  # a comment\nbuild: {name: x}\nparts: {}\nchain:\n"
+        "  - stage: input-match\n    load_impedance: 1.5 kohm   # the chip's input\n"
+        "  - {stage: audio-amp, load_impedance: 8 ohm}\n"
+    )
     done = upgrade_text(text)
-    assert done.text == ("build_spec: 2  # a comment\nbuild: {name: x}\nparts: {}\nchain:\n"
-                         "  - stage: input-match\n    works_into: 1.5 kohm   # the chip's input\n"
-                         "  - {stage: audio-amp, load_resistance: 8 ohm}\n")
+    assert done.text == (
+        "build_spec: 2  # a comment\nbuild: {name: x}\nparts: {}\nchain:\n"
+        "  - stage: input-match\n    works_into: 1.5 kohm   # the chip's input\n"
+        "  - {stage: audio-amp, load_resistance: 8 ohm}\n"
+    )
     assert check(done.text).checked
 
 
@@ -95,8 +102,10 @@ def test_profile_command_lists_and_shows_typical_values():
 
 def test_profile_command_reads_a_builds_own_profile(tmp_path):
     plan = tmp_path / "plan.yaml"
-    plan.write_text("build_spec: 2\nbuild: {name: x}\nparts: {}\nprofiles:\n  my-amp:\n    class: op-amp\n"
-                    "    supply_max: 30 V\n    pins:\n      out: {role: output, dc: half-supply}\n")
+    plan.write_text(
+        "build_spec: 2\nbuild: {name: x}\nparts: {}\nprofiles:\n  my-amp:\n    class: op-amp\n"
+        "    supply_max: 30 V\n    pins:\n      out: {role: output, dc: half-supply}\n"
+    )
     shown = CliRunner().invoke(main, ["profile", "my-amp", "--build", str(plan)])
     assert shown.exit_code == 0, shown.output
     assert "values as declared" in shown.output and "supply_max  30 V\n" in shown.output
@@ -107,7 +116,10 @@ def test_the_two_signal_plan_in_v1_keeps_its_v1_findings_and_upgrades_unchanged(
     text = (V1 / "two-signals-single-path.yaml").read_text("utf-8")
     result = check(text, "plan.yaml")
     # one shared tank and one low-pass for both signals: format 1 cannot say a switch changes them
-    assert sorted(f.rule for f in result.findings) == ["freqplan.audio-corner", "freqplan.de-emphasis",
-                                                      "freqplan.tank-range"]
+    assert sorted(f.rule for f in result.findings) == [
+        "freqplan.audio-corner",
+        "freqplan.de-emphasis",
+        "freqplan.tank-range",
+    ]
     assert all(f.signal == "" for f in result.findings)
     assert _seen(result) == _seen(check(upgrade_text(text).text, "plan.yaml"))
