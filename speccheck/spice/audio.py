@@ -179,15 +179,10 @@ def audio_output(build, sheet: Sheet, stage) -> Deck | None:
         turnover = sheet.get("audio", label, f"output network {res_n.name} + {cap_n.name} turnover")
         mid = [n for n in res_n.ends if n in cap_n.ends]
         if turnover is not None and mid:
-            first = (
-                res_n
-                if drive is not None and drive in res_n.ends
-                else cap_n
-                if drive in cap_n.ends
-                else res_n
-            )
+            # the part on the amplifier output comes first (the resistor when neither is on it)
+            first = next((p for p in (res_n, cap_n) if drive is not None and drive in p.ends), res_n)
             second = cap_n if first is res_n else res_n
-            start = first.other_end(mid[0]) if drive is None or drive not in first.ends else drive
+            start = drive if drive is not None and drive in first.ends else first.other_end(mid[0])
             start_node = names.net(start or "amplifier output")
             if drive is None or start != drive:
                 deck.lines += [
