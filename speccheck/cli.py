@@ -542,9 +542,9 @@ def spice(path, folder, force, config, no_config):
 @click.option(
     "--series",
     type=click.Choice(["E12", "E24", "E96"]),
-    default="E12",
-    show_default=True,
-    help="The IEC 60063 series to pick resistors, capacitors and coils from (coils stop at E24).",
+    default=None,
+    help="The IEC 60063 series to pick resistors, capacitors and coils from (coils stop at E24) "
+    "[default: the project file's parts_series, else E12].",
 )
 @click.option(
     "--apply",
@@ -569,7 +569,7 @@ def solve(path, series, apply_changes, config, no_config):
         _trouble(f"{path}: no such file")
     settings = _settings([path], config, no_config)
     try:
-        outcome = solver.solve(path, settings, series)
+        outcome = solver.solve(path, settings, series or settings.parts_series)
     except solver.SolveTrouble as exc:
         _trouble(str(exc))
     click.echo(show.render(outcome), nl=False)

@@ -37,6 +37,7 @@ class Settings:
     source: str = ""  # the project file these came from, if any
     root: str = ""  # the project's root folder (project file's folder, else repository root); "" = cwd
     baseline: str = ""  # the baseline the project file names (a path), if any
+    parts_series: str = "E12"  # the E-series `speccheck solve` picks from
 
     def enabled(self, rule_id: str) -> bool:
         family = rule_id.split(".", 1)[0] + "."
@@ -354,6 +355,8 @@ def load_project(path) -> Settings:
 
     if "fail_level" in data:
         settings.fail_level = data["fail_level"]
+    if "parts_series" in data:
+        settings.parts_series = data["parts_series"]
     if data.get("baseline"):
         target, why = files_mod.confined(data["baseline"], settings.root, settings.root, "the project file")
         if target is None:

@@ -417,3 +417,13 @@ def test_coil_range_when_the_capacitor_is_a_trimmer(tmp_path):
     outcome = _solve_text(tmp_path, text)
     proposal = next(p for p in outcome.proposals if p.finding.rule == "freqplan.tank-tuning")
     assert all(o.summary.startswith("L2 ") for o in proposal.options)
+
+
+def test_project_file_names_the_series(tmp_path):
+    shutil.copyfile(EXAMPLES / "freq-broadcast-through-narrow.yaml", tmp_path / "plan.yaml")
+    (tmp_path / "speccheck-project.yaml").write_text("speccheck_project: 1\nparts_series: E24\n", "utf-8")
+    shown = CliRunner().invoke(main, ["solve", str(tmp_path / "plan.yaml")])
+    assert shown.exit_code == 0, shown.output
+    assert "IEC 60063 E24" in shown.output
+    forced = CliRunner().invoke(main, ["solve", str(tmp_path / "plan.yaml"), "--series", "E96"])
+    assert "IEC 60063 E96" in forced.output
