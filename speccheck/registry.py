@@ -10,6 +10,7 @@ import sys
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
+from types import ModuleType
 
 from speccheck.findings import LEVELS
 
@@ -73,19 +74,25 @@ def rule(id: str, **meta):
 _LOADED = False
 
 
-def _import_families():
+def _import_families() -> ModuleType:
     try:
         return importlib.import_module("speccheck.rules")
     except ModuleNotFoundError:
         # A source checkout run without installing: rules/ sits beside speccheck/.
-        here = Path(__file__).resolve().parent.parent / "rules" / "__init__.py"
-        spec = importlib.util.spec_from_file_location("speccheck.rules", here,
-                                                      submodule_search_locations=[str(here.parent)])
-        assert spec is not None and spec.loader is not None
-        module = importlib.util.module_from_spec(spec)
-        sys.modules["speccheck.rules"] = module
-        spec.loader.exec_module(module)
-        return module
+        return load_folder(Path(__file__).resolve().parent.parent / "rules")
+
+
+def load_folder(folder: Path) -> ModuleType:
+    """Make `folder` (a rules/ tree) the package speccheck.rules, before anything imports it:
+    a source checkout that was not installed, or a mutation run's copy of the tree."""
+    here = folder / "__init__.py"
+    spec = importlib.util.spec_from_file_location("speccheck.rules", here,
+                                                  submodule_search_locations=[str(folder)])
+    assert spec is not None and spec.loader is not None
+    module = importlib.util.module_from_spec(spec)
+    sys.modules["speccheck.rules"] = module
+    spec.loader.exec_module(module)
+    return module
 
 
 def load_rules() -> dict[str, Rule]:

@@ -10,6 +10,10 @@ from speccheck import engine
 from speccheck.config import Settings
 
 ROOT = Path(__file__).resolve().parent.parent
+if ROOT.name == "mutants":  # a mutation run's copy: check with its (mutated) rules/, not the installed ones
+    from speccheck import registry
+
+    registry.load_folder(ROOT / "rules")
 EXAMPLES = ROOT / "examples"
 CLEAN = EXAMPLES / "vhf-monitor-455k.yaml"
 

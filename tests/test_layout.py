@@ -6,6 +6,8 @@ from __future__ import annotations
 import ast
 from pathlib import Path
 
+import pytest
+
 ROOT = Path(__file__).resolve().parent.parent
 MAX_LINES = 600
 LONGER_ALLOWED: dict[str, str] = {  # module path -> why it may be longer (for now)
@@ -70,6 +72,7 @@ def test_formulas_import_no_model_yaml_or_pint():
             assert not bad, f"{path.name} imports {bad}"
 
 
+@pytest.mark.skipif(ROOT.name == "mutants", reason="a mutation run's copy carries its mutants inline")
 def test_no_module_over_the_size_limit():
     over = {
         str(p.relative_to(ROOT)): n

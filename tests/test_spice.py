@@ -33,9 +33,9 @@ TOLERANCE = 0.005  # 0.5 %
 REASONS = {
     ("current-limited supply", "i2t"): (
         "at-most-10%-below",
-        "a battery or bench supply that limits the inrush: the sheet gives I*C*V, the upper bound of "
-        "a current-limited charge (rules/power), while the simulated charge ends on an exponential "
-        "tail below the limit, so its I2t is a few per cent lower (power-hot-amplifier: 0.1139 "
+        "a battery or bench supply that limits the inrush: the sheet gives I*C*V, the upper bound of a "
+        "current-limited charge (speccheck/formulas/fuses.py), while the simulated charge ends on an "
+        "exponential tail below the limit, so its I2t is a few per cent lower (power-hot-amplifier: 0.1139 "
         "against 0.1188 A2s)"),
 }
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from speccheck.budget import RESERVOIR_MIN, ambient, budget, bulk_capacitors, fused_rail, supply_fuse
 from speccheck.findings import Value
-from speccheck.formulas.fuses import FUSE_GATES, awg_ampacity, fuse_gate_i2t, inrush, rerate
+from speccheck.formulas.fuses import FUSE_GATES, awg_ampacity, fuse_gate_i2t, inrush, limited_inrush, rerate
 from speccheck.formulas.preferred import r10_up
 from speccheck.registry import rule
 from speccheck.units import fmt
@@ -257,8 +257,8 @@ def fuse_inrush(build, ctx):
         and supply.max_current is not None
         and supply.max_current.si < peak
     ):
-        limit = supply.max_current.si
-        peak, i2t = limit, min(i2t, limit * farads * volts)  # a current-limited charge: I²t <= I·C·V
+        peak, bound = limited_inrush(volts, farads, supply.max_current.si)
+        i2t = min(i2t, bound)
     owner = fuse.name
     ctx.publish("fuse", owner, "bulk capacitance behind it", farads, "F")
     ctx.publish("fuse", owner, "inrush loop resistance", ohms, "Ω")

@@ -32,6 +32,13 @@ def inrush(volts: float, farads: float, ohms: float) -> tuple[float, float, floa
     return volts / ohms, ohms * farads, volts ** 2 * farads / (2 * ohms)
 
 
+def limited_inrush(volts: float, farads: float, limit: float) -> tuple[float, float]:
+    """Switching V onto C from a source that limits its current to `limit`: (peak, I²t bound).
+    At constant current I the charge takes t = C·V/I, so I²t = I·C·V; the real charge ends on
+    an exponential tail below the limit, so that is an upper bound (derived from Q = C·V)."""
+    return limit, limit * farads * volts
+
+
 def fuse_gate_i2t(speed: str, rating: float) -> float:
     """The least I²t an IEC 60127-2 fuse-link of this speed withstands at its shortest gate:
     (k·I_n)²·t_min."""

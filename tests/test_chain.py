@@ -1,0 +1,44 @@
+"""The walk along the chain (speccheck/chain.py): the LO each conversion makes and the spread
+that reaches the IF, each number derived by hand from the plan's values: f_LO = f_osc·(1 + D)·n
+for a crystal pulled by D and multiplied n times, f_osc·n for an oscillator given by frequency;
+the LO spread n·(tolerance·f_x + drift); the IF spread adds the source drift."""
+
+from __future__ import annotations
+
+import pytest
+from conftest import CLEAN, edited
+
+from speccheck import chain, loader
+
+OSC = "oscillator: {crystal: X1, injection: low, mode: fundamental, load_caps: [C6, C7], stray: 4 pF}"
+
+
+def plan_of(text: str) -> chain.Plan:
+    loaded = loader.load_text(text, "plan.yaml")
+    assert loaded.can_check, [f.message for f in loaded.findings]
+    return chain.frequency_plan(loaded.build)
+
+
+def test_oscillator_given_by_frequency_and_multiplied():
+    text = edited(CLEAN.read_text("utf-8"), OSC,
+                  "oscillator: {frequency: 3.415 MHz, multiplier: 3, injection: low, drift: 100 Hz}")
+    c = plan_of(text).conversions[0]
+    assert c.lo == pytest.approx(3 * 3.415e6)  # 10.245 MHz
+    assert c.lo_unc == pytest.approx(3 * 100.0)  # the drift is multiplied too
+    assert c.f_if == pytest.approx(10.7e6 - 10.245e6)
+    assert c.if_unc == pytest.approx(500.0 + 300.0)  # source drift + LO spread
+    assert c.side == "low"
+
+
+def test_crystal_pulled_and_multiplied():
+    text = edited(CLEAN.read_text("utf-8"), OSC, OSC.replace("stray: 4 pF}", "stray: 4 pF, multiplier: 2}"))
+    c = plan_of(text).conversions[0]
+    # X1: 10.245 MHz, 20 ppm, calibrated at 20 pF, C1 15 fF, C0 4 pF; C6 = C7 = 33 pF plus 4 pF stray
+    # give 20.5 pF. Pulling D = C1/(2(C0 + CL)): the shift is D(20.5 pF) − D(20 pF) = −7.65 ppm.
+    shift = 15e-15 / (2 * (4e-12 + 20.5e-12)) - 15e-15 / (2 * (4e-12 + 20e-12))
+    assert c.pull == pytest.approx(shift)
+    assert c.lo == pytest.approx(2 * 10.245e6 * (1 + shift))
+    assert c.lo_unc == pytest.approx(2 * 10.245e6 * 20e-6)  # 2 × 20 ppm of 10.245 MHz = 409.8 Hz
+    assert c.side == "high"  # 20.49 MHz is above the 10.7 MHz input
+    assert c.f_if == pytest.approx(c.lo - 10.7e6)
+    assert c.if_unc == pytest.approx(500.0 + 2 * 10.245e6 * 20e-6)
