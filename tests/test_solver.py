@@ -16,7 +16,8 @@ from speccheck import engine, solver
 from speccheck.cli import main
 from speccheck.formulas import audio, picks, preferred, resonators
 
-PLANS = sorted(EXAMPLES.glob("*.yaml")) + sorted((ROOT / "speccheck" / "starters").glob("*.yaml"))
+PLANS = (sorted(EXAMPLES.glob("*.yaml")) + sorted((ROOT / "speccheck" / "starters").glob("*.yaml"))
+         + sorted((ROOT / "tests" / "data" / "v1").glob("*.yaml")))  # format 1 plans are solved too
 
 
 def _line(text: str, offset: int) -> int:
@@ -44,7 +45,7 @@ def _solve_copy(plan, tmp_path, series="E12"):
 # ---- every example and starter ---------------------------------------------------------------
 
 
-@pytest.mark.parametrize("plan", PLANS, ids=lambda p: p.name)
+@pytest.mark.parametrize("plan", PLANS, ids=lambda p: f"{p.parent.name}/{p.name}")
 def test_apply_keeps_untouched_lines_and_clears_what_it_claims(plan, tmp_path):
     copy, outcome = _solve_copy(plan, tmp_path)
     old = copy.read_text("utf-8")

@@ -9,7 +9,8 @@ from hypothesis import strategies as st
 
 from speccheck import textedit, yamlnodes
 
-PLANS = sorted(EXAMPLES.glob("*.yaml")) + sorted((ROOT / "speccheck" / "starters").glob("*.yaml"))
+PLANS = (sorted(EXAMPLES.glob("*.yaml")) + sorted((ROOT / "speccheck" / "starters").glob("*.yaml"))
+         + sorted((ROOT / "tests" / "data" / "v1").glob("*.yaml")))
 BEGINNER = (EXAMPLES / "beginner-plan.yaml").read_text("utf-8")
 
 
