@@ -428,3 +428,22 @@ def test_project_file_names_the_series(tmp_path):
     assert "IEC 60063 E24" in shown.output
     forced = CliRunner().invoke(main, ["solve", str(tmp_path / "plan.yaml"), "--series", "E96"])
     assert "IEC 60063 E96" in forced.output
+
+
+def test_a_change_that_makes_a_finding_worse_is_held_back(monkeypatch):
+    # A remedy that lowers C31's rating from 6.3 V to 4 V: the 6 V across it turns the warning
+    # into an error, a finding the plan did not have; the option must be held back, the plan kept.
+    from speccheck.solver import base
+
+    def lowers(situation, finding):
+        part = situation.part_for(finding)
+        if part is None or part.name != "C31":
+            return None
+        change = base.Change(part.places["voltage_rating"], "4 V")
+        return base.Proposal(finding, "C31 lowered", [base.Option([change], "C31 rated 4 V", "worse")])
+
+    monkeypatch.setitem(base.REMEDIES, "wiring.cap-voltage", lowers)
+    outcome = solver.solve(EXAMPLES / "beginner-plan.yaml")
+    (held,) = [p for p in outcome.proposals if p.title == "C31 lowered"]
+    assert held.chosen is None and "would bring a new finding, wiring.cap-voltage" in held.held
+    assert "voltage_rating: 4 V" not in outcome.new_text

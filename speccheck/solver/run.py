@@ -26,7 +26,7 @@ from pathlib import Path
 
 from speccheck import engine, files, loader, textedit, yamlnodes
 from speccheck.config import Settings
-from speccheck.findings import Finding
+from speccheck.findings import RANK, Finding
 from speccheck.solver import base, circuit, tuning  # noqa: F401  (importing them registers the remedies)
 
 SERIES_NAMES = ("E12", "E24", "E96")
@@ -161,6 +161,11 @@ def _choose(outcome: Outcome, doc: yamlnodes.Document, check) -> None:
             if new:
                 first = new[0]
                 reasons.append(f"{option.summary} would bring a new finding, {first.rule}: {first.message}")
+                continue
+            worse = [f for fp, f in now.items() if RANK[f.level] > RANK[was[fp].level]]
+            if worse:
+                first = worse[0]
+                reasons.append(f"{option.summary} would raise {first.rule} to {first.level}: {first.message}")
                 continue
             if proposal.finding.fingerprint in now:
                 reasons.append(f"{option.summary} does not clear it")
