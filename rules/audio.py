@@ -298,27 +298,28 @@ def input_bypass(build, ctx):
             )
 
 
-@rule(
-    "audio.speaker-power",
-    level="warning",
-    title="Speaker power rating against what the amplifier can deliver",
-    explanation="""
-      At full volume a class-B or class-AB amplifier can drive its load up to the clipping limit:
-      on one supply with a coupling capacitor the speaker sees a sine of peak V_s/2, so the
-      power reaches V_s²/(8·R_L) (12 V into 8 ohm: 2.25 W); a bridge-tied load doubles the swing
-      and gives four times that. Driven past its rating, a speaker's voice coil overheats, its
+@rule("audio.speaker-power", level="warning",
+      title="Speaker power rating against what the amplifier can deliver",
+      explanation="""
+      At full volume a class-B or class-AB amplifier can drive its load up to the clipping limit.
+      Its output devices keep a saturation voltage from the rails (the profile's saturation,
+      both sides together; a low-voltage amplifier IC loses about 3 V), so on one supply with a
+      coupling capacitor the speaker sees a sine of peak (V_s − V_sat)/2 and the power reaches
+      (V_s − V_sat)²/(8·R_L): 12 V into 8 ohm with 3 V lost gives 1.27 W, not the rail-to-rail
+      2.25 W. A bridge-tied load doubles the swing. A profile's rated_output caps the figure.
+      Driven past its rating, a speaker's voice coil overheats, its
       former warps and the coil rubs or opens. Listening levels are usually far lower, but a
       squelch tail or a feedback howl at full volume is not.
       """,
-    fix="Fit a speaker rated at least the power shown, or limit the amplifier's gain or supply.",
-    source="class-B output power: Boylestad & Nashelsky, Electronic Devices and Circuit Theory, ch. 12 "
-    "(P_o(max) = V_CC²/(2·R_L), with V_CC = V_s/2 on one supply)",
-    verify="At full volume with a tone, measure the RMS voltage across the speaker: V²/R must stay below "
-    "its rating.",
-)
+      fix="Fit a speaker rated at least the power shown, or limit the amplifier's gain or supply.",
+      source="class-B output power: Boylestad & Nashelsky, Electronic Devices and Circuit Theory, ch. 12 "
+             "(P_o(max) = V_CC²/(2·R_L), with V_CC = V_s/2 on one supply, less the saturation voltage); "
+             "3 V saturation of a low-voltage amplifier IC: from memory",
+      verify="At full volume with a tone, measure the RMS voltage across the speaker: V²/R must stay "
+             "below its "
+             "rating.")
 def speaker_power(build, ctx):
     from speccheck.budget import amp_point
-    from speccheck.formulas.amplifiers import class_b_full_output
 
     for stage in build.stages("audio-amp"):
         dev, load = build.device(stage.device), build.part(stage.load)
@@ -327,8 +328,9 @@ def speaker_power(build, ctx):
         point, _ = amp_point(build, dev)
         if point is None:
             continue  # power.heat says what is missing
-        full = class_b_full_output(point.topology, point.v_supply, point.r_load, point.v_negative)["p_out"]
-        ctx.publish("audio", stage.label, f"most power into {load.name} (ideal full sine)", full, "W")
+        full = point.full_output()["p_out"]
+        name = f"most power into {load.name} (full sine, {point.swing_text})"
+        ctx.publish("audio", stage.label, name, full, "W")
         if load.power_rating.si < full:
             ctx.report(
                 f"{load.name} is rated {load.power_rating.text} but {dev.name} can deliver up to "

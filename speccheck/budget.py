@@ -12,7 +12,7 @@ import weakref
 from dataclasses import dataclass, field
 from typing import Any
 
-from speccheck.formulas.amplifiers import class_b_full_output
+from speccheck.formulas.amplifiers import class_b_full_output, rms_with_dc
 
 AMPLIFIER = "audio-power-amplifier"
 
@@ -76,10 +76,27 @@ class AmpPoint:
     r_load: float
     load_text: str
     stage: Any
+    saturation: float = 0.0  # volts the output keeps from the rails at clipping (profile), 0 when not stated
+    rated_output: float | None = None  # the profile's rated output power, W
 
     @property
     def label(self) -> str:
         return self.stage.label if self.stage else "audio-amp"
+
+    def full_output(self) -> dict:
+        """The full sine output this amplifier really reaches (speccheck.formulas.amplifiers)."""
+        return class_b_full_output(self.topology, self.v_supply, self.r_load, self.v_negative,
+                                   self.saturation, self.rated_output)
+
+    @property
+    def swing_text(self) -> str:
+        """How the full output was limited, for messages and the sheet."""
+        parts = []
+        if self.saturation:
+            parts.append(f"{self.saturation:g} V saturation")
+        if self.rated_output:
+            parts.append(f"rated {self.rated_output:g} W")
+        return ", ".join(parts) or "rail to rail (the profile states no saturation)"
 
 
 def amp_point(build, dev) -> tuple[AmpPoint | None, list]:
@@ -114,7 +131,9 @@ def amp_point(build, dev) -> tuple[AmpPoint | None, list]:
                         f"(chain[].load, with the speaker's value)", where))
     if missing or v_supply == 0 or v_supply is None or r_load is None:
         return None, missing
-    return AmpPoint(dev, topology, v_supply, v_negative, r_load, load_text, stage), []
+    sat = prof.saturation.si if prof.saturation is not None else 0.0
+    rated = prof.rated_output.si if prof.rated_output is not None else None
+    return AmpPoint(dev, topology, v_supply, v_negative, r_load, load_text, stage, sat, rated), []
 
 
 @dataclass
@@ -129,6 +148,8 @@ class Budget:
     no_quiescent: dict = field(default_factory=dict)  # profile name -> [devices]
     input: float | None = None
     input_rails: list = field(default_factory=list)
+    pulsed: dict = field(default_factory=dict)  # amplifier -> (rail, average, RMS) of its full-output draw
+    input_rms: float | None = None  # RMS of the supply input current at full output
 
     @property
     def complete(self) -> bool:
@@ -180,8 +201,9 @@ def budget(build) -> Budget:
             if point is None:
                 b.unknown_amps.append(dev.name)
             else:
-                full = class_b_full_output(point.topology, point.v_supply, point.r_load, point.v_negative)
+                full = point.full_output()
                 add(dev.rail, dev.name, "full output", full["i_pos"])
+                b.pulsed[dev.name] = (dev.rail, full["i_pos"], full["rms_pos"])
                 b.full_output[dev.name] = {dev.rail: full["i_pos"]}
                 if point.topology == "split-supply" and dev.negative_rail in build.rails:
                     add(dev.negative_rail, dev.name, "full output", full["i_neg"])
@@ -225,5 +247,54 @@ def budget(build) -> Budget:
         b.input_rails = [n for n, r in build.rails.items()
                          if not r.is_ground and r.source in (None, "supply") and n not in made]
     b.input = sum(b.totals.get(n, 0.0) for n in b.input_rails) if b.input_rails else None
+    if b.input is not None:
+        # The amplifiers' half-wave draw reaches the input through any regulator unchanged; the
+        # rest is steady. Amplifiers are taken in step (one tone drives them all): the worst case.
+        average = sum(avg for _, avg, _ in b.pulsed.values())
+        rms = sum(r for _, _, r in b.pulsed.values())
+        b.input_rms = rms_with_dc(max(0.0, b.input - average), average, rms) if b.pulsed else b.input
     _BUDGETS[build] = b
     return b
+
+
+# ---- what the supply loses on its way to its rail --------------------------------------------
+
+DIODE_DROP = 0.7  # V: a silicon rectifier diode at a few hundred mA (common practice)
+
+
+def series_drops(build) -> list:
+    """(what, volts) dropped in series between the supply and its rail at the budget current:
+    a series reverse-polarity diode (its forward_voltage, else 0.7 V) and a series resistor or
+    a resistor used as the fuse (I·R at the input current budget)."""
+    supply = build.supply
+    if supply is None:
+        return []
+    out = []
+    diode = build.part(supply.reverse_protection) if supply.reverse_protection not in (None, "none") else None
+    nets = build.nets
+    if diode is not None and diode.kind == "diode" and len(diode.ends) == 2 and \
+            not any(nets.is_ground(end) for end in diode.ends):
+        vf = diode.forward_voltage.si if diode.forward_voltage is not None else DIODE_DROP
+        assumed = "" if diode.forward_voltage is not None else f", {DIODE_DROP:g} V assumed"
+        out.append((f"series diode {diode.name}{assumed}", vf))
+    amps = budget(build).input or 0.0
+    seen = set()
+    for ref in (supply.series_resistor, supply.fuse):
+        part = build.part(ref) if ref else None
+        if part is not None and part.kind == "resistor" and part.value is not None and part.name not in seen:
+            seen.add(part.name)
+            out.append((f"{part.name} {part.value.text} at {amps:.3g} A", amps * part.value.si))
+    return out
+
+
+def rail_after_drops(build, rail: str | None) -> tuple:
+    """(volts, drops) of a rail: the supply's own rail is the supply voltage less its series drops
+    (never more than the rail's declared voltage); any other rail is as declared."""
+    volts = rail_volts(build, rail)
+    supply = build.supply
+    if volts is None or supply is None or supply.voltage is None or rail != fused_rail(build):
+        return volts, []
+    drops = series_drops(build)
+    if not drops:
+        return volts, []
+    return min(volts, abs(supply.voltage.si) - sum(v for _, v in drops)), drops

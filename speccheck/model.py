@@ -244,6 +244,8 @@ class Profile(Located):
     output_network: str = plain(None)
     output_voltage: Q = qty("voltage")
     dropout: Q = qty("voltage")
+    saturation: Q = qty("voltage")
+    rated_output: Q = qty("power")
     pins: dict = named(Pin)
     source: str = plain(None)
 

@@ -35,11 +35,15 @@ def test_portable_shows_the_battery_findings_and_no_error():
         5.4
     )
     run = of(result, "battery.running-time")
-    assert len(run) == 1 and run[0].level == "warning"
-    current = value(run[0], "budget current")
-    # Peukert (Linden): H = 0.55 Ah / 25 mA = 22 h; t = 22 (0.55 / (I x 22))^1.3, k = 1.3 for alkaline (from
-    # memory)
-    assert value(run[0], "running time") == pytest.approx(22 * (0.55 / (current * 22)) ** 1.3)
+    sheet = {(e.owner, e.value.name): e.value.value for e in result.sheet}
+    current = sheet[("supply", "input current budget")]
+    # Peukert (Linden): H = 0.55 Ah / 25 mA = 22 h; t = 22 (0.55 / (I x 22))^1.3, k = 1.3 for alkaline
+    # (from memory)
+    hours = 22 * (0.55 / (current * 22)) ** 1.3
+    assert sheet[("battery", "running time at the budget current")] == pytest.approx(hours)
+    # the amplifier's real swing (its profile's saturation) keeps the full-output draw near 2 h: a
+    # warning only under the 2 h setting
+    assert [f.level for f in run] == (["warning"] if hours < 2 else [])
 
 
 def test_a_battery_that_cannot_hold_the_regulator_up_even_fresh_is_an_error():

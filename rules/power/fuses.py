@@ -45,13 +45,17 @@ def fuse_choice(build, ctx, normal: float) -> dict:
       title="Supply fuse rating against the build's normal current",
       explanation="""
       A fuse is sized from the current the build draws in normal use (its current budget at
-      full output). A fuse is only guaranteed to carry its rated current under the test
-      conditions of its standard: UL 248-14 fuses carry 100 % and open at 135 % within an
-      hour and at 200 % within two minutes; IEC 60127-2 fuse-links must not open at 1.5 × I_n
-      within an hour. In continuous use, and warm, a fuse ages and opens early, so common
-      practice runs it at no more than 75 % of its rating, and rerates it further above 25 °C
-      ambient. The rating is then rounded UP to the preferred ratings series, R10 of
-      IEC 60127-1 Annex A (1, 1.25, 1.6, 2, 2.5, 3.15, 4, 5, 6.3, 8 × 10ⁿ A).
+      full output). A fuse heats on I², so it sees the RMS of that current, not its average: a
+      class-B stage draws half-waves from its supply, peak I_p, average I_p/π but RMS I_p/2,
+      about 1.57 times as much (a bridge draws full waves: I_p/√2 against 2·I_p/π); the
+      steady quiescent currents add under the root. A fuse is only guaranteed to carry its
+      rated current under the test conditions of its standard: UL 248-14 fuses carry 100 %
+      and open at 135 % within an hour and at 200 % within two minutes; IEC 60127-2
+      fuse-links must not open at 1.5 × I_n within an hour. In continuous use, and warm, a
+      fuse ages and opens early, so common practice runs it at no more than 75 % of its
+      rating, and rerates it further above 25 °C ambient. The rating is then rounded UP to the
+      preferred ratings series, R10 of IEC 60127-1 Annex A (1, 1.25, 1.6, 2, 2.5, 3.15, 4, 5,
+      6.3, 8 × 10ⁿ A).
 
       Smaller than that the fuse opens in normal use or after weeks of nuisance; much larger
       and it does not protect: a fault that draws a few times the normal current (a shorted
@@ -86,6 +90,9 @@ def fuse_size(build, ctx):
         form = ctx.setting("pulse_form_factor", of="power.fuse-size")
         normal *= form  # the fuse heats on the RMS of the charging pulses
         ctx.publish("fuse", part.name, "RMS of the rectifier charging pulses", normal, "A")
+    elif b.input_rms is not None and b.input_rms > normal:
+        normal = b.input_rms  # the fuse heats on I², so on the RMS of the amplifier's half-wave draw
+        ctx.publish("fuse", part.name, "RMS of the supply current (class-B half-wave draw)", normal, "A")
     c = fuse_choice(build, ctx, normal)
     ctx.publish("fuse", part.name, "continuous-use share of rating", c["share"] * 100, "%")
     if c["ambient"] is not None:
@@ -222,24 +229,31 @@ def fuse_wire(build, ctx):
       before 10 ms at 10 × I_n, a quick-acting one before 3 ms at 4 × I_n. Real links are
       usually several times above that floor.
       """,
-    fix="Use a time-lag fuse, add series resistance (or a soft-start) ahead of the bulk capacitor, or "
-    "state the fuse's melting_i2t from its datasheet.",
-    source="inrush of an RC charge: circuit theory (cross-checked with scipy in the tests); fuse gates: "
-    "IEC 60127-2 (from memory); loop resistance and pulse share: from memory",
-    settings={"loop_resistance": 0.5, "pulse_share": 0.3},
-)
+      fix="Use a time-lag fuse, add series resistance (or a soft-start) ahead of the bulk capacitor, or "
+          "state the "
+          "fuse's melting_i2t from its datasheet.",
+      # the inrush figures are computed for every bulk capacitor on the supply's rail, fuse or not
+      # (the design sheet shows them); only a fuse is judged against them
+      source="inrush of an RC charge: circuit theory (cross-checked with scipy in the tests); fuse gates: "
+             "IEC 60127-2 (from memory); loop resistance and pulse share: from memory",
+      settings={"loop_resistance": 0.5, "pulse_share": 0.3})
 def fuse_inrush(build, ctx):
     supply = build.supply
     fuse = supply_fuse(build)
-    if supply is None or fuse is None or supply.voltage is None or fuse.current_rating is None:
+    if supply is None or supply.voltage is None:
         return
     caps = bulk_capacitors(build, fused_rail(build))
     farads = sum(c.value.si for c in caps)
     if farads <= 0:
         return
-    volts, rating = abs(supply.voltage.si), fuse.current_rating.si
-    series = build.part(supply.series_resistor)
-    r_series = series.value.si if series is not None and series.kind == "resistor" and series.value else 0.0
+    volts = abs(supply.voltage.si)
+    series = None
+    for ref in (supply.series_resistor, supply.fuse):  # a series resistor, or a resistor used as the fuse
+        part = build.part(ref) if ref else None
+        if part is not None and part.kind == "resistor" and part.value is not None:
+            series = part
+            break
+    r_series = series.value.si if series is not None else 0.0
     if supply.source_resistance is not None:
         r_source, source_text = (
             supply.source_resistance.si,
@@ -259,12 +273,15 @@ def fuse_inrush(build, ctx):
     ):
         peak, bound = limited_inrush(volts, farads, supply.max_current.si)
         i2t = min(i2t, bound)
-    owner = fuse.name
+    owner = fuse.name if fuse is not None else "supply input"
     ctx.publish("fuse", owner, "bulk capacitance behind it", farads, "F")
     ctx.publish("fuse", owner, "inrush loop resistance", ohms, "Ω")
     ctx.publish("fuse", owner, "inrush peak", peak, "A")
     ctx.publish("fuse", owner, "inrush time constant RC", tau, "s")
     ctx.publish("fuse", owner, "inrush I²t", i2t, "A²s")
+    if fuse is None or fuse.current_rating is None:
+        return  # the figures stand on the sheet; there is no fuse to judge them against
+    rating = fuse.current_rating.si
     names = ", ".join(c.name for c in caps)
     if fuse.melting_i2t is not None:
         share = ctx.setting("pulse_share")
@@ -379,7 +396,7 @@ def fuse_missing(build, ctx):
     values = []
     need = ""
     if b.input and b.complete:
-        c = fuse_choice(build, ctx, b.input)
+        c = fuse_choice(build, ctx, max(b.input, b.input_rms or 0.0))
         values = [Value("normal current", b.input, "A"), Value("preferred rating", c["preferred"], "A")]
         need = f"; the build needs about {fmt(c['preferred'], 'A')}"
     can = (
@@ -401,17 +418,27 @@ def fuse_missing(build, ctx):
     explanation="""
       A small resistor in series with the supply input (about 1 Ω with a large bulk capacitor)
       is used to knock down noise and to soften the inrush. It costs a voltage drop I·R and a
-      dissipation I²·R in normal use, which must stay well inside its power rating. It is no
-      substitute for a fuse: into a short at its far end it takes V²/R (144 W for 1 Ω on 12 V)
-      and a plain resistor then glows, chars the board and may set it alight before it opens,
-      if it opens at all. Only a fusible (flame-proof) resistor, made to open safely, may serve
-      as the fuse, and only when the fault power is well above its rating so that it does open.
+      dissipation I²·R in normal use (on the RMS of the supply current), which must stay well
+      inside its power rating. It is no substitute for a fuse: into a short at its far end it
+      takes I²·R, with I the current the plan's own supply can push through it: V/(R + R_source)
+      (the supply's source_resistance; a battery's internal resistance from its short-circuit
+      current), no more than the limit of a current-limited adapter or bench supply
+      (max_current). On a stiff 12 V source 1 Ω takes 144 W; behind a 1 A adapter, 1 W.
+
+      A plain resistor as the only protection: an error when the short drives it past
+      glow_factor times its rating (default 4; a resistor at several times its rating runs at
+      hundreds of °C, chars the board and may set it alight before it opens, if it opens at all:
+      from memory), a warning when past its rating, a note when the supply's own limit keeps it
+      inside (nothing burns, but nothing disconnects the fault either). Only a fusible
+      (flame-proof) resistor, made to open safely, may serve as the fuse, and only when the
+      fault power is well above its rating (fusing_factor, default 10) so that it does open. A
+      resistor of unstated rating is taken as 0.25 W (the smallest common through-hole size).
       """,
-    fix="Fit a real fuse at the supply input; where the resistor must also protect, use a fusible "
-    "(flame-proof) type whose fusing curve opens at the fault power shown.",
-    source="common practice; fusing power of fusible resistors: from memory",
-    settings={"power_share": 0.5, "drop_share": 0.05, "fusing_factor": 10.0},
-)
+      fix="Fit a real fuse at the supply input; where the resistor must also protect, use a fusible "
+          "(flame-proof) type whose fusing curve opens at the fault power shown.",
+      source="common practice; fusing power of fusible resistors and the glow factor: from memory",
+      settings={"power_share": 0.5, "drop_share": 0.05, "fusing_factor": 10.0, "glow_factor": 4.0,
+                "unrated_watts": 0.25})
 def resistor_fuse(build, ctx):
     supply = build.supply
     if supply is None:
@@ -428,48 +455,60 @@ def resistor_fuse(build, ctx):
         return
     ohms = part.value.si
     volts = abs(supply.voltage.si) if supply.voltage else None
-    normal = budget(build).input or 0.0
-    p_normal, drop = normal**2 * ohms, normal * ohms
+    b = budget(build)
+    normal = b.input or 0.0
+    heating = max(normal, b.input_rms or 0.0)  # it heats on the RMS of the supply current
+    p_normal, drop = heating ** 2 * ohms, normal * ohms
     ctx.publish("power", part.name, "drop in normal use", drop, "V")
     ctx.publish("power", part.name, "dissipation in normal use", p_normal, "W")
-    values = [
-        Value("normal current", normal, "A"),
-        Value("drop", drop, "V"),
-        Value("dissipation", p_normal, "W"),
-    ]
-    p_short = None
+    values = [Value("normal "
+                    "current", normal, "A"), Value("drop", drop, "V"), Value("dissipation", p_normal, "W")]
+    p_short, how = None, ""
     if volts is not None:
-        r_int = volts / supply.max_current.si if supply.kind == "battery" and supply.max_current else 0.0
-        i_short = volts / (ohms + r_int)
-        p_short = i_short**2 * ohms
+        i_short, how = short_current(supply, volts, ohms)
+        p_short = i_short ** 2 * ohms
+        ctx.publish("power", part.name, "current into a short at its far end", i_short, "A")
         ctx.publish("power", part.name, "power into a short at its far end", p_short, "W")
-        values.append(Value("power at a short", p_short, "W"))
+        values += [Value("short-circuit current", i_short, "A"), Value("power at a short", p_short, "W")]
+    rating = part.power_rating.si if part.power_rating is not None else ctx.setting("unrated_watts")
+    rating_text = part.power_rating.text if part.power_rating is not None else \
+        f"{fmt(rating, 'W')} (assumed: no power_rating)"
     where = part.at("fusible") if part.given("fusible") else part.loc
     if as_fuse and not part.fusible:
-        short = f": into a short it takes {fmt(p_short, 'W')}" if p_short is not None else ""
-        ctx.report(
-            f"{part.name} ({part.value.text}) is the only protection on the supply input but is a "
-            f"plain resistor{short}, glows and can set the board alight before it opens; fit a fuse "
-            "or a fusible (flame-proof) resistor",
-            where,
-            values,
-            level="error",
-            stage=stage,
-        )
-    elif (
-        as_fuse
-        and part.power_rating is not None
-        and p_short is not None
-        and p_short < ctx.setting("fusing_factor") * part.power_rating.si
-    ):
-        ctx.report(
-            f"fusible {part.name} takes only {fmt(p_short, 'W')} into a short, "
-            f"{p_short / part.power_rating.si:.3g} times its {part.power_rating.text} rating: it may "
-            "sit hot instead of opening (check its fusing curve)",
-            part.at("power_rating"),
-            values,
-            stage=stage,
-        )
+        if p_short is None or p_short >= ctx.setting("glow_factor") * rating:
+            short = f": into a short it takes {fmt(p_short, 'W')} ({how})" if p_short is not None else ""
+            ctx.report(f"{part.name} ({part.value.text}) is the only protection on the supply input but "
+                       f"is a plain "
+                       f"resistor{short}, {p_short / rating:.3g} times its {rating_text} rating; it "
+                       f"glows and can set "
+                       f"the board alight before it opens; fit a fuse or a fusible (flame-proof) resistor"
+                       if p_short is not None else
+                       f"{part.name} ({part.value.text}) is the only protection on the supply input but "
+                       f"is a plain "
+                       f"resistor; it glows and can set the board alight before it opens; fit a fuse",
+                       where, values, level="error", stage=stage)
+        elif p_short > rating:
+            ctx.report(f"{part.name} ({part.value.text}) is the only protection on the supply input: "
+                       f"into a short it "
+                       f"takes {fmt(p_short, 'W')} ({how}), above its {rating_text} rating; it runs hot and "
+                       f"disconnects nothing; fit a fuse", where, values, stage=stage)
+        else:
+            ctx.report(f"{part.name} ({part.value.text}) is the only protection on the supply input: "
+                       f"into a short it "
+                       f"takes {fmt(p_short, 'W')} ({how}), inside its {rating_text} rating, so the "
+                       f"supply's own limit "
+                       f"protects the build; a fuse would also disconnect a "
+                       f"fault", where, values, level="note",
+                       stage=stage)
+    elif as_fuse and p_short is not None and p_short < ctx.setting("fusing_factor") * rating:
+        limited = how.startswith("limited")
+        ctx.report(f"fusible {part.name} takes only {fmt(p_short, 'W')} into a short ({how}), "
+                   f"{p_short / rating:.3g} "
+                   f"times its {rating_text} rating: it may sit hot instead of opening (check its fusing "
+                   f"curve)"
+                   + ("; the supply's limit holds the fault meanwhile" if limited else ""),
+                   part.at("power_rating") if part.given("power_rating") else part.loc, values,
+                   level="note" if limited else "warning", stage=stage)
     if part.power_rating is None:
         if p_normal > 0:
             ctx.report(
@@ -489,10 +528,23 @@ def resistor_fuse(build, ctx):
             stage=stage,
         )
     if volts and drop > ctx.setting("drop_share") * volts:
-        ctx.report(
-            f"{part.name} drops {fmt(drop, 'V')} at the build's {fmt(normal, 'A')}, "
-            f"{drop / volts:.0%} of the {supply.voltage.text} supply",
-            part.at("value"),
-            values,
-            stage=stage,
-        )
+        ctx.report(f"{part.name} drops {fmt(drop, 'V')} at the build's {fmt(normal, 'A')}, "
+                   f"{drop / volts:.0%} of the "
+                   f"{supply.voltage.text} supply", part.at("value"), values, stage=stage)
+
+
+def short_current(supply, volts: float, ohms: float) -> tuple:
+    """(amperes, how) the plan's own supply pushes through `ohms` into a short: V/(R + R_source),
+    no more than a current-limited supply's max_current."""
+    if supply.source_resistance is not None:
+        r_src, how = supply.source_resistance.si, f"through the supply's {supply.source_resistance.text}"
+    elif supply.kind == "battery" and supply.max_current is not None:
+        r_src = volts / supply.max_current.si
+        how = f"the battery's {supply.max_current.text} short-circuit current sets its internal resistance"
+    else:
+        r_src, how = 0.0, "from a stiff supply"
+    amps = volts / (ohms + r_src)
+    limited = supply.kind in ("dc-adapter", "bench") and supply.max_current is not None
+    if limited and supply.max_current.si < amps:
+        amps, how = supply.max_current.si, f"limited to {supply.max_current.text} by the {supply.kind} supply"
+    return amps, how

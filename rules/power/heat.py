@@ -2,9 +2,18 @@
 
 from __future__ import annotations
 
-from speccheck.budget import AMPLIFIER, REGULATOR, ambient, amp_point, budget, rail_volts, regulator_outputs
+from speccheck.budget import (
+    AMPLIFIER,
+    REGULATOR,
+    ambient,
+    amp_point,
+    budget,
+    rail_after_drops,
+    rail_volts,
+    regulator_outputs,
+)
 from speccheck.findings import Value
-from speccheck.formulas.amplifiers import class_b_dissipation, class_b_full_output, split_rails
+from speccheck.formulas.amplifiers import class_b_dissipation, split_rails
 from speccheck.formulas.thermal import heat_sink_needed, junction_temperature, regulator_dissipation
 from speccheck.registry import rule
 from speccheck.units import fmt
@@ -165,8 +174,8 @@ def heat(build, ctx):
         span = vp + vn if point.topology == "split-supply" else abs(point.v_supply)
         p_q = iq * span
         power = total + p_q
-        full = class_b_full_output(point.topology, point.v_supply, point.r_load, point.v_negative)
-        ctx.publish("heat", dev.name, "full sine output power (ideal)", full["p_out"], "W")
+        full = point.full_output()
+        ctx.publish("heat", dev.name, f"full sine output power ({point.swing_text})", full["p_out"], "W")
         ctx.publish("heat", dev.name, f"output stage dissipation, worst case ({point.topology})", total, "W")
         if point.topology != "single-ended":
             ctx.publish("heat", dev.name, "per output device, worst case", per_device, "W")
@@ -230,34 +239,46 @@ def _regulator_power(build, dev):
       A linear regulator holds its output only while its input stays above the output by at
       least its dropout voltage (about 2 V for a classic three-terminal part, a few hundred
       millivolts for a low-dropout one). Below that the output follows the input down, with
-      the input's ripple and noise on it. The regulator turns the rest, (V_in − V_out)·I, into
-      heat; that part is checked with the other heat rules.
+      the input's ripple and noise on it. The input is taken after every series drop between
+      the supply and the regulator's rail: a series protection diode (its forward_voltage, else
+      0.7 V for silicon) and a series resistor or resistor-fuse at the budget current. Within
+      the setting margin (default 0.5 V) above the dropout the regulation is thin: a warning.
+      The regulator turns the rest, (V_in − V_out)·I, into heat; that part is checked with the
+      other heat rules.
       """,
-    fix="Raise the input rail, choose a low-dropout regulator, or lower the output voltage.",
-    source="common practice (linear regulator datasheets)",
-)
+      fix="Raise the input rail, use a Schottky series diode or a shunt protection diode behind the "
+          "fuse, choose "
+          "a low-dropout regulator, or lower the output voltage.",
+      source="common practice (linear regulator datasheets; 0.7 V silicon diode drop; 0.5 V margin)",
+      settings={"margin": 0.5})
 def regulator_dropout(build, ctx):
     for dev in build.devices.values():
         prof = dev.profile
         if prof is None or prof.cls != REGULATOR:
             continue
         outs = regulator_outputs(build, dev)
-        v_in = rail_volts(build, dev.rail)
-        v_out = (
-            rail_volts(build, outs[0]) if outs else (prof.output_voltage.si if prof.output_voltage else None)
-        )
+        v_in, drops = rail_after_drops(build, dev.rail)
+        stated_out = prof.output_voltage.si if prof.output_voltage else None
+        v_out = rail_volts(build, outs[0]) if outs else stated_out
         if v_in is None or v_out is None:
             continue
         headroom = v_in - v_out
+        after = ""
+        if drops:
+            after = " after " + ", ".join(f"{what} ({fmt(v, 'V')})" for what, v in drops)
+            ctx.publish("power", dev.name, "input after series drops", v_in, "V")
         ctx.publish("power", dev.name, "input headroom V_in − V_out", headroom, "V")
         if prof.dropout is None:
             continue
+        values = [Value("headroom", headroom, "V"), Value("dropout", prof.dropout.si, "V")]
         if headroom < prof.dropout.si - 1e-9:
-            ctx.report(
-                f"{dev.name} makes {fmt(v_out, 'V')} from {dev.rail} at {fmt(v_in, 'V')}: "
-                f"{fmt(headroom, 'V')} of headroom, less than its {prof.dropout.text} dropout; the "
-                "output will sag and carry the input's ripple",
-                dev.at("rail"),
-                [Value("headroom", headroom, "V"), Value("dropout", prof.dropout.si, "V")],
-                stage="power",
-            )
+            ctx.report(f"{dev.name} makes {fmt(v_out, 'V')} from {dev.rail} at {fmt(v_in, 'V')}{after}: "
+                       f"{fmt(headroom, 'V')} of headroom, less than its {prof.dropout.text} dropout; "
+                       f"the output will "
+                       f"sag and carry the input's ripple", dev.at("rail"), values, stage="power")
+        elif headroom < prof.dropout.si + ctx.setting("margin") - 1e-9:
+            ctx.report(f"{dev.name} makes {fmt(v_out, 'V')} from {dev.rail} at {fmt(v_in, 'V')}{after}: "
+                       f"{fmt(headroom, 'V')} of headroom, within {fmt(ctx.setting('margin'), 'V')} of its "
+                       f"{prof.dropout.text} dropout: ripple troughs or a low supply will take it out of "
+                       f"regulation",
+                       dev.at("rail"), values, level="warning", stage="power")
