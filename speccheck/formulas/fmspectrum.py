@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
+from functools import lru_cache
 
 # Lines below this power share are left out of a sum (their total stays under a millionth).
 NEGLIGIBLE = 1e-9
@@ -28,17 +29,20 @@ NEGLIGIBLE = 1e-9
 
 def sideband_powers(beta: float) -> list[tuple[int, float]]:
     """(n, J_n(β)²) for every line that carries more than NEGLIGIBLE of the power."""
-    from mpmath import besselj  # imported only when a spectrum is wanted
-
     if beta < 0 or not math.isfinite(beta):
         raise ValueError("a modulation index must be a finite number, zero or more")
+    return list(_lines(beta))
+
+
+@lru_cache(maxsize=256)
+def _lines(beta: float) -> tuple[tuple[int, float], ...]:
+    """The lines of one modulation index, computed once: a rule asks for the same spectrum through
+    many filter shapes. J_-n = (-1)^n J_n (A&S 9.1.5), so only n >= 0 is computed."""
+    from mpmath import besselj  # imported only when a spectrum is wanted
+
     top = int(beta + 20 + 3 * math.sqrt(beta + 1))  # J_n falls off fast beyond n = β + 1
-    lines = []
-    for n in range(-top, top + 1):
-        p = float(besselj(n, beta)) ** 2
-        if p > NEGLIGIBLE or n == 0:
-            lines.append((n, p))
-    return lines
+    powers = {n: float(besselj(n, beta)) ** 2 for n in range(top + 1)}
+    return tuple((n, powers[abs(n)]) for n in range(-top, top + 1) if powers[abs(n)] > NEGLIGIBLE or n == 0)
 
 
 def passed_share(deviation: float, f_mod: float, attenuation_db: Callable[[float], float],
