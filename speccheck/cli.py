@@ -552,8 +552,16 @@ def spice(path, folder, force, config, no_config):
     is_flag=True,
     help="Write the proposed changes into the plan (atomically), then check it again.",
 )
+@click.option(
+    "--format",
+    "fmt",
+    type=click.Choice(["text", "json"]),
+    default="text",
+    show_default=True,
+    help="Text for people; JSON (our own shape, 'solve_version': 1) for tools.",
+)
 @_project_options
-def solve(path, series, apply_changes, config, no_config):
+def solve(path, series, apply_changes, fmt, config, no_config):
     """Propose buyable part values that clear the plan's findings, as a diff of the plan.
 
     Each change is checked on the plan in memory first: it is proposed only when it clears its
@@ -566,21 +574,24 @@ def solve(path, series, apply_changes, config, no_config):
     from speccheck.solver import show
 
     if not Path(path).exists():
-        _trouble(f"{path}: no such file")
+        _trouble(f"{_plain(path)}: no such file")
     settings = _settings([path], config, no_config)
     try:
         outcome = solver.solve(path, settings, series or settings.parts_series)
     except solver.SolveTrouble as exc:
-        _trouble(str(exc))
-    click.echo(show.render(outcome), nl=False)
-    if outcome.refused:
-        sys.exit(EXIT_TROUBLE if apply_changes else EXIT_CLEAN)
-    if apply_changes:
-        if outcome.new_text == outcome.text:
-            click.echo("nothing to write: the plan stays as it is")
-            return
+        _trouble(_plain(str(exc)))
+    if fmt == "text":
+        click.echo(show.render(outcome), nl=False)
+    if apply_changes and not outcome.refused and outcome.new_text != outcome.text:
         try:
             solver.write(outcome, settings)
         except solver.SolveTrouble as exc:
-            _trouble(str(exc))
-        click.echo(show.render_after(outcome), nl=False)
+            _trouble(_plain(str(exc)))
+        if fmt == "text":
+            click.echo(show.render_after(outcome), nl=False)
+    elif apply_changes and fmt == "text" and not outcome.refused:
+        click.echo("nothing to write: the plan stays as it is")
+    if fmt == "json":
+        click.echo(show.render_json(outcome), nl=False)
+    if outcome.refused and apply_changes:
+        sys.exit(EXIT_TROUBLE)

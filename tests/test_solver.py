@@ -447,3 +447,20 @@ def test_a_change_that_makes_a_finding_worse_is_held_back(monkeypatch):
     (held,) = [p for p in outcome.proposals if p.title == "C31 lowered"]
     assert held.chosen is None and "would bring a new finding, wiring.cap-voltage" in held.held
     assert "voltage_rating: 4 V" not in outcome.new_text
+
+
+def test_json_output_for_tools(tmp_path):
+    import json
+
+    copy = tmp_path / "plan.yaml"
+    shutil.copyfile(EXAMPLES / "power-quick-fuse-inrush.yaml", copy)
+    shown = CliRunner().invoke(main, ["solve", str(copy), "--format", "json", "--apply"])
+    assert shown.exit_code == 0, shown.output
+    doc = json.loads(shown.output)
+    assert doc["solve_version"] == 1
+    (proposal,) = doc["proposals"]
+    assert proposal["taken"]["change"] == "F1 time-lag"
+    assert proposal["finding"]["rule"] == "power.fuse-inrush"
+    assert doc["diff"].startswith("---") and "speed: time-lag" in doc["diff"]
+    assert [f["rule"] for f in doc["after"]["gone"]] == ["power.fuse-inrush"]
+    assert "speed: time-lag" in copy.read_text("utf-8")

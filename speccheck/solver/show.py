@@ -95,3 +95,52 @@ def render_after(outcome: Outcome) -> str:
     for f in after:
         out.append(f"  remains: {finding_lines(f)[0]}")
     return "\n".join(out) + "\n"
+
+
+# ---- JSON: our own shape, versioned by "solve_version" ------------------------------------------
+
+def _finding(f) -> dict:
+    return {"rule": f.rule, "level": f.level, "line": f.location.line, "column": f.location.col,
+            "path": f.location.path, "message": f.message}
+
+
+def _option(o) -> dict:
+    return {"change": o.summary, "gives": o.result}
+
+
+def _proposal(p: Proposal) -> dict:
+    return {
+        "finding": _finding(p.finding),
+        "title": p.title,
+        "taken": _option(p.chosen) if p.chosen is not None else None,
+        "options": [_option(o) for o in p.options],
+        "held_back": p.held or None,
+        "clears": [_finding(f) for f in p.clears],
+        "note": p.note or None,
+        "source": p.source,
+    }
+
+
+def as_dict(outcome: Outcome) -> dict:
+    doc: dict = {"solve_version": 1, "file": str(outcome.path), "cautions": list(outcome.before.cautions)}
+    if outcome.refused:
+        doc["refused"] = outcome.refused
+        return doc
+    doc["proposals"] = [_proposal(p) for p in outcome.proposals]
+    doc["unsolved"] = [_finding(f) for f in outcome.unsolved]
+    doc["diff"] = outcome.diff()
+    if outcome.after is not None:
+        before = {f.fingerprint: f for f in outcome.before.findings if not f.waived}
+        remain = [f for f in outcome.after.findings if not f.waived]
+        still = {f.fingerprint for f in remain}
+        doc["after"] = {"gone": [_finding(f) for fp, f in before.items() if fp not in still],
+                        "remain": [_finding(f) for f in remain]}
+    return doc
+
+
+def render_json(outcome: Outcome) -> str:
+    import json
+
+    from speccheck.reporters.neutral import json_text
+
+    return json_text(json.dumps(as_dict(outcome), indent=2, ensure_ascii=False)) + "\n"
