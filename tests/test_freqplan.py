@@ -718,8 +718,8 @@ def test_adjacent_channel_rejection_on_the_sheet(clean_text):
     # FL1 stated ±7.5 kHz at 6 dB and ±15 kHz at 40 dB, voice on 25 kHz channels: the equivalent
     # Butterworth through both points (Williams & Taylor order equation) at 25 kHz off
     old = "FL1: {kind: filter, center: 455 kHz, bandwidth: 20 kHz, bandwidth_at: 6 dB,"
-    text = edited(clean_text, old, old.replace("20 kHz, bandwidth_at: 6 dB,",
-                                               "15 kHz, bandwidth_at: 6 dB, stopband: 30 kHz, stopband_at: 40 dB,"))
+    new = "15 kHz, bandwidth_at: 6 dB, stopband: 30 kHz, stopband_at: 40 dB,"
+    text = edited(clean_text, old, old.replace("20 kHz, bandwidth_at: 6 dB,", new))
     text = edited(text, "    service: voice\n", "    service: voice\n    channel_spacing: 25 kHz\n")
     n = math.log10((1e4 - 1) / (10 ** 0.6 - 1)) / (2 * math.log10(2))
     expected = 10 * math.log10(1 + (10 ** 0.6 - 1) * (25 / 7.5) ** (2 * n))
