@@ -14,7 +14,7 @@ from speccheck import __version__
 from speccheck.findings import LEVELS, RANK
 
 EXIT_CLEAN, EXIT_FINDINGS, EXIT_TROUBLE = 0, 1, 2
-REPORT_FORMATS = ("text", "json", "sarif", "markdown")
+REPORT_FORMATS = ("text", "json", "sarif", "markdown", "html")
 
 
 def _plain(text) -> str:
@@ -120,28 +120,15 @@ def main():
 
 @main.command()
 @click.argument("paths", nargs=-1, required=True, type=click.Path())
-@click.option(
-    "--format",
-    "fmt",
-    type=click.Choice(REPORT_FORMATS),
-    default="text",
-    show_default=True,
-    help="How to write the report (sarif: for code-scanning views; markdown: for a pull-request "
-    "comment or a mentor).",
-)
-@click.option(
-    "--fail-level",
-    type=click.Choice(LEVELS),
-    default=None,
-    help="Exit 1 when a finding at this level or above remains [default: the project file's, else error].",
-)
-@click.option(
-    "--output",
-    "-o",
-    type=click.Path(dir_okay=False, writable=True),
-    default=None,
-    help="Write the report to this file instead of standard output.",
-)
+@click.option("--format", "fmt", type=click.Choice(REPORT_FORMATS), default="text", show_default=True,
+              help="How to write the report (sarif: for code-scanning views; markdown: for a pull-request "
+                   "comment or a mentor; html: a page with pictures a mentor can send).")
+@click.option("--fail-level", type=click.Choice(LEVELS), default=None,
+              help="Exit 1 when a finding at this level or above remains [default: the project file's, "
+                   "else error].")
+@click.option("--output", "-o", type=click.Path(writable=True), default=None,
+              help="Write the report to this file instead of standard output; with --format html, a folder "
+                   "(existing, or named with a trailing /) gets one page per build and an index page.")
 @_project_options
 @click.option(
     "--skip",
@@ -198,19 +185,50 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
         run.baseline = baseline
         run.hidden = baseline_mod.hide(results, known)
     color = fmt == "text" and output is None and sys.stdout.isatty()
-    text = reporters.render(fmt, results, settings, color=color, run=run)
-    if output:
+    if output and _is_folder(output):
+        if fmt != "html":
+            _trouble(f"{_plain(output)} is a folder; only --format html writes a folder (one page per build)")
+        _write_pages(output, results, settings, run, force, [*files, settings.source, baseline])
+    elif output:
         from speccheck.reporters.neutral import plain
+
+        text = reporters.render(fmt, results, settings, color=color, run=run)
         from speccheck.reporters.text import tail_line
 
         _write(output, text, force, [*files, settings.source, baseline], "report")
         click.echo(f"{tail_line(results, run)}; report written to {plain(output)}", err=True)
     else:
-        click.echo(text, nl=False)
+        click.echo(reporters.render(fmt, results, settings, color=color, run=run), nl=False)
     if any(f.rule == "input.unreadable" for r in results for f in r.findings):
         sys.exit(EXIT_TROUBLE)
     worst = engine.worst(results)
     sys.exit(EXIT_FINDINGS if worst and RANK[worst] >= RANK[settings.fail_level] else EXIT_CLEAN)
+
+
+def _is_folder(output: str) -> bool:
+    from pathlib import Path
+
+    return output.endswith(("/", "\\")) or Path(output).is_dir()
+
+
+def _write_pages(folder: str, results, settings, run, force: bool, protected):
+    """One HTML page per build and index.html, into `folder` (made if missing); each written atomically,
+    an existing page replaced only with --force."""
+    from pathlib import Path
+
+    from speccheck.reporters.html import render_folder
+    from speccheck.reporters.text import tail_line
+
+    target = Path(folder)
+    try:
+        target.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        _trouble(f"{_plain(folder)}: cannot make the folder: {exc.strerror}")
+    pages = render_folder(results, settings, run)
+    for name, text in pages.items():
+        _write(str(target / name), text, force, protected, "report page")
+    click.echo(f"{tail_line(results, run)}; {len(pages) - 1} page{'' if len(pages) == 2 else 's'} and "
+               f"index.html written to {_plain(target)}", err=True)
 
 
 @main.command("baseline")
@@ -293,16 +311,13 @@ def list_rules(family):
 
 @main.command()
 @click.argument("path", type=click.Path(dir_okay=False))
-@click.option(
-    "--format",
-    "fmt",
-    type=click.Choice(["text", "json", "markdown"]),
-    default="text",
-    show_default=True,
-    help="How to write the sheet.",
-)
+@click.option("--format", "fmt", type=click.Choice(["text", "json", "markdown", "html"]), default="text",
+              show_default=True, help="How to write the sheet (html: a page with the pictures).")
+@click.option("--output", "-o", type=click.Path(dir_okay=False, writable=True), default=None,
+              help="Write the sheet to this file instead of standard output.")
 @_project_options
-def sheet(path, fmt, config, no_config):
+@_force_option
+def sheet(path, fmt, output, config, no_config, force):
     """Print the design sheet of one build: every value the rules derived, with units."""
     from pathlib import Path
 
@@ -315,7 +330,16 @@ def sheet(path, fmt, config, no_config):
         sys.exit(EXIT_TROUBLE)
     settings = _settings([path], config, no_config)
     result = engine.check_file(path, settings)
-    click.echo(sheet_reporter.render(result, fmt), nl=False)
+    if fmt == "html":
+        from speccheck.reporters.html import render_sheet
+
+        text = render_sheet(result, settings)
+    else:
+        text = sheet_reporter.render(result, fmt)
+    if output:
+        _write(output, text, force, [path, settings.source], "sheet")
+    else:
+        click.echo(text, nl=False)
     blocking = [f for f in result.findings if f.rule.startswith("input.")]
     for f in blocking:
         click.echo(finding_lines(f)[0], err=True)

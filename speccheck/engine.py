@@ -25,6 +25,8 @@ class FileResult:
     cautions: list[str] = field(default_factory=list)  # safety texts, shown first in every format
     checked: bool = False  # False when the file could not be read or parsed far enough for rules
     build_name: str = ""
+    parts: dict = field(default_factory=dict)  # reference designator -> kind (part kind, or "device")
+    chain: list = field(default_factory=list)  # (label, stage kind) in signal order, for reports' pictures
 
     def counts(self, include_waived: bool = False) -> dict[str, int]:
         out = {"error": 0, "warning": 0, "note": 0}
@@ -224,10 +226,18 @@ def warm_up() -> None:
     _WARM = True
 
 
+def _describe(build, result: FileResult):
+    """What a report needs to name things: each part's kind and the chain's stages in order."""
+    result.parts = {name: getattr(p, "kind", "") or "" for name, p in build.parts.items()}
+    result.parts.update({name: "device" for name in build.devices})
+    result.chain = [(s.label, s.kind) for s in build.chain]
+
+
 def check_loaded(loaded: loader.Loaded, settings: Settings) -> FileResult:
     result = FileResult(loaded.path, list(loaded.findings))
     result.build_name = loaded.name
     if loaded.can_check:
+        _describe(loaded.build, result)
         run_rules(loaded.build, result, settings)
         result.checked = True
     from speccheck import waivers

@@ -84,10 +84,13 @@ TEXT_LINE = re.compile(
     r"(?P<rule>\S+) (?P<message>.*?)(?: \[waived: (?P<reason>.*)\])?$"
 )
 MD_FILE = re.compile(r"^## `(?P<file>[^`]+)`")
-MD_FINDING = re.compile(
-    r"^- (?:\*\*(?P<level>\w+)\*\*|waived (?P<wlevel>\w+)) `(?P<rule>[^`]+)` at line "
-    r"(?P<line>\d+), col (?P<col>\d+)"
-)
+# The Markdown report's "settings used" table: item, rule, level, place, line:col, waived because.
+MD_FINDING = re.compile(r"^\| \d+ \| `(?P<rule>[^`]+)` \| (?P<level>\w+) \| [^|]* \| (?P<line>\d+):(?P<col>\d+) \| "
+                        r"(?P<reason>.*) \|$")
+HTML_FILE = re.compile(r'<p class="meta">Plan file <code>(?P<file>[^<]+)</code>')
+HTML_FINDING = re.compile(r'<tr><td><a href="#[^"]*">\d+</a></td><td><code>(?P<rule>[^<]+)</code></td>'
+                          r"<td>(?P<level>\w+)</td><td><code>[^<]*</code></td><td>(?P<line>\d+):(?P<col>\d+)</td>"
+                          r"<td>(?P<reason>[^<]*)</td></tr>")
 
 
 def from_text(out):
@@ -139,35 +142,41 @@ def from_sarif(out):
 
 
 def from_markdown(out):
-    found, file, last = set(), None, None
+    found, file = set(), None
     for line in out.splitlines():
         m = MD_FILE.match(line)
         if m:
             file = m["file"]
         m = MD_FINDING.match(line)
         if m:
-            last = [file, int(m["line"]), int(m["col"]), m["rule"], m["level"] or m["wlevel"], None]
-            found.add(tuple(last))
-        elif line.startswith("  - **Waived because:** ") and last:
-            found.discard(tuple(last))
-            last[5] = line.split(":** ", 1)[1].replace("\\", "")
-            found.add(tuple(last))
+            reason = m["reason"].strip().replace("\\", "") or None
+            found.add((file, int(m["line"]), int(m["col"]), m["rule"], m["level"], reason))
+    return found
+
+
+def from_html(out):
+    import html as html_mod
+
+    found, file = set(), None
+    for line in out.splitlines():
+        m = HTML_FILE.search(line)
+        if m:
+            file = html_mod.unescape(m["file"])
+        for m in HTML_FINDING.finditer(line):
+            found.add((file, int(m["line"]), int(m["col"]), m["rule"], m["level"],
+                       html_mod.unescape(m["reason"]) or None))
     return found
 
 
 def test_every_format_agrees_on_the_same_findings(repo):
     outs = {}
-    for fmt in ("text", "json", "sarif", "markdown"):
+    for fmt in ("text", "json", "sarif", "markdown", "html"):
         res = run("check", "--format", fmt, ".")
         assert res.exit_code == 1, (fmt, res.output)
         outs[fmt] = res.stdout
-    text, js, sa, md = (
-        from_text(outs["text"]),
-        from_json(outs["json"]),
-        from_sarif(outs["sarif"]),
-        from_markdown(outs["markdown"]),
-    )
-    assert text == js == sa == md
+    text, js, sa, md, page = (from_text(outs["text"]), from_json(outs["json"]), from_sarif(outs["sarif"]),
+                              from_markdown(outs["markdown"]), from_html(outs["html"]))
+    assert text == js == sa == md == page
     files = {f for f, *_ in text}
     assert files == {"builds/beginner.yaml", "builds/waived.yaml", "builds/unwaived.yaml"} | (
         {"builds/clean.yaml", "builds/club/starter.yaml"} & files

@@ -74,6 +74,9 @@ def image(build, ctx):
         where = osc.at("injection") if osc is not None else c.stage.loc
         values = [Value("input", c.f_in, "Hz"), Value("LO", c.lo, "Hz"), Value("image", img, "Hz")]
         band = c.ahead
+        if band is not None:  # the passband ahead of the mixer, for the frequency-plan picture
+            ctx.publish("conversion", c.owner, "passband ahead low edge", band.low, "Hz")
+            ctx.publish("conversion", c.owner, "passband ahead high edge", band.high, "Hz")
         if band is None:
             ctx.report(
                 f"{c.owner}: the image at {hz(img)} ({khz(abs(img - c.f_in))} from the wanted "

@@ -1,4 +1,5 @@
-"""Resonators: LC resonance and Q, coil loss, crystal load and pulling, toroid turns.
+"""Resonators: LC resonance and Q, coil loss, crystal load and pulling, toroid turns, and the
+response of a tuned circuit near resonance (the universal resonance curve).
 
 f0 = 1/(2 pi sqrt(LC)) and the parallel-RLC Q (any circuits text); crystal pulling
 D = C1/(2 (C0 + CL)) (IEC 60444 crystal-unit parameters; crystal-oscillator application
@@ -62,3 +63,33 @@ def toroid_turns(inductance: float, al: float) -> float:
 def toroid_inductance(turns: float, al: float) -> float:
     """L = AL N^2."""
     return al * turns * turns
+
+
+# ---- the universal resonance curve: the tank's response near resonance ----------------------------
+# For a parallel RLC tank of resonance f0 and loaded Q, driven by a current, the impedance
+# relative to its value at resonance is
+#
+#     Z(f) / R = 1 / (1 + j·Q·(f/f0 − f0/f))
+#
+# so the amplitude is 1 / sqrt(1 + x²) and the phase −atan(x), with x = Q·(f/f0 − f0/f)
+# (about 2·Q·(f − f0)/f0 near resonance). The amplitude is 3 dB down where x = ±1, that is a
+# bandwidth of f0/Q; a quadrature detector's output follows the phase, which is near-straight
+# over the same span. Source: the second-order band-pass H(s) = (ω0/Q)·s / (s² + (ω0/Q)·s + ω0²)
+# (Terman, Radio Engineers' Handbook, the universal resonance curve; the same H as
+# scipy.signal.freqs computes, used in the test).
+
+
+def detuning(f: float, f0: float, q: float) -> float:
+    """x = Q·(f/f0 − f0/f): how far off resonance, in half-bandwidths."""
+    return q * (f / f0 - f0 / f)
+
+
+def tank_amplitude(f: float, f0: float, q: float) -> float:
+    """|Z(f)| / R of a parallel tank: 1 at resonance, 1/√2 at f0 ± f0/(2Q) (near resonance)."""
+    x = detuning(f, f0, q)
+    return 1.0 / math.sqrt(1.0 + x * x)
+
+
+def tank_phase(f: float, f0: float, q: float) -> float:
+    """Phase of Z(f) in radians: 0 at resonance, −π/4 at the upper 3 dB point."""
+    return -math.atan(detuning(f, f0, q))

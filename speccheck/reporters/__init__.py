@@ -12,7 +12,7 @@ from speccheck.reporters.common import RunInfo, totals, value_dict
 
 __all__ = ["FORMATS", "RunInfo", "render", "totals", "value_dict"]
 
-FORMATS = ("text", "json", "sarif", "markdown")
+FORMATS = ("text", "json", "sarif", "markdown", "html")
 
 
 def render(fmt: str, results, settings, color: bool = False, run: RunInfo | None = None) -> str:
@@ -29,4 +29,7 @@ def render(fmt: str, results, settings, color: bool = False, run: RunInfo | None
     if fmt == "markdown":
         from speccheck.reporters import markdown
         return markdown.render(results, settings, run=run)
+    if fmt == "html":
+        from speccheck.reporters import html
+        return html.render(results, settings, run=run)
     raise ValueError(f"unknown format {fmt}")

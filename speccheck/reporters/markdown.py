@@ -1,9 +1,10 @@
 """Markdown, for a pull-request comment and for a mentor reading a beginner's plan.
 
 Layout: the safety cautions first (when any build has them), a summary line and a table of
-counts by level, then one section per file: findings grouped by stage of the signal chain,
-each with its numbers, the why in plain words, the fix and how to verify it on the bench;
-waived findings stay, marked with their reason; then the design sheet's derived values.
+counts by level, then one section per file in the order a beginner should act (reading.py, the
+same order as the HTML page): fix these first (errors, with related findings under their common
+cause), worth a look (warnings), good to know (notes), waived findings with their reason, the
+design sheet as tables per section, and last the rule ids, document paths and settings used.
 """
 
 from __future__ import annotations
@@ -37,92 +38,110 @@ def _counts_words(counts: dict) -> str:
     return ", ".join(_plural(counts[level], level) for level in reversed(LEVELS))
 
 
-def _chain_kinds() -> list[str]:
-    from speccheck.schema import build_schema
-
-    try:
-        return list(build_schema()["$defs"]["stage"]["properties"]["stage"]["enum"])
-    except (KeyError, TypeError):
-        return []
-
-
-# Sections that are not chain stages, in the order a reviewer reads them.
-_BEFORE = ("input", "signals", "source")
-_AFTER = ("supply", "power", "mains", "wiring", "audio", "general")
-_LAST = ("review", "internal")
-
-
-def _stage_order(findings) -> list[str]:
-    """Input first, then the chain stages in signal order (stages named by the plan where their
-    first finding falls), then supply, power and the rest, review last."""
-    seen: list[str] = []
-    for f in findings:
-        label = f.stage or "general"
-        if label not in seen:
-            seen.append(label)
-    chain = _chain_kinds()
-
-    def key(label: str):
-        if label in _BEFORE:
-            return (0, _BEFORE.index(label))
-        if label in chain:
-            return (1, chain.index(label))
-        if label in _LAST:
-            return (4, _LAST.index(label))
-        if label in _AFTER:
-            return (3, _AFTER.index(label))
-        return (2, seen.index(label))
-
-    return sorted(seen, key=key)
-
-
 def _one_line(text: str) -> str:
     return " ".join(text.split())
 
 
-def finding_block(f, rule, explained: set) -> list[str]:
-    loc = f.location
-    where = f"line {loc.line}, col {loc.col}" + (f" ({code(loc.path)})" if loc.path else "")
-    level = f"**{f.level}**"
-    if f.waived:
-        level = f"waived {f.level}"
-    lines = [f"- {level} {code(f.rule)} at {where}: {md(f.message)}"]
-    if f.waived:
-        lines.append(f"  - **Waived because:** {md(f.waived)}")
+# ---- one file, in the order a beginner should act ------------------------------------------------
+# Nested lines are indented four spaces: CommonMark nests them under their finding, and so do the
+# renderers that want four (Python-Markdown and the like).
+
+_IN = "    "
+LEVEL_WORDS = {"error": "must fix", "warning": "worth a look", "note": "good to know"}
+
+
+def _words(text, rule) -> str:
+    from speccheck.reporters.reading import plain
+
+    return md(_one_line(plain(text, rule)))
+
+
+def finding_block(f, rule, explained: set, number: int) -> list[str]:
+    """One finding: a list item with its numbers, fix, bench check and why nested under it."""
+    title = rule.title if rule is not None else f.rule
+    lines = [(f"- **{LEVEL_WORDS.get(f.level, f.level)}: {_words(title, rule)}** (line {f.location.line}, "
+              f"item {number}): {_words(f.message, rule)}")]
     if f.values:
-        lines.append("  - **Numbers:** " + "; ".join(f"{md(v.name)} {md(v.text)}" for v in f.values))
-    if f.waived:
-        return lines
+        lines.append(f"{_IN}- **The numbers:** " + "; ".join(f"{md(v.name)} {md(v.text)}" for v in f.values))
+    if f.fix:
+        lines.append(f"{_IN}- **What to do:** {_words(f.fix, rule)}")
+    if rule is not None and rule.verify:
+        lines.append(f"{_IN}- **Check it on the bench:** {_words(rule.verify, rule)}")
     if rule is not None and rule.explanation:
         if f.rule in explained:
-            lines.append(f"  - **Why:** as for the first {code(f.rule)} finding above.")
+            lines.append(f"{_IN}- **Why it matters:** as explained above for \"{_words(title, rule)}\".")
         else:
-            lines.append(f"  - **Why:** {prose(rule.explanation)}")
             explained.add(f.rule)
-    if f.fix:
-        lines.append(f"  - **Fix:** {prose(f.fix)}")
-    if rule is not None and rule.verify:
-        lines.append(f"  - **Verify on the bench:** {prose(rule.verify)}")
+            lines.append(f"{_IN}- **Why it matters:** {_words(rule.explanation, rule)}")
+    return lines
+
+
+def _group_blocks(heading: str, intro: str, groups, parts: dict, rules: dict, explained: set, order: list):
+    from speccheck.reporters.reading import group_title
+
+    if not groups:
+        return []
+    lines = ["", f"### {heading}", "", intro]
+    for g in groups:
+        title = group_title(g, parts)
+        shared = f" ({len(g.findings)} findings, one cause)" if len(g.findings) > 1 else ""
+        lines += ["", f"#### {md(title[:1].upper() + title[1:])}{shared}", ""]
+        for f in g.findings:
+            order.append(f)
+            lines.extend(finding_block(f, rules.get(f.rule), explained, len(order)))
+    return lines
+
+
+def _waived_block(findings, rules: dict, order: list) -> list[str]:
+    if not findings:
+        return []
+    lines = ["", "### Set aside on purpose", "", "Waived in the plan, each with its reason; they do not count.", ""]
+    for f in findings:
+        order.append(f)
+        lines.append(f"- **waived {f.level}** (line {f.location.line}, item {len(order)}): "
+                     f"{_words(f.message, rules.get(f.rule))}")
+        lines.append(f"{_IN}- **Waived because:** {md(f.waived)}")
     return lines
 
 
 def sheet_block(result) -> list[str]:
+    """The design sheet as one table per section, in the open (not folded away)."""
+    from speccheck.reporters.sheet import grouped
+
     if not result.sheet:
         return []
-    lines = [
-        "",
-        f"<details><summary>Design sheet: {_plural(len(result.sheet), 'derived value')}</summary>",
-        "",
-        "| section | part or path | quantity | value |",
-        "|---|---|---|---|",
-    ]
-    for e in result.sheet:
-        lines.append(f"| {md(e.section)} | {md(e.owner)} | {md(e.value.name)} | {md(e.value.text)} |")
-    lines += ["", "</details>"]
+    lines = ["", "### The design sheet", "", f"Every value the check worked out ({_plural(len(result.sheet), 'value')})."]
+    for section, owners in grouped(result).items():
+        lines += ["", f"#### {md(section)}", "", "| part or stage | quantity | value |", "|---|---|---:|"]
+        for owner, entries in owners.items():
+            for i, e in enumerate(entries):
+                lines.append(f"| {md(owner) if i == 0 else ''} | {md(e.value.name)} | {md(e.value.text)} |")
     return lines
 
 
-def file_block(result, rules: dict, hidden: int) -> list[str]:
+def settings_block(order: list, rules: dict, settings, result) -> list[str]:
+    """Rule ids, document paths and settings: for those who want them, at the end."""
+    from speccheck.reporters.reading import settings_of
+
+    if not order:
+        return []
+    lines = ["", "### Settings used", "", "| item | rule | level | place in the plan | line:col | waived because |",
+             "|---:|---|---|---|---|---|"]
+    for i, f in enumerate(order, 1):
+        lines.append(f"| {i} | {code(f.rule)} | {f.level} | {code(f.location.path) if f.location.path else ''} | "
+                     f"{f.location.line}:{f.location.col} | {md(f.waived) if f.waived else ''} |")
+    rows = []
+    for rule_id in dict.fromkeys(f.rule for f in order):
+        for name, value in settings_of(rules.get(rule_id), settings).items():
+            rows.append(f"| {code(rule_id)} | {code(name)} | {md(value)} |")
+    if rows:
+        lines += ["", "| rule | setting | value |", "|---|---|---|"] + rows
+    return lines
+
+
+def file_block(result, rules: dict, hidden: int, settings=None) -> list[str]:
+    from speccheck.reporters.reading import read
+
     title = code(result.path) + (f" ({md(result.build_name)})" if result.build_name else "")
     lines = ["", f"## {title}", ""]
     open_counts = result.counts()
@@ -135,20 +154,21 @@ def file_block(result, rules: dict, hidden: int) -> list[str]:
         extra.append(f"{hidden} hidden by the baseline")
     lines.append(summary + (f" ({', '.join(extra)})" if extra else "") + ".")
     if not result.checked:
-        lines += ["", "The rules did not run on this file: fix the input findings below first."]
+        lines += ["", "The rules did not run on this file: fix the problems with the file itself first."]
+    reading = read(result)
     explained: set = set()
-    for stage in _stage_order(result.findings):
-        in_stage = [f for f in result.findings if (f.stage or "general") == stage]
-        in_stage.sort(key=lambda f: (f.waived is not None, -_rank(f.level), f.location.line, f.location.col))
-        lines += ["", f"### Stage: {md(stage)}", ""]
-        for f in in_stage:
-            lines.extend(finding_block(f, rules.get(f.rule), explained))
+    order: list = []
+    parts = getattr(result, "parts", {}) or {}
+    lines += _group_blocks("Fix these first", "Each of these stops the build working, or damages a part, as planned.",
+                           reading.first, parts, rules, explained, order)
+    lines += _group_blocks("Worth a look", "Thin margins and missing protection: where the build will give trouble.",
+                           reading.then, parts, rules, explained, order)
+    lines += _group_blocks("Good to know", "Choices worth knowing, and values the check needed but the plan "
+                           "does not give.", reading.notes, parts, rules, explained, order)
+    lines += _waived_block(reading.waived, rules, order)
     lines.extend(sheet_block(result))
+    lines.extend(settings_block(order, rules, settings, result))
     return lines
-
-
-def _rank(level: str) -> int:
-    return LEVELS.index(level)
 
 
 def render(results, settings, run=None) -> str:
@@ -160,11 +180,8 @@ def render(results, settings, run=None) -> str:
     lines = ["# speccheck review", ""]
     cautioned = [r for r in results if r.cautions]
     if cautioned:
-        lines += [
-            "> **Safety first.** These builds can hurt someone. The cautions below apply before "
-            "anything else in this report.",
-            ">",
-        ]
+        lines += ["> **Safety first.** These builds can hurt someone. The cautions below apply before anything "
+                  "else in this report.", ">"]
         by_text: dict = {}
         for r in cautioned:
             for c in r.cautions:
@@ -178,10 +195,8 @@ def render(results, settings, run=None) -> str:
             lines += [f"> - {md(c)}" for c in texts]
             lines.append(">")
         if not any("electrical code" in c for c in by_text):
-            lines.append(
-                "> speccheck is a review aid, not an approval: local electrical codes and licensed "
-                "practice decide."
-            )
+            lines.append("> speccheck is a review aid, not an approval: local electrical codes and licensed "
+                         "practice decide.")
         if lines[-1] == ">":
             lines.pop()
         lines.append("")
@@ -191,12 +206,9 @@ def render(results, settings, run=None) -> str:
         extra.append(f"{counts['waived']} waived")
     if run.baseline:
         extra.append(f"{run.hidden_total} hidden by the baseline")
-    lines.append(
-        f"**{_plural(len(results), 'file')} checked: {_counts_words(counts)}"
-        + (f" ({', '.join(extra)})" if extra else "")
-        + f"**; fail level: {settings.fail_level}."
-    )
-    waived_by_level = dict.fromkeys(LEVELS, 0)
+    lines.append(f"**{_plural(len(results), 'file')} checked: {_counts_words(counts)}"
+                 + (f" ({', '.join(extra)})" if extra else "") + f"**; fail level: {settings.fail_level}.")
+    waived_by_level = {level: 0 for level in LEVELS}
     for r in results:
         for f in r.findings:
             if f.waived:
@@ -213,5 +225,5 @@ def render(results, settings, run=None) -> str:
         lines += [f"- note: {code(p)} skipped, excluded by the project file" for p in run.excluded]
         lines += [f"- note: {code(p)} skipped, {md(why)}" for p, why in run.set_aside]
     for r in results:
-        lines.extend(file_block(r, rules, run.hidden.get(r.path, 0)))
+        lines.extend(file_block(r, rules, run.hidden.get(r.path, 0), settings))
     return "\n".join(lines) + "\n"
