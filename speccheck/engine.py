@@ -25,8 +25,8 @@ class FileResult:
     cautions: list[str] = field(default_factory=list)  # safety texts, shown first in every format
     checked: bool = False  # False when the file could not be read or parsed far enough for rules
     build_name: str = ""
-    parts: dict = field(default_factory=dict)  # reference designator -> kind (part kind, or "device")
-    chain: list = field(default_factory=list)  # (label, stage kind) in signal order, for reports' pictures
+    parts: dict[str, str] = field(default_factory=dict)  # reference designator -> kind (or "device")
+    chain: list[tuple[str, str]] = field(default_factory=list)  # (label, stage kind) in signal order
 
     def counts(self, include_waived: bool = False) -> dict[str, int]:
         out = {"error": 0, "warning": 0, "note": 0}
@@ -226,10 +226,10 @@ def warm_up() -> None:
     _WARM = True
 
 
-def _describe(build, result: FileResult):
+def _describe(build: Any, result: FileResult) -> None:
     """What a report needs to name things: each part's kind and the chain's stages in order."""
     result.parts = {name: getattr(p, "kind", "") or "" for name, p in build.parts.items()}
-    result.parts.update({name: "device" for name in build.devices})
+    result.parts.update(dict.fromkeys(build.devices, "device"))
     result.chain = [(s.label, s.kind) for s in build.chain]
 
 

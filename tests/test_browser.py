@@ -18,8 +18,17 @@ from speccheck.config import Settings
 from speccheck.reporters import html
 
 BEGINNER = EXAMPLES / "beginner-plan.yaml"
-CHROMIUM_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-background-networking",
-                 "--disable-component-update", "--disable-sync", "--disable-default-apps", "--mute-audio"]
+CHROMIUM_ARGS = [
+    "--headless",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--no-first-run",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+    "--disable-default-apps",
+    "--mute-audio",
+]
 
 
 def _missing(what: str, hint: str):
@@ -49,8 +58,13 @@ def browser_page():
         seen: dict = {"console": [], "errors": [], "requests": [], "failed": []}
         with sync_playwright() as pw:
             context = pw.chromium.launch_persistent_context(
-                str(profile), executable_path=chromium, headless=True, args=CHROMIUM_ARGS,
-                viewport={"width": 1000, "height": 1200}, offline=True)
+                str(profile),
+                executable_path=chromium,
+                headless=True,
+                args=CHROMIUM_ARGS,
+                viewport={"width": 1000, "height": 1200},
+                offline=True,
+            )
             try:
                 page = context.new_page()
                 page.on("console", lambda m: seen["console"].append((m.type, m.text)))
@@ -60,14 +74,17 @@ def browser_page():
                 page.goto(path.as_uri(), wait_until="load")
                 page.screenshot(path=str(shot), full_page=True)
                 seen["figures"] = page.eval_on_selector_all(
-                    "figure svg", "els => els.map(e => { const r = e.getBoundingClientRect();"
+                    "figure svg",
+                    "els => els.map(e => { const r = e.getBoundingClientRect();"
                     " return {id: e.closest('figure').id, w: r.width, h: r.height,"
-                    " marks: e.querySelectorAll('path, use, text, rect').length}; })")
+                    " marks: e.querySelectorAll('path, use, text, rect').length}; })",
+                )
                 seen["height"] = page.evaluate("document.documentElement.scrollHeight")
                 seen["title"] = page.title()
                 page.emulate_media(media="print")
                 seen["print_figures"] = page.eval_on_selector_all(
-                    "figure svg", "els => els.map(e => e.getBoundingClientRect().width)")
+                    "figure svg", "els => els.map(e => e.getBoundingClientRect().width)"
+                )
             finally:
                 context.close()
         return seen
@@ -87,8 +104,10 @@ def _report(tmp_path: Path, example: Path) -> Path:
     return out
 
 
-@pytest.mark.parametrize("example,pictures", [(BEGINNER, {"chain", "plan0", "paths0", "tank0"}),
-                                              (CLEAN, {"chain", "plan0", "paths0", "tank0"})])
+@pytest.mark.parametrize(
+    "example,pictures",
+    [(BEGINNER, {"chain", "plan0", "paths0", "tank0"}), (CLEAN, {"chain", "plan0", "paths0", "tank0"})],
+)
 def test_report_renders_in_headless_chromium(browser_page, tmp_path, example, pictures):
     page = _report(tmp_path, example)
     shot = tmp_path / f"{example.stem}.png"

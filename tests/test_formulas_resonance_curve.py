@@ -16,7 +16,7 @@ def test_amplitude_and_phase_match_the_band_pass_transfer_function(f0, q):
     w0 = 2 * math.pi * f0
     freqs = np.linspace(0.6 * f0, 1.4 * f0, 41)
     _, h = signal.freqs([w0 / q, 0.0], [1.0, w0 / q, w0 * w0], worN=2 * math.pi * freqs)
-    for f, hv in zip(freqs, h):
+    for f, hv in zip(freqs, h, strict=True):
         assert tank_amplitude(float(f), f0, q) == pytest.approx(abs(hv), rel=1e-9)
         assert tank_phase(float(f), f0, q) == pytest.approx(float(np.angle(hv)), abs=1e-9)
 

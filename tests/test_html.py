@@ -78,8 +78,11 @@ def test_reading_order_cautions_findings_pictures_sheet_settings():
     out = page_of(engine.check_file(MAINS))
     ids = Page(out).ids
     order = [i for i in ids if i in ("safety", "first", "then", "notes", "pictures", "sheet", "settings")]
-    assert order[0] == "safety" and order[-3:] == ["pictures", "sheet", "settings"] if "pictures" in order \
+    assert (
+        order[0] == "safety" and order[-3:] == ["pictures", "sheet", "settings"]
+        if "pictures" in order
         else order[-2:] == ["sheet", "settings"]
+    )
     assert order.index("first") < order.index("then")
     words = Page(out).words
     assert words.index("HAZARDOUS VOLTAGE") < words.index("Fix these first")
@@ -187,7 +190,9 @@ def test_cli_html_to_a_file_and_a_folder_of_pages(tmp_path):
     assert res.exit_code == 1, res.output
     assert one.read_text("utf-8").startswith("<!DOCTYPE html>")
     folder = tmp_path / "pages"
-    res = runner.invoke(main, ["check", "--format", "html", "-o", f"{folder}/", str(BEGINNER), str(CLEAN), str(MAINS)])
+    res = runner.invoke(
+        main, ["check", "--format", "html", "-o", f"{folder}/", str(BEGINNER), str(CLEAN), str(MAINS)]
+    )
     assert res.exit_code == 1, res.output
     names = sorted(p.name for p in folder.iterdir())
     assert "index.html" in names and len(names) == 4
@@ -212,8 +217,14 @@ def test_sheet_command_writes_an_html_page(tmp_path):
 
 def test_a_plain_check_does_not_import_the_plotting_library():
     env = dict(os.environ, PYTHONPATH=str(ROOT))
-    out = subprocess.run([sys.executable, "-X", "importtime", "-m", "speccheck", "check", str(CLEAN)],
-                         capture_output=True, text=True, env=env, cwd=ROOT, check=False)
+    out = subprocess.run(
+        [sys.executable, "-X", "importtime", "-m", "speccheck", "check", str(CLEAN)],
+        capture_output=True,
+        text=True,
+        env=env,
+        cwd=ROOT,
+        check=False,
+    )
     assert out.returncode == 0, out.stderr[-2000:]
     imported = {line.split("|")[-1].strip() for line in out.stderr.splitlines() if "|" in line}
     assert not [m for m in imported if m.startswith("matplotlib")]

@@ -17,10 +17,13 @@ from speccheck.config import Settings
 from speccheck.reporters import RunInfo, markdown, reading
 
 markdown_it = pytest.importorskip("markdown_it")
-from markdown_it.tree import SyntaxTreeNode
+SyntaxTreeNode = pytest.importorskip("markdown_it.tree").SyntaxTreeNode
 
 BEGINNER = EXAMPLES / "beginner-plan.yaml"
-C33 = "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: [V12, GND], positive: V12}"
+C33 = (
+    "  C33: {kind: capacitor, value: 220 uF, dielectric: electrolytic, voltage_rating: 10 V, ends: [V12, "
+    "GND], positive: V12}"
+)
 CRYSTAL = "  X1: {kind: crystal, frequency: 10.245 MHz,"
 OFF_CRYSTAL = "  X1: {kind: crystal, frequency: 10.232 MHz,"
 
@@ -47,8 +50,11 @@ def finding_items(node) -> list:
     for lst in (n for n in node.walk() if n.type == "bullet_list"):
         for item in lst.children:
             first = item.children[0] if item.children else None
-            if first is not None and first.type == "paragraph" and re.match(
-                    r"(must fix|worth a look|good to know|waived)", inline_text(first)):
+            if (
+                first is not None
+                and first.type == "paragraph"
+                and re.match(r"(must fix|worth a look|good to know|waived)", inline_text(first))
+            ):
                 out.append(item)
     return out
 
@@ -67,12 +73,17 @@ def test_summary_line_and_table_of_counts():
     lines = out.splitlines()
     assert lines[0] == "# speccheck review"
     counts = {lv: sum(1 for f in result.findings if f.level == lv) for lv in ("error", "warning", "note")}
-    said = ", ".join(f"{counts[lv]} {lv}{'' if counts[lv] == 1 else 's'}" for lv in ("error", "warning", "note"))
+    said = ", ".join(
+        f"{counts[lv]} {lv}{'' if counts[lv] == 1 else 's'}" for lv in ("error", "warning", "note")
+    )
     assert f"**1 file checked: {said}**; fail level: error." in lines
     head = lines.index("| level | open | waived |")
     assert lines[head + 1] == "|---|---:|---:|"
-    assert lines[head + 2:head + 5] == [f"| error | {counts['error']} | 0 |", f"| warning | {counts['warning']} | 0 |",
-                                        f"| note | {counts['note']} | 0 |"]
+    assert lines[head + 2 : head + 5] == [
+        f"| error | {counts['error']} | 0 |",
+        f"| warning | {counts['warning']} | 0 |",
+        f"| note | {counts['note']} | 0 |",
+    ]
 
 
 def test_reading_order_errors_first_then_warnings_notes_sheet_settings():
@@ -92,7 +103,9 @@ def test_details_nest_under_their_finding_in_commonmark():
     assert len(items) == len(result.findings)
     tank = registry.get("wiring.tank-return")
     first = items[0]
-    assert inline_text(first.children[0]).startswith("must fix: Quadrature tank must return to the supply rail")
+    assert inline_text(first.children[0]).startswith(
+        "must fix: Quadrature tank must return to the supply rail"
+    )
     nested = [c for c in first.children if c.type == "bullet_list"]
     assert len(nested) == 1, "numbers, fix, bench check and why must be one list nested in the finding's item"
     labels = [inline_text(li.children[0]).split(":", 1)[0] for li in nested[0].children]
@@ -105,10 +118,16 @@ def test_details_nest_under_their_finding_in_commonmark():
 def test_related_findings_share_one_group():
     out = render([engine.check_file(BEGINNER)])
     parts = sections(out)
-    crystal = parts["Worth a look"].split("#### X1, the crystal (3 findings, one cause)", 1)[1].split("####")[0]
+    crystal = (
+        parts["Worth a look"].split("#### X1, the crystal (3 findings, one cause)", 1)[1].split("####")[0]
+    )
     assert "DC standing across a crystal" in crystal
     assert crystal.count(": Crystal load capacitance differs") == 2
-    coupling = parts["Fix these first"].split("#### C20, the capacitor (2 findings, one cause)", 1)[1].split("####")[0]
+    coupling = (
+        parts["Fix these first"]
+        .split("#### C20, the capacitor (2 findings, one cause)", 1)[1]
+        .split("####")[0]
+    )
     assert "Speaker coupling capacitor orientation" in coupling
     assert "Output coupling capacitor against the lowest audio frequency" in coupling
 
@@ -120,7 +139,11 @@ def test_a_crystal_that_moves_the_if_off_the_filter_is_one_cause(tmp_path):
     assert any(f.rule == "freqplan.filter-fit" and f.level == "error" for f in result.findings)
     groups = reading.read(result).first
     crystal = next(g for g in groups if any(f.rule == "freqplan.filter-fit" for f in g.findings))
-    assert {f.rule for f in crystal.findings} >= {"freqplan.filter-fit", "freqplan.crystal-load", "wiring.crystal-dc"}
+    assert {f.rule for f in crystal.findings} >= {
+        "freqplan.filter-fit",
+        "freqplan.crystal-load",
+        "wiring.crystal-dc",
+    }
     first = sections(render([result]))["Fix these first"]
     group = first.split("#### X1, the crystal (4 findings, one cause)", 1)[1].split("####")[0]
     assert group.index("must fix: ") < group.index("worth a look: Crystal load capacitance differs")
@@ -144,16 +167,20 @@ def test_plain_words_drop_settings_and_paths_but_keep_plan_names():
     assert "close_factor" not in said and "harmonic_order" not in said and "setting order" not in said
     assert reading.plain("Give chain[1].oscillator.stray.") == "Give the stray of the oscillator."
     assert reading.plain("State 'lowest_audio:' under build") == "State “lowest audio” under build"
-    assert reading.plain("pin osc_base of U1; U1.osc_base; f_c = 1/(2 pi R_L C)") == \
-        "pin osc_base of U1; U1.osc_base; f_c = 1/(2 pi R_L C)"
+    assert (
+        reading.plain("pin osc_base of U1; U1.osc_base; f_c = 1/(2 pi R_L C)")
+        == "pin osc_base of U1; U1.osc_base; f_c = 1/(2 pi R_L C)"
+    )
 
 
 def test_why_is_told_once_per_rule_and_file():
     out = render([engine.check_file(BEGINNER)])
     explanation = " ".join(registry.get("wiring.cap-voltage").explanation.split())
     assert out.count(explanation) == 1
-    assert '    - **Why it matters:** as explained above for "Capacitor voltage rating against the voltage across ' \
-           'it".' in out
+    assert (
+        '    - **Why it matters:** as explained above for "Capacitor voltage rating against the voltage '
+        'across it".' in out
+    )
 
 
 def test_cautions_come_first():
@@ -168,14 +195,19 @@ def test_cautions_come_first():
 
 def test_waived_findings_stay_marked_with_their_reason(tmp_path):
     plan = tmp_path / "plan.yaml"
-    plan.write_text(edited(BEGINNER.read_text("utf-8"), C33, C33 + "  # waive wiring.cap-voltage because stand-in"))
+    plan.write_text(
+        edited(BEGINNER.read_text("utf-8"), C33, C33 + "  # waive wiring.cap-voltage because stand-in")
+    )
     result = engine.check_file(plan)
     out = render([result])
     waived = sections(out)["Set aside on purpose"]
     assert "- **waived error** (line 43, item " in waived
     assert "    - **Waived because:** stand-in" in waived
-    assert re.search(r"^\| \d+ \| `wiring.cap-voltage` \| error \| `parts.C33.voltage_rating` \| 43:83 \| stand-in \|$",
-                     out, re.MULTILINE)
+    assert re.search(
+        r"^\| \d+ \| `wiring.cap-voltage` \| error \| `parts.C33.voltage_rating` \| 43:83 \| stand-in \|$",
+        out,
+        re.MULTILINE,
+    )
     assert re.search(r"^\| error \| \d+ \| 1 \|$", out, re.MULTILINE)
     assert "(1 waived)" in out
 
@@ -197,8 +229,12 @@ def test_design_sheet_is_open_tables_per_section_and_clean_files_say_so():
 
 def test_skipped_files_and_baseline_are_said():
     result = engine.check_file(BEGINNER)
-    out = render([result], run=RunInfo(skipped=["notes.yaml"], excluded=["old/x.yaml"], baseline="b.json",
-                                       hidden={str(BEGINNER): 3}))
+    out = render(
+        [result],
+        run=RunInfo(
+            skipped=["notes.yaml"], excluded=["old/x.yaml"], baseline="b.json", hidden={str(BEGINNER): 3}
+        ),
+    )
     assert "- note: `notes.yaml` skipped, not a build file (no `build_spec:` key)" in out
     assert "- note: `old/x.yaml` skipped, excluded by the project file" in out
     assert "3 hidden by the baseline" in out

@@ -85,12 +85,16 @@ TEXT_LINE = re.compile(
 )
 MD_FILE = re.compile(r"^## `(?P<file>[^`]+)`")
 # The Markdown report's "settings used" table: item, rule, level, place, line:col, waived because.
-MD_FINDING = re.compile(r"^\| \d+ \| `(?P<rule>[^`]+)` \| (?P<level>\w+) \| [^|]* \| (?P<line>\d+):(?P<col>\d+) \| "
-                        r"(?P<reason>.*) \|$")
+MD_FINDING = re.compile(
+    r"^\| \d+ \| `(?P<rule>[^`]+)` \| (?P<level>\w+) \| [^|]* \| (?P<line>\d+):(?P<col>\d+) \| "
+    r"(?P<reason>.*) \|$"
+)
 HTML_FILE = re.compile(r'<p class="meta">Plan file <code>(?P<file>[^<]+)</code>')
-HTML_FINDING = re.compile(r'<tr><td><a href="#[^"]*">\d+</a></td><td><code>(?P<rule>[^<]+)</code></td>'
-                          r"<td>(?P<level>\w+)</td><td><code>[^<]*</code></td><td>(?P<line>\d+):(?P<col>\d+)</td>"
-                          r"<td>(?P<reason>[^<]*)</td></tr>")
+HTML_FINDING = re.compile(
+    r'<tr><td><a href="#[^"]*">\d+</a></td><td><code>(?P<rule>[^<]+)</code></td>'
+    r"<td>(?P<level>\w+)</td><td><code>[^<]*</code></td><td>(?P<line>\d+):(?P<col>\d+)</td>"
+    r"<td>(?P<reason>[^<]*)</td></tr>"
+)
 
 
 def from_text(out):
@@ -163,8 +167,16 @@ def from_html(out):
         if m:
             file = html_mod.unescape(m["file"])
         for m in HTML_FINDING.finditer(line):
-            found.add((file, int(m["line"]), int(m["col"]), m["rule"], m["level"],
-                       html_mod.unescape(m["reason"]) or None))
+            found.add(
+                (
+                    file,
+                    int(m["line"]),
+                    int(m["col"]),
+                    m["rule"],
+                    m["level"],
+                    html_mod.unescape(m["reason"]) or None,
+                )
+            )
     return found
 
 
@@ -174,8 +186,13 @@ def test_every_format_agrees_on_the_same_findings(repo):
         res = run("check", "--format", fmt, ".")
         assert res.exit_code == 1, (fmt, res.output)
         outs[fmt] = res.stdout
-    text, js, sa, md, page = (from_text(outs["text"]), from_json(outs["json"]), from_sarif(outs["sarif"]),
-                              from_markdown(outs["markdown"]), from_html(outs["html"]))
+    text, js, sa, md, page = (
+        from_text(outs["text"]),
+        from_json(outs["json"]),
+        from_sarif(outs["sarif"]),
+        from_markdown(outs["markdown"]),
+        from_html(outs["html"]),
+    )
     assert text == js == sa == md == page
     files = {f for f, *_ in text}
     assert files == {"builds/beginner.yaml", "builds/waived.yaml", "builds/unwaived.yaml"} | (

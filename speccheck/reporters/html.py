@@ -19,8 +19,10 @@ import re
 from speccheck import __version__
 from speccheck.findings import LEVELS
 
-CSP = ("default-src 'none'; style-src 'unsafe-inline'; img-src data:; font-src 'none'; "
-       "base-uri 'none'; form-action 'none'")
+CSP = (
+    "default-src 'none'; style-src 'unsafe-inline'; img-src data:; font-src 'none'; "
+    "base-uri 'none'; form-action 'none'"
+)
 
 LEVEL_WORDS = {"error": "must fix", "warning": "worth a look", "note": "good to know"}
 
@@ -34,7 +36,8 @@ h2 { font-size: 1.25rem; margin: 2.2rem 0 .6rem; padding-bottom: .2rem; border-b
 h3 { font-size: 1.05rem; margin: 1.2rem 0 .4rem; }
 p { margin: .35rem 0; }
 .meta { color: #555; font-size: .9rem; }
-.verdict { font-size: 1.1rem; margin: .8rem 0; padding: .6rem .8rem; background: #f3f3f3; border-left: 6px solid #555; }
+.verdict { font-size: 1.1rem; margin: .8rem 0; padding: .6rem .8rem; background: #f3f3f3;
+  border-left: 6px solid #555; }
 .verdict.bad { border-left: 6px double #b33c00; }
 .verdict.good { border-left: 6px solid #00795a; }
 .cautions { border: 3px solid #1a1a1a; padding: .4rem 1rem .8rem; margin: 1rem 0; background: #fff8e6; }
@@ -57,7 +60,8 @@ p { margin: .35rem 0; }
 .why { color: #333; font-size: .95rem; }
 .where { color: #555; font-size: .85rem; }
 table { border-collapse: collapse; margin: .4rem 0 .8rem; font-size: .92rem; }
-th, td { text-align: left; padding: .15rem .7rem .15rem 0; border-bottom: 1px solid #ddd; vertical-align: top; }
+th, td { text-align: left; padding: .15rem .7rem .15rem 0; border-bottom: 1px solid #ddd;
+  vertical-align: top; }
 th { border-bottom: 2px solid #999; }
 td.value { font-variant-numeric: tabular-nums; white-space: nowrap; }
 table.numbers { font-size: .88rem; }
@@ -96,16 +100,21 @@ def _slug(text: str) -> str:
 
 # ---- one build ------------------------------------------------------------------------------
 
+
 def _verdict(result, reading) -> str:
     errors = sum(len([f for f in g.findings if f.level == "error"]) for g in reading.groups())
     warnings = sum(len([f for f in g.findings if f.level == "warning"]) for g in reading.groups())
     notes = sum(len([f for f in g.findings if f.level == "note"]) for g in reading.groups())
     if not result.checked:
-        return ('<p class="verdict bad">The plan could not be checked as written: the problems with the file '
-                "itself are listed below. Fix them first, then check again.</p>")
+        return (
+            '<p class="verdict bad">The plan could not be checked as written: the problems with the file '
+            "itself are listed below. Fix them first, then check again.</p>"
+        )
     if not (errors or warnings or notes):
-        return ('<p class="verdict good">Nothing to fix: the plan passes every check. The pictures and the design '
-                "sheet below show what the numbers work out to.</p>")
+        return (
+            '<p class="verdict good">Nothing to fix: the plan passes every check. The pictures and the '
+            "design sheet below show what the numbers work out to.</p>"
+        )
     parts = []
     if errors:
         parts.append(f"{_plural(errors, 'thing')} to fix before you build")
@@ -120,13 +129,17 @@ def _verdict(result, reading) -> str:
 def _cautions(cautions) -> list[str]:
     if not cautions:
         return []
-    out = ['<section class="cautions" aria-labelledby="safety"><h2 id="safety">Safety first</h2>',
-           "<p>This build can hurt someone. Read these before anything else in this report.</p><ul>"]
+    out = [
+        '<section class="cautions" aria-labelledby="safety"><h2 id="safety">Safety first</h2>',
+        "<p>This build can hurt someone. Read these before anything else in this report.</p><ul>",
+    ]
     out += [f"<li>{esc(c)}</li>" for c in cautions]
     out.append("</ul>")
     if not any("electrical code" in c for c in cautions):
-        out.append("<p>speccheck is a review aid, not an approval: local electrical codes and licensed practice "
-                   "decide.</p>")
+        out.append(
+            "<p>speccheck is a review aid, not an approval: local electrical codes and licensed practice "
+            "decide.</p>"
+        )
     out.append("</section>")
     return out
 
@@ -143,22 +156,32 @@ def _finding(f, number: int, rule, explained: set, pictures: dict, prefix: str) 
 
     title = rule.title if rule is not None else f.rule
     badge = f'<span class="badge {esc(f.level)}">{esc(LEVEL_WORDS.get(f.level, f.level))}</span>'
-    out = [f'<div class="finding" id="{prefix}f{number}">',
-           f"<p>{badge}<strong>{esc(plain(title, rule))}</strong></p>",
-           f"<p>{esc(plain(f.message, rule))}</p>", _numbers(f.values)]
+    out = [
+        f'<div class="finding" id="{prefix}f{number}">',
+        f"<p>{badge}<strong>{esc(plain(title, rule))}</strong></p>",
+        f"<p>{esc(plain(f.message, rule))}</p>",
+        _numbers(f.values),
+    ]
     if f.fix:
         out.append(f'<p><span class="label">What to do:</span> {esc(plain(f.fix, rule))}</p>')
     if rule is not None and rule.verify:
-        out.append(f'<p><span class="label">Check it on the bench:</span> {esc(plain(rule.verify, rule))}</p>')
+        out.append(
+            f'<p><span class="label">Check it on the bench:</span> {esc(plain(rule.verify, rule))}</p>'
+        )
     if rule is not None and rule.explanation:
         if f.rule in explained:
-            out.append('<p class="why"><span class="label">Why it matters:</span> as explained above for '
-                       f"&ldquo;{esc(plain(title, rule))}&rdquo;.</p>")
+            out.append(
+                '<p class="why"><span class="label">Why it matters:</span> as explained above for '
+                f"&ldquo;{esc(plain(title, rule))}&rdquo;.</p>"
+            )
         else:
             explained.add(f.rule)
             paragraphs = [p for p in plain(rule.explanation, rule).split("\n\n") if p.strip()]
-            out.append('<div class="why"><p><span class="label">Why it matters:</span> '
-                       + "</p><p>".join(esc(p) for p in paragraphs) + "</p></div>")
+            out.append(
+                '<div class="why"><p><span class="label">Why it matters:</span> '
+                + "</p><p>".join(esc(p) for p in paragraphs)
+                + "</p></div>"
+            )
     picture = pictures.get(f.stage or "")
     where = f"Line {f.location.line} of the plan"
     if picture:
@@ -173,8 +196,10 @@ def _groups(heading: str, hid: str, intro: str, groups, ctx) -> list[str]:
         return []
     from speccheck.reporters.reading import group_title
 
-    out = [f'<section aria-labelledby="{ctx["prefix"]}{hid}"><h2 id="{ctx["prefix"]}{hid}">{esc(heading)}</h2>',
-           f"<p>{esc(intro)}</p>"]
+    out = [
+        f'<section aria-labelledby="{ctx["prefix"]}{hid}"><h2 id="{ctx["prefix"]}{hid}">{esc(heading)}</h2>',
+        f"<p>{esc(intro)}</p>",
+    ]
     for g in groups:
         n = len(g.findings)
         out.append(f'<article class="group {esc(g.level)}">')
@@ -184,8 +209,9 @@ def _groups(heading: str, hid: str, intro: str, groups, ctx) -> list[str]:
         for f in g.findings:
             ctx["number"] += 1
             ctx["order"].append(f)
-            out += _finding(f, ctx["number"], ctx["rules"].get(f.rule), ctx["explained"], ctx["pictures"],
-                            ctx["prefix"])
+            out += _finding(
+                f, ctx["number"], ctx["rules"].get(f.rule), ctx["explained"], ctx["pictures"], ctx["prefix"]
+            )
         out.append("</article>")
     out.append("</section>")
     return out
@@ -197,33 +223,47 @@ def _waived(findings, ctx) -> list[str]:
     from speccheck.reporters.reading import plain
 
     p = ctx["prefix"]
-    out = [f'<section aria-labelledby="{p}waived"><h2 id="{p}waived">Set aside on purpose</h2>',
-           "<p>These findings were waived in the plan, each with its reason. They do not count against it.</p><ul>"]
+    out = [
+        f'<section aria-labelledby="{p}waived"><h2 id="{p}waived">Set aside on purpose</h2>',
+        "<p>These findings were waived in the plan, each with its reason. They do not count against it.</p>"
+        "<ul>",
+    ]
     for f in findings:
         ctx["number"] += 1
         ctx["order"].append(f)
         rule = ctx["rules"].get(f.rule)
-        out.append(f'<li id="{p}f{ctx["number"]}"><span class="badge waived">waived</span>'
-                   f"{esc(plain(f.message, rule))} <em>Reason given: {esc(f.waived)}</em> "
-                   f'<span class="where">(line {f.location.line})</span></li>')
+        out.append(
+            f'<li id="{p}f{ctx["number"]}"><span class="badge waived">waived</span>'
+            f"{esc(plain(f.message, rule))} <em>Reason given: {esc(f.waived)}</em> "
+            f'<span class="where">(line {f.location.line})</span></li>'
+        )
     out.append("</ul></section>")
     return out
 
 
-def _figures(figs, prefix: str, heading: str = "The plan in pictures", hid: str = "pictures",
-             intro: str = "Drawn from the numbers the check worked out; nothing here is drawn by hand.") -> list[str]:
+def _figures(
+    figs,
+    prefix: str,
+    heading: str = "The plan in pictures",
+    hid: str = "pictures",
+    intro: str = "Drawn from the numbers the check worked out; nothing here is drawn by hand.",
+) -> list[str]:
     if not figs:
         return []
-    out = [f'<section aria-labelledby="{prefix}{hid}"><h2 id="{prefix}{hid}">{esc(heading)}</h2>',
-           f"<p>{esc(intro)}</p>"]
+    out = [
+        f'<section aria-labelledby="{prefix}{hid}"><h2 id="{prefix}{hid}">{esc(heading)}</h2>',
+        f"<p>{esc(intro)}</p>",
+    ]
     for fig in figs:
         svg = fig.svg.replace("<svg", f'<svg role="img" aria-labelledby="{prefix}{fig.key}-t"', 1)
         title = f'<title id="{prefix}{fig.key}-t">{esc(fig.title)}: {esc(fig.alt)}</title>'
         opening = re.search(r"<svg[^>]*>", svg)
         if opening:
-            svg = svg[:opening.end()] + title + svg[opening.end():]
-        out.append(f'<figure id="{prefix}{fig.key}">{svg}<figcaption><span class="label">{esc(fig.title)}.</span> '
-                   f"{esc(fig.alt)}</figcaption></figure>")
+            svg = svg[: opening.end()] + title + svg[opening.end() :]
+        out.append(
+            f'<figure id="{prefix}{fig.key}">{svg}<figcaption><span class="label">{esc(fig.title)}.</span> '
+            f"{esc(fig.alt)}</figcaption></figure>"
+        )
     out.append("</section>")
     return out
 
@@ -238,13 +278,17 @@ def _sheet(result, prefix: str) -> list[str]:
         out.append("<p>Every value the check worked out, stage by stage.</p>")
     for section, owners in grouped(result).items():
         out.append(f"<h3>{esc(section[:1].upper() + section[1:].replace('-', ' '))}</h3>")
-        out.append('<table><thead><tr><th scope="col">part or stage</th><th scope="col">quantity</th>'
-                   '<th scope="col">value</th></tr></thead><tbody>')
+        out.append(
+            '<table><thead><tr><th scope="col">part or stage</th><th scope="col">quantity</th>'
+            '<th scope="col">value</th></tr></thead><tbody>'
+        )
         for owner, entries in owners.items():
             for i, e in enumerate(entries):
                 who = esc(owner) if i == 0 else ""
-                out.append(f"<tr><td>{who}</td><td>{esc(e.value.name)}</td>"
-                           f'<td class="value">{esc(e.value.text)}</td></tr>')
+                out.append(
+                    f"<tr><td>{who}</td><td>{esc(e.value.name)}</td>"
+                    f'<td class="value">{esc(e.value.text)}</td></tr>'
+                )
         out.append("</tbody></table>")
     out.append("</section>")
     return out
@@ -253,17 +297,26 @@ def _sheet(result, prefix: str) -> list[str]:
 def _settings_used(order, rules, settings, result, prefix: str) -> list[str]:
     from speccheck.reporters.reading import settings_of
 
-    out = [f'<section aria-labelledby="{prefix}settings"><h2 id="{prefix}settings">Settings used</h2>',
-           ("<p>For those who want the details: each item above with its rule and where it points in the plan, "
-            "and the settings the rules ran with (a project file can change them).</p>")]
+    out = [
+        f'<section aria-labelledby="{prefix}settings"><h2 id="{prefix}settings">Settings used</h2>',
+        (
+            "<p>For those who want the details: each item above with its rule and where it points in the "
+            "plan, "
+            "and the settings the rules ran with (a project file can change them).</p>"
+        ),
+    ]
     if order:
-        out.append('<table><thead><tr><th scope="col">item</th><th scope="col">rule</th><th scope="col">level</th>'
-                   '<th scope="col">place in the plan</th><th scope="col">line:column</th>'
-                   '<th scope="col">waived because</th></tr></thead><tbody>')
+        out.append(
+            '<table><thead><tr><th scope="col">item</th><th scope="col">rule</th><th scope="col">level</th>'
+            '<th scope="col">place in the plan</th><th scope="col">line:column</th>'
+            '<th scope="col">waived because</th></tr></thead><tbody>'
+        )
         for i, f in enumerate(order, 1):
-            out.append(f'<tr><td><a href="#{prefix}f{i}">{i}</a></td><td><code>{esc(f.rule)}</code></td>'
-                       f"<td>{esc(f.level)}</td><td><code>{esc(f.location.path or '')}</code></td>"
-                       f"<td>{f.location.line}:{f.location.col}</td><td>{esc(f.waived or '')}</td></tr>")
+            out.append(
+                f'<tr><td><a href="#{prefix}f{i}">{i}</a></td><td><code>{esc(f.rule)}</code></td>'
+                f"<td>{esc(f.level)}</td><td><code>{esc(f.location.path or '')}</code></td>"
+                f"<td>{f.location.line}:{f.location.col}</td><td>{esc(f.waived or '')}</td></tr>"
+            )
         out.append("</tbody></table>")
     fired = []
     for f in order:
@@ -273,21 +326,27 @@ def _settings_used(order, rules, settings, result, prefix: str) -> list[str]:
     rows = []
     for rule_id in fired:
         for name, value in settings_of(rules.get(rule_id), settings).items():
-            rows.append(f"<tr><td><code>{esc(rule_id)}</code></td><td><code>{esc(name)}</code></td>"
-                        f'<td class="value">{esc(value)}</td></tr>')
+            rows.append(
+                f"<tr><td><code>{esc(rule_id)}</code></td><td><code>{esc(name)}</code></td>"
+                f'<td class="value">{esc(value)}</td></tr>'
+            )
     if rows:
-        out.append('<table><thead><tr><th scope="col">rule</th><th scope="col">setting</th>'
-                   '<th scope="col">value</th></tr></thead><tbody>' + "".join(rows) + "</tbody></table>")
+        out.append(
+            '<table><thead><tr><th scope="col">rule</th><th scope="col">setting</th>'
+            '<th scope="col">value</th></tr></thead><tbody>' + "".join(rows) + "</tbody></table>"
+        )
     level = getattr(settings, "fail_level", "error")
     source = getattr(settings, "source", "")
-    out.append(f"<p>Fail level: {esc(level)}. Project file: {esc(source) if source else 'none (built-in defaults)'}."
-               "</p></section>")
+    out.append(
+        f"<p>Fail level: {esc(level)}. Project file: {esc(source) if source else 'none (built-in defaults)'}."
+        "</p></section>"
+    )
     return out
 
 
 def _picture_for_stage(figs, prefix: str) -> dict:
     """stage kind or label -> (figure id, title), so a finding can point at its picture."""
-    out = {}
+    out: dict[str, tuple[str, str]] = {}
     for fig in figs:
         if fig.key.startswith("tank"):
             out.setdefault("discriminator", (fig.key, fig.title))
@@ -297,40 +356,76 @@ def _picture_for_stage(figs, prefix: str) -> dict:
     return out
 
 
-def build_body(result, settings, rules, prefix: str = "", with_findings: bool = True, hidden: int = 0) -> list[str]:
+def build_body(
+    result, settings, rules, prefix: str = "", with_findings: bool = True, hidden: int = 0
+) -> list[str]:
     """The page content for one build: cautions, findings in reading order, pictures, sheet, settings."""
     from speccheck.reporters import figures, reading
 
     figs = figures.figures(result) if result.checked else []
     for fig in figs:  # ids unique on a page that holds several builds
-        fig.svg = fig.svg.replace(f'id="{fig.key}-', f'id="{prefix}{fig.key}-') \
-                         .replace(f"#{fig.key}-", f"#{prefix}{fig.key}-")
+        fig.svg = fig.svg.replace(f'id="{fig.key}-', f'id="{prefix}{fig.key}-').replace(
+            f"#{fig.key}-", f"#{prefix}{fig.key}-"
+        )
     read = reading.read(result)
     name = result.build_name or result.path
-    out = [f'<header><h1 id="{prefix}top">Review of the build plan &ldquo;{esc(name)}&rdquo;</h1>',
-           f'<p class="meta">Plan file <code>{esc(result.path)}</code>; checked by speccheck {esc(__version__)}.</p>']
+    out = [
+        f'<header><h1 id="{prefix}top">Review of the build plan &ldquo;{esc(name)}&rdquo;</h1>',
+        f'<p class="meta">Plan file <code>{esc(result.path)}</code>; '
+        f"checked by speccheck {esc(__version__)}.</p>",
+    ]
     if with_findings:
         out.append(_verdict(result, read))
         if hidden:
-            out.append(f"<p>{esc(_plural(hidden, 'finding'))} known before (in the baseline) are not shown.</p>")
+            out.append(
+                f"<p>{esc(_plural(hidden, 'finding'))} known before (in the baseline) are not shown.</p>"
+            )
     out.append("</header>")
     out += _cautions(result.cautions)
     chain = [f for f in figs if f.key == "chain"]
     rest = [f for f in figs if f.key != "chain"]
-    out += _figures(chain, prefix, "The signal chain at a glance", "glance",
-                    "The stages in signal order with their key values; a stage with something to fix is drawn "
-                    "bold with a cross-hatched strip, one with a warning dashed.")
+    out += _figures(
+        chain,
+        prefix,
+        "The signal chain at a glance",
+        "glance",
+        "The stages in signal order with their key values; a stage with something to fix is drawn "
+        "bold with a cross-hatched strip, one with a warning dashed.",
+    )
     order: list = []
     if with_findings:
-        ctx = {"prefix": prefix, "parts": result.parts, "rules": rules, "explained": set(), "number": 0,
-               "order": order, "pictures": _picture_for_stage(rest, prefix)}
-        out += _groups("Fix these first", "first", "Each of these will stop the build from working, or damage a "
-                       "part, when it is built as planned. Findings with one cause are kept together.",
-                       read.first, ctx)
-        out += _groups("Worth a look", "then", "Thin margins and missing protection: the build may work, but "
-                       "these are where it will give trouble.", read.then, ctx)
-        out += _groups("Good to know", "notes", "Choices worth knowing about, and values the plan does not give "
-                       "that the check needed.", read.notes, ctx)
+        ctx = {
+            "prefix": prefix,
+            "parts": result.parts,
+            "rules": rules,
+            "explained": set(),
+            "number": 0,
+            "order": order,
+            "pictures": _picture_for_stage(rest, prefix),
+        }
+        out += _groups(
+            "Fix these first",
+            "first",
+            "Each of these will stop the build from working, or damage a "
+            "part, when it is built as planned. Findings with one cause are kept together.",
+            read.first,
+            ctx,
+        )
+        out += _groups(
+            "Worth a look",
+            "then",
+            "Thin margins and missing protection: the build may work, but "
+            "these are where it will give trouble.",
+            read.then,
+            ctx,
+        )
+        out += _groups(
+            "Good to know",
+            "notes",
+            "Choices worth knowing about, and values the plan does not give that the check needed.",
+            read.notes,
+            ctx,
+        )
         out += _waived(read.waived, ctx)
         if result.checked and not read.groups() and not read.waived:
             out.append('<p class="clean">No findings: nothing to fix and nothing to watch.</p>')
@@ -341,14 +436,30 @@ def build_body(result, settings, rules, prefix: str = "", with_findings: bool = 
 
 
 def page(title: str, body: list[str]) -> str:
-    head = ["<!DOCTYPE html>", '<html lang="en">', "<head>", '<meta charset="utf-8">',
-            f'<meta http-equiv="Content-Security-Policy" content="{CSP}">',
-            '<meta name="viewport" content="width=device-width, initial-scale=1">',
-            '<meta name="referrer" content="no-referrer">',
-            f"<title>{esc(title)}</title>", f"<style>{STYLE}</style>", "</head>", "<body>", "<main>"]
-    foot = [('<footer>speccheck is a review aid, not an approval. It checks the arithmetic of a written plan; '
-             "the bench has the last word, and for anything on the mains, local electrical codes and licensed "
-             "practice decide.</footer>"), "</main>", "</body>", "</html>"]
+    head = [
+        "<!DOCTYPE html>",
+        '<html lang="en">',
+        "<head>",
+        '<meta charset="utf-8">',
+        f'<meta http-equiv="Content-Security-Policy" content="{CSP}">',
+        '<meta name="viewport" content="width=device-width, initial-scale=1">',
+        '<meta name="referrer" content="no-referrer">',
+        f"<title>{esc(title)}</title>",
+        f"<style>{STYLE}</style>",
+        "</head>",
+        "<body>",
+        "<main>",
+    ]
+    foot = [
+        (
+            '<footer>speccheck is a review aid, not an approval. It checks the arithmetic of a written plan; '
+            "the bench has the last word, and for anything on the mains, local electrical codes and licensed "
+            "practice decide.</footer>"
+        ),
+        "</main>",
+        "</body>",
+        "</html>",
+    ]
     return "\n".join(head + body + foot) + "\n"
 
 
@@ -384,6 +495,7 @@ def render_sheet(result, settings) -> str:
 
 # ---- several builds: one page each and an index -------------------------------------------------
 
+
 def page_names(results) -> dict:
     """path -> file name of its page: from the build file's path, unique within the folder."""
     names: dict = {}
@@ -403,20 +515,28 @@ def _index_body(results, run, links: dict) -> list[str]:
     from speccheck.reporters.common import totals
 
     counts = totals(results)
-    out = ['<header><h1 id="top">speccheck review</h1>',
-           f'<p class="meta">{esc(_plural(len(results), "build"))} checked by speccheck {esc(__version__)}.</p>',
-           f'<p class="verdict {"bad" if counts["error"] else "good"}">{counts["error"]} to fix, '
-           f'{counts["warning"]} worth a look, {counts["note"]} good to know'
-           + (f', {counts["waived"]} waived' if counts["waived"] else "") + ".</p></header>",
-           ('<nav aria-label="builds"><table><thead><tr><th scope="col">build</th><th scope="col">plan file</th>'
+    out = [
+        '<header><h1 id="top">speccheck review</h1>',
+        f'<p class="meta">{esc(_plural(len(results), "build"))} checked by speccheck {esc(__version__)}.</p>',
+        f'<p class="verdict {"bad" if counts["error"] else "good"}">{counts["error"]} to fix, '
+        f'{counts["warning"]} worth a look, {counts["note"]} good to know'
+        + (f', {counts["waived"]} waived' if counts["waived"] else "")
+        + ".</p></header>",
+        (
+            '<nav aria-label="builds"><table><thead><tr><th scope="col">build</th>'
+            '<th scope="col">plan file</th>'
             '<th scope="col">must fix</th><th scope="col">worth a look</th><th scope="col">good to know</th>'
-            '<th scope="col">safety</th></tr></thead><tbody>')]
+            '<th scope="col">safety</th></tr></thead><tbody>'
+        ),
+    ]
     for r in sorted(results, key=lambda r: (-r.counts()["error"], r.path)):
         c = r.counts()
         name = r.build_name or r.path
-        out.append(f'<tr><td><a href="{esc(links[r.path])}">{esc(name)}</a></td><td><code>{esc(r.path)}</code></td>'
-                   f'<td>{c["error"]}</td><td>{c["warning"]}</td><td>{c["note"]}</td>'
-                   f'<td>{"cautions: read first" if r.cautions else ""}</td></tr>')
+        out.append(
+            f'<tr><td><a href="{esc(links[r.path])}">{esc(name)}</a></td><td><code>{esc(r.path)}</code></td>'
+            f'<td>{c["error"]}</td><td>{c["warning"]}</td><td>{c["note"]}</td>'
+            f'<td>{"cautions: read first" if r.cautions else ""}</td></tr>'
+        )
     out.append("</tbody></table></nav>")
     if run.skipped or run.excluded:
         out.append("<ul>")

@@ -59,8 +59,12 @@ def _words(text, rule) -> str:
 def finding_block(f, rule, explained: set, number: int) -> list[str]:
     """One finding: a list item with its numbers, fix, bench check and why nested under it."""
     title = rule.title if rule is not None else f.rule
-    lines = [(f"- **{LEVEL_WORDS.get(f.level, f.level)}: {_words(title, rule)}** (line {f.location.line}, "
-              f"item {number}): {_words(f.message, rule)}")]
+    lines = [
+        (
+            f"- **{LEVEL_WORDS.get(f.level, f.level)}: {_words(title, rule)}** (line {f.location.line}, "
+            f"item {number}): {_words(f.message, rule)}"
+        )
+    ]
     if f.values:
         lines.append(f"{_IN}- **The numbers:** " + "; ".join(f"{md(v.name)} {md(v.text)}" for v in f.values))
     if f.fix:
@@ -95,11 +99,19 @@ def _group_blocks(heading: str, intro: str, groups, parts: dict, rules: dict, ex
 def _waived_block(findings, rules: dict, order: list) -> list[str]:
     if not findings:
         return []
-    lines = ["", "### Set aside on purpose", "", "Waived in the plan, each with its reason; they do not count.", ""]
+    lines = [
+        "",
+        "### Set aside on purpose",
+        "",
+        "Waived in the plan, each with its reason; they do not count.",
+        "",
+    ]
     for f in findings:
         order.append(f)
-        lines.append(f"- **waived {f.level}** (line {f.location.line}, item {len(order)}): "
-                     f"{_words(f.message, rules.get(f.rule))}")
+        lines.append(
+            f"- **waived {f.level}** (line {f.location.line}, item {len(order)}): "
+            f"{_words(f.message, rules.get(f.rule))}"
+        )
         lines.append(f"{_IN}- **Waived because:** {md(f.waived)}")
     return lines
 
@@ -110,7 +122,12 @@ def sheet_block(result) -> list[str]:
 
     if not result.sheet:
         return []
-    lines = ["", "### The design sheet", "", f"Every value the check worked out ({_plural(len(result.sheet), 'value')})."]
+    lines = [
+        "",
+        "### The design sheet",
+        "",
+        f"Every value the check worked out ({_plural(len(result.sheet), 'value')}).",
+    ]
     for section, owners in grouped(result).items():
         lines += ["", f"#### {md(section)}", "", "| part or stage | quantity | value |", "|---|---|---:|"]
         for owner, entries in owners.items():
@@ -125,11 +142,18 @@ def settings_block(order: list, rules: dict, settings, result) -> list[str]:
 
     if not order:
         return []
-    lines = ["", "### Settings used", "", "| item | rule | level | place in the plan | line:col | waived because |",
-             "|---:|---|---|---|---|---|"]
+    lines = [
+        "",
+        "### Settings used",
+        "",
+        "| item | rule | level | place in the plan | line:col | waived because |",
+        "|---:|---|---|---|---|---|",
+    ]
     for i, f in enumerate(order, 1):
-        lines.append(f"| {i} | {code(f.rule)} | {f.level} | {code(f.location.path) if f.location.path else ''} | "
-                     f"{f.location.line}:{f.location.col} | {md(f.waived) if f.waived else ''} |")
+        lines.append(
+            f"| {i} | {code(f.rule)} | {f.level} | {code(f.location.path) if f.location.path else ''} | "
+            f"{f.location.line}:{f.location.col} | {md(f.waived) if f.waived else ''} |"
+        )
     rows = []
     for rule_id in dict.fromkeys(f.rule for f in order):
         for name, value in settings_of(rules.get(rule_id), settings).items():
@@ -159,12 +183,33 @@ def file_block(result, rules: dict, hidden: int, settings=None) -> list[str]:
     explained: set = set()
     order: list = []
     parts = getattr(result, "parts", {}) or {}
-    lines += _group_blocks("Fix these first", "Each of these stops the build working, or damages a part, as planned.",
-                           reading.first, parts, rules, explained, order)
-    lines += _group_blocks("Worth a look", "Thin margins and missing protection: where the build will give trouble.",
-                           reading.then, parts, rules, explained, order)
-    lines += _group_blocks("Good to know", "Choices worth knowing, and values the check needed but the plan "
-                           "does not give.", reading.notes, parts, rules, explained, order)
+    lines += _group_blocks(
+        "Fix these first",
+        "Each of these stops the build working, or damages a part, as planned.",
+        reading.first,
+        parts,
+        rules,
+        explained,
+        order,
+    )
+    lines += _group_blocks(
+        "Worth a look",
+        "Thin margins and missing protection: where the build will give trouble.",
+        reading.then,
+        parts,
+        rules,
+        explained,
+        order,
+    )
+    lines += _group_blocks(
+        "Good to know",
+        "Choices worth knowing, and values the check needed but the plan does not give.",
+        reading.notes,
+        parts,
+        rules,
+        explained,
+        order,
+    )
     lines += _waived_block(reading.waived, rules, order)
     lines.extend(sheet_block(result))
     lines.extend(settings_block(order, rules, settings, result))
@@ -180,8 +225,11 @@ def render(results, settings, run=None) -> str:
     lines = ["# speccheck review", ""]
     cautioned = [r for r in results if r.cautions]
     if cautioned:
-        lines += ["> **Safety first.** These builds can hurt someone. The cautions below apply before anything "
-                  "else in this report.", ">"]
+        lines += [
+            "> **Safety first.** These builds can hurt someone. The cautions below apply before anything "
+            "else in this report.",
+            ">",
+        ]
         by_text: dict = {}
         for r in cautioned:
             for c in r.cautions:
@@ -195,8 +243,10 @@ def render(results, settings, run=None) -> str:
             lines += [f"> - {md(c)}" for c in texts]
             lines.append(">")
         if not any("electrical code" in c for c in by_text):
-            lines.append("> speccheck is a review aid, not an approval: local electrical codes and licensed "
-                         "practice decide.")
+            lines.append(
+                "> speccheck is a review aid, not an approval: local electrical codes and licensed "
+                "practice decide."
+            )
         if lines[-1] == ">":
             lines.pop()
         lines.append("")
@@ -206,9 +256,12 @@ def render(results, settings, run=None) -> str:
         extra.append(f"{counts['waived']} waived")
     if run.baseline:
         extra.append(f"{run.hidden_total} hidden by the baseline")
-    lines.append(f"**{_plural(len(results), 'file')} checked: {_counts_words(counts)}"
-                 + (f" ({', '.join(extra)})" if extra else "") + f"**; fail level: {settings.fail_level}.")
-    waived_by_level = {level: 0 for level in LEVELS}
+    lines.append(
+        f"**{_plural(len(results), 'file')} checked: {_counts_words(counts)}"
+        + (f" ({', '.join(extra)})" if extra else "")
+        + f"**; fail level: {settings.fail_level}."
+    )
+    waived_by_level = dict.fromkeys(LEVELS, 0)
     for r in results:
         for f in r.findings:
             if f.waived:

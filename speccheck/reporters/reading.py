@@ -22,20 +22,51 @@ from speccheck.findings import RANK
 _FEW = 3
 
 # Top-level keys of the build format: a dotted word starting with one is a document path.
-_TOP = ("build", "signals", "source", "supply", "rails", "nodes", "profiles", "parts_files", "devices", "parts",
-        "chain")
+_TOP = (
+    "build",
+    "signals",
+    "source",
+    "supply",
+    "rails",
+    "nodes",
+    "profiles",
+    "parts_files",
+    "devices",
+    "parts",
+    "chain",
+)
 _PATH = re.compile(r"\b(?:" + "|".join(_TOP) + r")(?:\[\d+\])?(?:\.[A-Za-z0-9_\-]+(?:\[\d+\])?)+")
 _INDEX = re.compile(r"\[\d+\]")
 
-KIND_WORDS = {"device": "the device", "capacitor": "the capacitor", "crystal": "the crystal",
-              "inductor": "the coil", "resistor": "the resistor", "filter": "the filter", "fuse": "the fuse",
-              "speaker": "the speaker", "diode": "the diode", "transformer": "the transformer"}
+KIND_WORDS = {
+    "device": "the device",
+    "capacitor": "the capacitor",
+    "crystal": "the crystal",
+    "inductor": "the coil",
+    "resistor": "the resistor",
+    "filter": "the filter",
+    "fuse": "the fuse",
+    "speaker": "the speaker",
+    "diode": "the diode",
+    "transformer": "the transformer",
+}
 
 # Findings that belong to no chain stage carry one of these sections.
-SECTION_WORDS = {"general": "the build as a whole", "power": "the power supply", "supply": "the power supply",
-                 "mains": "mains safety", "wiring": "the wiring", "source": "the signal source",
-                 "signals": "the signals", "input": "the plan file itself", "review": "the waivers",
-                 "internal": "speccheck itself", "audio": "the audio side", "heat": "heat", "fuse": "the fuse"}
+SECTION_WORDS = {
+    "general": "the build as a whole",
+    "power": "the power supply",
+    "supply": "the power supply",
+    "mains": "mains safety",
+    "wiring": "the wiring",
+    "source": "the signal source",
+    "signals": "the signals",
+    "input": "the plan file itself",
+    "review": "the waivers",
+    "internal": "speccheck itself",
+    "audio": "the audio side",
+    "heat": "heat",
+    "fuse": "the fuse",
+}
 
 
 @dataclass
@@ -131,10 +162,16 @@ def read(result) -> Reading:
         g.findings = _sorted_findings(g.findings)
         ordered.append(g)
     stage_of = {g.subject: g.findings[0].stage or "general" for g in ordered}
-    ordered.sort(key=lambda g: (-RANK[g.level], _chain_rank(stage_of[g.subject], chain), g.first_line, g.subject))
+    ordered.sort(
+        key=lambda g: (-RANK[g.level], _chain_rank(stage_of[g.subject], chain), g.first_line, g.subject)
+    )
     waived = sorted((f for f in result.findings if f.waived), key=lambda f: (f.location.line, f.location.col))
-    return Reading([g for g in ordered if g.level == "error"], [g for g in ordered if g.level == "warning"],
-                   [g for g in ordered if g.level == "note"], waived)
+    return Reading(
+        [g for g in ordered if g.level == "error"],
+        [g for g in ordered if g.level == "warning"],
+        [g for g in ordered if g.level == "note"],
+        waived,
+    )
 
 
 def _merge_by_cause(groups: dict, parts: dict):
@@ -175,6 +212,7 @@ def group_title(group: Group, parts: dict) -> str:
 
 # ---- plain words ----------------------------------------------------------------------------
 
+
 def path_words(path: str) -> str:
     """A document path as words: 'chain[1].oscillator.stray' -> 'the stray of the oscillator'."""
     keys = [k for k in _INDEX.sub("", path).split(".") if k]
@@ -206,20 +244,26 @@ def plain(text: str, rule=None) -> str:
     names = list(getattr(rule, "settings", {}) or {})
     if names:  # "below warning_db (default 20 dB)" -> "below 20 dB (by default)"
         alts = "|".join(re.escape(n) for n in names)
-        text = re.sub(r"\b(?:the )?(?:setting )?(?:" + alts + r")\s*\(default,? ([^()]*)\)", r"\1 (by default)", text)
+        text = re.sub(
+            r"\b(?:the )?(?:setting )?(?:" + alts + r")\s*\(default,? ([^()]*)\)", r"\1 (by default)", text
+        )
     pattern = _setting_parens([n for n in names if "_" in n] + ["default"])
     if pattern is not None:
         text = pattern.sub("", text)
     if names:
         alts = "|".join(re.escape(n) for n in names)
         text = re.sub(r"\b(?:the )?setting (?:" + alts + r")\b", "a setting", text)
-        keys = "|".join(re.escape(n) for n in names if "_" in n)  # plain words like "order" stay words
-        if keys:
-            text = re.sub(r"\b(?:" + keys + r")\b", "a setting", text)
+        named = "|".join(re.escape(n) for n in names if "_" in n)  # plain words like "order" stay words
+        if named:
+            text = re.sub(r"\b(?:" + named + r")\b", "a setting", text)
     text = _PATH.sub(lambda m: path_words(m.group(0)), text)
     keys = format_keys()
-    text = _KEY_PATH.sub(lambda m: f"the {_words(m.group(2))} of the {_words(m.group(1))}"
-                         if m.group(2) in keys else m.group(0), text)
+    text = _KEY_PATH.sub(
+        lambda m: (
+            f"the {_words(m.group(2))} of the {_words(m.group(1))}" if m.group(2) in keys else m.group(0)
+        ),
+        text,
+    )
     text = _QUOTED_KEY.sub(lambda m: f"“{_words(m.group(1))}”" if m.group(1) in keys else m.group(0), text)
     text = _SNAKE.sub(lambda m: _words(m.group(0)) if m.group(0) in keys else m.group(0), text)
     return text.replace("`", "")
