@@ -82,9 +82,29 @@ def article(dim: str) -> str:
     return ARTICLE.get(dim) or f"a {dim.replace('_', ' ')}"
 
 
+def _pint() -> Any:
+    """pint, imported as if numpy were absent (unless something loaded numpy already).
+
+    pint imports numpy at its own import time whenever numpy is installed, and the plotting
+    library of the HTML report brings numpy along: a tenth of a second or more on every plain
+    check. speccheck gives pint plain floats only, so it never needs pint's numpy support."""
+    import sys
+
+    if "pint" in sys.modules or "numpy" in sys.modules:
+        import pint
+
+        return pint
+    sys.modules["numpy"] = None  # type: ignore[assignment]  # `import numpy` fails inside pint
+    try:
+        import pint
+    finally:
+        del sys.modules["numpy"]
+    return pint
+
+
 @lru_cache(maxsize=1)
 def registry() -> Any:
-    import pint
+    pint = _pint()
 
     path = resources.files("speccheck").joinpath("units.txt")
     with resources.as_file(path) as real:
