@@ -5,6 +5,7 @@ The page is parsed with the standard library's HTML parser; the rendering itself
 real browser in test_browser.py."""
 
 import os
+import re
 import subprocess
 import sys
 from html.parser import HTMLParser
@@ -167,7 +168,15 @@ def _hostile_plan() -> str:
 def test_text_from_a_build_file_cannot_inject_markup():
     checked = check(_hostile_plan(), file='<i onclick=x>"plan".yaml')
     assert checked.checked and checked.build_name == HOSTILE
-    broken = check(_hostile_plan().replace("build_spec: 1", "build_spec: 1\n'<b onmouseover=x>': 1", 1))
+    broken = check(
+        re.sub(
+            r"^(build_spec: \d+)$",
+            r"\1\n'<b onmouseover=x>': 1",
+            _hostile_plan(),
+            count=1,
+            flags=re.MULTILINE,
+        )
+    )
     assert any(f.rule.startswith("input.") and "<b onmouseover=x>" in f.message for f in broken.findings)
     for result in (checked, broken):
         for out in (page_of(result), html.render_sheet(result, Settings())):
