@@ -6,6 +6,7 @@ are imported inside the command that needs them.
 
 from __future__ import annotations
 
+import os
 import sys
 
 import click
@@ -185,18 +186,17 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
         run.baseline = baseline
         run.hidden = baseline_mod.hide(results, known)
     color = fmt == "text" and output is None and sys.stdout.isatty()
-    if output and _is_folder(output):
+    protected = [*files, settings.source, baseline]
+    if output and (output.endswith(("/", "\\")) or os.path.isdir(output)):  # a folder: one page per build
         if fmt != "html":
             _trouble(f"{_plain(output)} is a folder; only --format html writes a folder (one page per build)")
-        _write_pages(output, results, settings, run, force, [*files, settings.source, baseline])
+        _write_pages(output, results, settings, run, force, protected)
     elif output:
-        from speccheck.reporters.neutral import plain
-
-        text = reporters.render(fmt, results, settings, color=color, run=run)
         from speccheck.reporters.text import tail_line
 
-        _write(output, text, force, [*files, settings.source, baseline], "report")
-        click.echo(f"{tail_line(results, run)}; report written to {plain(output)}", err=True)
+        text = reporters.render(fmt, results, settings, color=color, run=run)
+        _write(output, text, force, protected, "report")
+        click.echo(f"{tail_line(results, run)}; report written to {_plain(output)}", err=True)
     else:
         click.echo(reporters.render(fmt, results, settings, color=color, run=run), nl=False)
     if any(f.rule == "input.unreadable" for r in results for f in r.findings):
@@ -205,30 +205,20 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
     sys.exit(EXIT_FINDINGS if worst and RANK[worst] >= RANK[settings.fail_level] else EXIT_CLEAN)
 
 
-def _is_folder(output: str) -> bool:
-    from pathlib import Path
-
-    return output.endswith(("/", "\\")) or Path(output).is_dir()
-
-
 def _write_pages(folder: str, results, settings, run, force: bool, protected):
-    """One HTML page per build and index.html, into `folder` (made if missing); each written atomically,
-    an existing page replaced only with --force."""
-    from pathlib import Path
-
+    """One HTML page per build and index.html into `folder` (made if missing), each by _write."""
     from speccheck.reporters.html import render_folder
     from speccheck.reporters.text import tail_line
 
-    target = Path(folder)
     try:
-        target.mkdir(parents=True, exist_ok=True)
+        os.makedirs(folder, exist_ok=True)
     except OSError as exc:
         _trouble(f"{_plain(folder)}: cannot make the folder: {exc.strerror}")
     pages = render_folder(results, settings, run)
     for name, text in pages.items():
-        _write(str(target / name), text, force, protected, "report page")
-    click.echo(f"{tail_line(results, run)}; {len(pages) - 1} page{'' if len(pages) == 2 else 's'} and "
-               f"index.html written to {_plain(target)}", err=True)
+        _write(os.path.join(folder, name), text, force, protected, "report page")
+    click.echo(f"{tail_line(results, run)}; {len(pages) - 1} page(s) and index.html in {_plain(folder)}",
+               err=True)
 
 
 @main.command("baseline")
