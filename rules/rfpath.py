@@ -34,6 +34,25 @@ def _pick(kind: str, parts: list):
     return found[0] if found else None
 
 
+def _say_override(build, stage, ctx):
+    """Format 2: a works_into that differs from the device's input impedance is said, not silent."""
+    dev = build.device(stage.device)
+    given, prof = stage.works_into, dev.profile if dev is not None else None
+    if given is None or prof is None or prof.input_impedance is None:
+        return
+    own = prof.input_impedance.si
+    if abs(given.si / own - 1) > 0.1:
+        ctx.report(
+            f"{stage.label}: works_into {given.text} replaces the {prof.input_impedance.text} input "
+            f"impedance of {dev.name} ({prof.name} profile) in the match arithmetic",
+            stage.at("works_into"),
+            [Value("works_into", given.si, "Ω"), Value("device input", own, "Ω")],
+            level="note",
+            stage=stage.label,
+            fix="",
+        )
+
+
 def _load_resistance(build, stage):
     """(resistance the network works into, where it came from) or (None, field path missing)."""
     given = stage.works_into or stage.load_impedance  # v2 name, v1 name
@@ -104,6 +123,7 @@ def input_match(build, ctx):
             continue
         rs = src.impedance.si
         rl, from_where = _load_resistance(build, stage)
+        _say_override(build, stage, ctx)
         if rl is None:
             ctx.report(
                 f"{stage.label}: {from_where} is not given, so the match cannot be computed",

@@ -24,9 +24,18 @@ from speccheck.findings import Finding
 
 # Rules whose verdict depends on what is in circuit: run per configuration in a switched build.
 PER_CONFIGURATION = {
-    "freqplan.conversion", "freqplan.filter-fit", "freqplan.image", "freqplan.path-width",
-    "freqplan.upstream-bandwidth", "freqplan.mixer-spurs", "freqplan.tank-tuning", "freqplan.tank-range",
-    "freqplan.de-emphasis", "freqplan.audio-corner", "rfpath.gain-ahead", "rfpath.max-input",
+    "freqplan.conversion",
+    "freqplan.filter-fit",
+    "freqplan.image",
+    "freqplan.path-width",
+    "freqplan.upstream-bandwidth",
+    "freqplan.mixer-spurs",
+    "freqplan.tank-tuning",
+    "freqplan.tank-range",
+    "freqplan.de-emphasis",
+    "freqplan.audio-corner",
+    "rfpath.gain-ahead",
+    "rfpath.max-input",
     "tap.loading",
 }
 
@@ -101,6 +110,7 @@ def configurations(build) -> list:
 
 # ---- what is in circuit ----------------------------------------------------------------
 
+
 def out_of_circuit(build, cfg: Configuration | None) -> set:
     """Refs of the parts out of circuit in a configuration (none without one).
 
@@ -167,6 +177,7 @@ def path_in_circuit(path, cfg: Configuration | None, out: set) -> bool:
 
 
 # ---- combined stand-ins ------------------------------------------------------------------
+
 
 def _combined(build, refs: list):
     """One stand-in part for several acting together: resistors in parallel, capacitors summed."""
@@ -245,8 +256,10 @@ def view(build, cfg: Configuration):
     if cfg.upstream and build.source is not None:
         v.source = copy.copy(build.source)
         v.source.bandwidth = build.source.bandwidth_settings[cfg.upstream]
-        v.source.places = {**build.source.places,
-                           "bandwidth": build.source.places.get("bandwidth_settings", ()) + (cfg.upstream,)}
+        v.source.places = {
+            **build.source.places,
+            "bandwidth": build.source.places.get("bandwidth_settings", ()) + (cfg.upstream,),
+        }
     views[cfg] = v
     return v
 
@@ -258,10 +271,19 @@ def base(build):
 
 # ---- references (v2 keys) --------------------------------------------------------------------
 
+
 def check_references(build, findings: list):
     def bad(message: str, loc):
-        findings.append(Finding("input.reference", "error", message, loc, stage="input",
-                                fix="Declare the switch, position or setting, or correct the name."))
+        findings.append(
+            Finding(
+                "input.reference",
+                "error",
+                message,
+                loc,
+                stage="input",
+                fix="Declare the switch, position or setting, or correct the name.",
+            )
+        )
 
     switches = {p.name: p for p in selectors(build)}
     for part in build.parts.values():
@@ -269,29 +291,60 @@ def check_references(build, findings: list):
             for pole in part.poles.values():
                 for position in pole.throws:
                     if position not in part.positions:
-                        bad(f"{part.name} pole {pole.name} has a throw for '{position}', which is not one "
+                        bad(
+                            f"{part.name} pole {pole.name} has a throw for '{position}', which is not one "
                             f"of its positions ({', '.join(part.positions) or 'none listed'})",
-                            pole.at("throws"))
+                            pole.at("throws"),
+                        )
         if part.wiper and part.kind != "potentiometer":
             bad(f"{part.name} is a {part.kind}: only a potentiometer has a wiper", part.at("wiper"))
     for holder in [*build.parts.values(), *(p for st in build.chain for p in st.paths.values())]:
         for ref, positions in holder.in_circuit.items():
             _check_selection(switches, ref, positions, holder, "in_circuit", bad)
+    for stage in build.chain:
+        if stage.pin:
+            _check_pin(build, stage.pin, stage, "pin", bad)
+    kinds = {s.kind for s in build.chain} | {s.name for s in build.chain if s.name}
+    for tap in build.taps:
+        if tap.net and "." in tap.net:
+            _check_pin(build, tap.net, tap, "net", bad)
+        for name in ("series", "coupling"):
+            ref = getattr(tap, name)
+            if ref and ref not in build.parts:
+                bad(f"tap {tap.name}: part '{ref}' is not declared", tap.at(name))
+        if tap.after and tap.after not in kinds:
+            bad(
+                f"tap {tap.name} is taken after '{tap.after}', which is no stage of the chain",
+                tap.at("after"),
+            )
     settings = build.source.bandwidth_settings if build.source is not None else {}
     for sig in build.signals:
         for ref in sig.switches if isinstance(sig.switches, dict) else {}:
             _check_selection(switches, str(ref), sig.positions_of(str(ref)), sig, "switches", bad)
         if sig.upstream and sig.upstream not in settings:
-            bad(f"signal {sig.name} names upstream setting '{sig.upstream}', which "
+            bad(
+                f"signal {sig.name} names upstream setting '{sig.upstream}', which "
                 f"source.bandwidth_settings does not declare ({', '.join(settings) or 'none'})",
-                sig.at("upstream"))
+                sig.at("upstream"),
+            )
+
+
+def _check_pin(build, net: str, holder, field: str, bad):
+    device, _, pin = net.partition(".")
+    dev = build.devices.get(device)
+    if dev is None:
+        bad(f"device '{device}' is not declared", holder.at(field))
+    elif dev.profile is not None and pin not in dev.profile.pins:
+        bad(f"{dev.name} ({dev.profile.name}) has no pin '{pin}'", holder.at(field))
 
 
 def _check_selection(switches: dict, ref: str, positions: list, holder, field: str, bad):
     sw = switches.get(ref)
     if sw is None:
-        bad(f"'{ref}' is not a selector switch (a part of kind switch with poles and positions)",
-            holder.at(field))
+        bad(
+            f"'{ref}' is not a selector switch (a part of kind switch with poles and positions)",
+            holder.at(field),
+        )
         return
     for position in positions:
         if position not in sw.positions:

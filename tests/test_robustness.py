@@ -29,7 +29,9 @@ def _set(data, path, value):
     data[path[-1]] = value
 
 
-@pytest.mark.parametrize("example", ["vhf-monitor-455k.yaml", "mains-bench-unit.yaml"])
+@pytest.mark.parametrize(
+    "example", ["vhf-monitor-455k.yaml", "mains-bench-unit.yaml", "bench-demod-selector.yaml"]
+)
 def test_wrong_kinds_everywhere(example):
     from ruamel.yaml import YAML
 

@@ -43,8 +43,10 @@ def test_v2_example_checks_clean_and_is_switched():
     build = loader.load_text(bench(), "bench.yaml").build
     assert build.switched
     labels = [c.label for c in build.configurations()]
-    assert labels == ["repeater voice; S1 narrow; upstream rbw-100k",
-                      "broadcast FM; S1 wide; upstream rbw-1m"]
+    assert labels == [
+        "repeater voice; S1 narrow; upstream rbw-100k",
+        "broadcast FM; S1 wide; upstream rbw-1m",
+    ]
 
 
 def test_terminals_are_named_for_every_kind_of_part():
@@ -84,9 +86,12 @@ def test_a_finding_names_its_signal_and_position():
 
 def test_a_waiver_can_name_the_signal_it_covers():
     text = edited(bench(), "R7: {kind: resistor, value: 6.8 kohm", "R7: {kind: resistor, value: 68 kohm")
-    text = edited(text, "R5: {kind: resistor, value: 47 kohm, ends: [U1.quad, TANK_RET]}",
-                  "R5: {kind: resistor, value: 47 kohm, ends: [U1.quad, TANK_RET]}  "
-                  "# waive freqplan.tank-range for repeater voice because testing")
+    text = edited(
+        text,
+        "R5: {kind: resistor, value: 47 kohm, ends: [U1.quad, TANK_RET]}",
+        "R5: {kind: resistor, value: 47 kohm, ends: [U1.quad, TANK_RET]}  "
+        "# waive freqplan.tank-range for repeater voice because testing",
+    )
     result = check(text, "bench.yaml")
     assert not of(result, "freqplan.tank-range")[0].waived  # it is the broadcast signal's finding
     assert of(result, "review.waiver-unused")
@@ -113,13 +118,46 @@ def test_bad_switch_references_are_input_errors():
 def test_v1_build_spec_refuses_v2_keys_and_v2_refuses_load_impedance(clean_text):
     text = edited(bench(), "build_spec: 2", "build_spec: 1")
     assert any("unknown key" in f.message for f in of(check(text), "input.schema"))
-    text = edited(clean_text, "    topology: series-l-shunt-c\n",
-                  "    topology: series-l-shunt-c\n    load_impedance: 1.5 kohm\n")
+    text = edited(
+        clean_text,
+        "    topology: series-l-shunt-c\n",
+        "    topology: series-l-shunt-c\n    load_impedance: 1.5 kohm\n",
+    )
     found = of(check(text), "input.schema")
     assert found and "load_impedance" in found[0].message and "works_into" in found[0].message
 
 
 def test_schema_command_prints_either_version():
-    out = subprocess.run([sys.executable, "-m", "speccheck", "schema", "--version", "1"], capture_output=True,
-                         text=True, cwd=ROOT)
+    out = subprocess.run(
+        [sys.executable, "-m", "speccheck", "schema", "--version", "1"],
+        capture_output=True,
+        text=True,
+        cwd=ROOT,
+    )
     assert json.loads(out.stdout)["$id"].endswith(":1")
+
+
+def test_bad_squelch_pin_and_tap_references_are_input_errors():
+    text = edited(bench(), "    pin: U1.squelch_in\n", "    pin: U1.squelch\n")
+    found = of(check(text, "bench.yaml"), "input.reference")
+    assert found and "has no pin 'squelch'" in found[0].message
+    text = edited(bench(), "    after: discriminator\n", "    after: detector\n")
+    assert of(check(text, "bench.yaml"), "input.reference")
+    text = edited(bench(), "    coupling: C15\n", "    coupling: C99\n")
+    assert of(check(text, "bench.yaml"), "input.reference")
+
+
+def test_works_into_that_overrides_the_device_is_said():
+    text = edited(
+        bench(),
+        "    topology: series-l-shunt-c\n",
+        "    topology: series-l-shunt-c\n    works_into: 3 kohm\n",
+    )
+    found = [f for f in of(check(text, "bench.yaml"), "rfpath.input-match") if "replaces" in f.message]
+    assert len(found) == 1 and found[0].level == "note" and "1.5 kohm" in found[0].message
+    text = edited(
+        bench(),
+        "    topology: series-l-shunt-c\n",
+        "    topology: series-l-shunt-c\n    works_into: 1.5 kohm\n",
+    )
+    assert not [f for f in of(check(text, "bench.yaml"), "rfpath.input-match") if "replaces" in f.message]
