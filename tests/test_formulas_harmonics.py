@@ -38,3 +38,15 @@ def test_asymmetric_wave_matches_the_fft(n, duty):
 def test_harmonics_reaching_the_input():
     # the case: a 455 kHz IF reaches 29.6 MHz plus half a 180 kHz path with its 65th harmonic
     assert harmonics.harmonics_reaching(455e3, 29.6e6 + 90e3) == 65
+
+
+@pytest.mark.parametrize("n", [2, 3, 4, 23, 24, 25, 64, 65])
+def test_limiter_envelope_bounds_every_duty_within_the_asymmetry(n):
+    # the envelope is at least the Fourier coefficient for every duty cycle from 48 % to 50 %
+    # (checked on a fine grid) and reaches 1/n for odd n at 50 % (square wave)
+    env = harmonics.limiter_harmonic(n, 0.02)
+    worst = max(harmonics.pulse_harmonic(n, d) for d in np.linspace(0.48, 0.5, 2001))
+    assert env >= worst - 1e-12
+    assert env <= worst * 1.02 + 1e-3  # and not far above it (a bound, not a guess)
+    if n % 2:
+        assert harmonics.limiter_harmonic(n, 0.0) == pytest.approx(1 / n)

@@ -46,7 +46,7 @@ def spur_responses(c: Any, pb: Any, order: int, s: dict, strongest: float | None
     c is a Conversion with its LO, IF and the band ahead known, pb a PathBand with centre and
     width (the caller picks only those; typed Any because their fields are Optional)."""
     band = c.ahead
-    duty = 0.5 - s["asymmetry"]
+    asym = s["asymmetry"]
     out = []
     for m, k, sign, fs in mixing.spur_inputs(c.lo, pb.center, order):
         if m == 1 and k == -1:
@@ -58,7 +58,7 @@ def spur_responses(c: Any, pb: Any, order: int, s: dict, strongest: float | None
         if strongest is not None:
             # the LO switches the mixer: its k-th harmonic weighs in as a rectangular wave's would;
             # each order of the signal above the first costs per_order dB
-            lo_db = harmonics.pulse_harmonic_db(abs(k), duty) if k else 0.0
+            lo_db = harmonics.limiter_harmonic_db(abs(k), asym) if k else 0.0
             level = strongest - band.attenuation(fs) + lo_db - (m - 1) * s["per_order"]
             how = (f"a {strongest:g} dBm signal there, {band.attenuation(fs):.0f} dB down ahead of the "
                    f"mixer, LO harmonic {abs(k)} at {lo_db:.0f} dB, {(m - 1) * s['per_order']:.0f} dB for "
@@ -77,7 +77,7 @@ def spur_responses(c: Any, pb: Any, order: int, s: dict, strongest: float | None
             if what == "IF":
                 # the limiter's output is near a rectangular wave: odd harmonics at 1/n, even ones
                 # from its asymmetry; it reaches the input through the board's isolation
-                h_db = harmonics.pulse_harmonic_db(n, duty)
+                h_db = harmonics.limiter_harmonic_db(n, asym)
                 through = pb.attenuation(abs(h - c.lo))
                 level = s["limiter_level"] + h_db - s["isolation"] - through
                 how = (f"limiter {s['limiter_level']:g} dBm, harmonic {n} at {h_db:.0f} dB, "
@@ -107,7 +107,8 @@ def spur_responses(c: Any, pb: Any, order: int, s: dict, strongest: float | None
       Each response gets an estimated level, as the wanted-signal level at the input that would
       give the same IF. A limiter's output is close to a square wave: its odd harmonics fall only
       as 1/n (Fourier series of a rectangular wave), and an asymmetry of its duty cycle (setting
-      asymmetry, default 0.02, i.e. 48 %) adds even ones about 24 dB down; it leaves the limiter
+      asymmetry, default 0.02, i.e. 48 to 52 %) adds even ones, up to about 24 dB down (the upper
+      envelope over that range of duty cycles is taken, so no null hides a birdie); it leaves the limiter
       at the setting limiter_level (default 0 dBm) and reaches the input through the board's
       isolation (setting isolation, default 60 dB), then the IF path's own response at the
       offset. A mixer spur takes the strongest signal (source.level_max) at its input, less what
