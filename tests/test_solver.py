@@ -464,3 +464,13 @@ def test_json_output_for_tools(tmp_path):
     assert doc["diff"].startswith("---") and "speed: time-lag" in doc["diff"]
     assert [f["rule"] for f in doc["after"]["gone"]] == ["power.fuse-inrush"]
     assert "speed: time-lag" in copy.read_text("utf-8")
+
+
+def test_heat_sink_figure_comes_from_the_check():
+    outcome = solver.solve(EXAMPLES / "power-hot-amplifier.yaml")
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "power.heat"]
+    # rounded down to two figures from the rule's θSA (heat sinks have no preferred series)
+    need = float(proposal.chosen.result.split()[1])
+    pick = float(proposal.chosen.summary.split()[-2])
+    assert pick <= need and pick == float(f"{math.floor(need):.2g}")
+    assert "the check then gives junction temperature" in proposal.chosen.result

@@ -43,6 +43,9 @@ class Option:
     changes: list
     summary: str
     result: str
+    # a figure the check publishes on the design sheet after the change: (section, owner, name
+    # prefix); the solver reads it from its re-check and adds it to `result`
+    figure: tuple | None = None
 
 
 @dataclass

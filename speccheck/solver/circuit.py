@@ -224,8 +224,9 @@ def heat(s: Situation, f: Finding) -> Proposal | None:
             Option(
                 [change],
                 f"{dev.name} heat sink θSA {units.fmt(pick, '°C/W')}",
-                f"needs {units.fmt(need, '°C/W')} or less; choose a heat sink rated at or "
-                f"below {units.fmt(pick, '°C/W')} in its mounting",
+                f"θSA {units.fmt(need, '°C/W')} or less is needed; choose a heat sink rated at or "
+                f"below {units.fmt(pick, '°C/W')} as mounted",
+                figure=("heat", dev.name, "junction temperature at"),
             )
         )
     return Proposal(

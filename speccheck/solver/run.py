@@ -171,6 +171,7 @@ def _choose(outcome: Outcome, doc: yamlnodes.Document, check) -> None:
                 reasons.append(f"{option.summary} does not clear it")
                 continue
             proposal.chosen = option
+            _add_checked_figure(option, result)
             original = _fingerprints(outcome.before)
             proposal.clears = [original.get(fp, f) for fp, f in was.items() if fp not in now]
             taken_edits += edits
@@ -180,6 +181,17 @@ def _choose(outcome: Outcome, doc: yamlnodes.Document, check) -> None:
             proposal.held = reasons[0] if reasons else "no option"
     outcome.edits = taken_edits
     outcome.new_text = textedit.apply(text, taken_edits)
+
+
+def _add_checked_figure(option: Option, result: engine.FileResult) -> None:
+    """The figure the option names, as the re-check of the changed plan published it."""
+    if option.figure is None:
+        return
+    section, owner, prefix = option.figure
+    for entry in result.sheet:
+        if entry.section == section and entry.owner == owner and entry.value.name.startswith(prefix):
+            option.result += f"; the check then gives {entry.value.name} {entry.value.text}"
+            return
 
 
 def write(outcome: Outcome, settings: Settings | None = None) -> engine.FileResult:
