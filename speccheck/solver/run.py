@@ -183,7 +183,7 @@ def _choose(outcome: Outcome, doc: yamlnodes.Document, check) -> None:
     outcome.new_text = textedit.apply(text, taken_edits)
 
 
-def _add_checked_figure(option: Option, result: engine.FileResult) -> None:
+def _add_checked_figure(option: base.Option, result: engine.FileResult) -> None:
     """The figure the option names, as the re-check of the changed plan published it."""
     if option.figure is None:
         return
