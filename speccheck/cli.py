@@ -214,11 +214,9 @@ def _write_pages(folder: str, results, settings, run, force: bool, protected):
         os.makedirs(folder, exist_ok=True)
     except OSError as exc:
         _trouble(f"{_plain(folder)}: cannot make the folder: {exc.strerror}")
-    pages = render_folder(results, settings, run)
-    for name, text in pages.items():
+    for name, text in (pages := render_folder(results, settings, run)).items():
         _write(os.path.join(folder, name), text, force, protected, "report page")
-    click.echo(f"{tail_line(results, run)}; {len(pages) - 1} page(s) and index.html in {_plain(folder)}",
-               err=True)
+    click.echo(f"{tail_line(results, run)}; {len(pages) - 1} pages, index.html: {_plain(folder)}", err=True)
 
 
 @main.command("baseline")
@@ -320,12 +318,7 @@ def sheet(path, fmt, output, config, no_config, force):
         sys.exit(EXIT_TROUBLE)
     settings = _settings([path], config, no_config)
     result = engine.check_file(path, settings)
-    if fmt == "html":
-        from speccheck.reporters.html import render_sheet
-
-        text = render_sheet(result, settings)
-    else:
-        text = sheet_reporter.render(result, fmt)
+    text = sheet_reporter.render(result, fmt, settings)
     if output:
         _write(output, text, force, [path, settings.source], "sheet")
     else:
@@ -333,13 +326,8 @@ def sheet(path, fmt, output, config, no_config, force):
     blocking = [f for f in result.findings if f.rule.startswith("input.")]
     for f in blocking:
         click.echo(finding_lines(f)[0], err=True)
-    sys.exit(
-        EXIT_TROUBLE
-        if any(f.rule == "input.unreadable" for f in blocking)
-        else EXIT_FINDINGS
-        if blocking
-        else EXIT_CLEAN
-    )
+    unreadable = any(f.rule == "input.unreadable" for f in blocking)
+    sys.exit(EXIT_TROUBLE if unreadable else EXIT_FINDINGS if blocking else EXIT_CLEAN)
 
 
 @main.command()

@@ -269,14 +269,12 @@ def _figures(
 
 
 def _sheet(result, prefix: str) -> list[str]:
-    from speccheck.reporters.sheet import grouped
-
     out = [f'<section aria-labelledby="{prefix}sheet"><h2 id="{prefix}sheet">The design sheet</h2>']
     if not result.sheet:
         out.append("<p>No derived values: the plan could not be checked, or no check had what it needs.</p>")
     else:
         out.append("<p>Every value the check worked out, stage by stage.</p>")
-    for section, owners in grouped(result).items():
+    for section, owners in _grouped(result.sheet).items():
         out.append(f"<h3>{esc(section[:1].upper() + section[1:].replace('-', ' '))}</h3>")
         out.append(
             '<table><thead><tr><th scope="col">part or stage</th><th scope="col">quantity</th>'
@@ -291,6 +289,14 @@ def _sheet(result, prefix: str) -> list[str]:
                 )
         out.append("</tbody></table>")
     out.append("</section>")
+    return out
+
+
+def _grouped(entries) -> dict:
+    """section -> owner -> entries, in the sheet's order (as reporters/sheet.py groups them)."""
+    out: dict = {}
+    for e in entries:
+        out.setdefault(e.section, {}).setdefault(e.owner, []).append(e)
     return out
 
 

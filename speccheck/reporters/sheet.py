@@ -69,5 +69,9 @@ def as_json(result) -> str:
     return json_text(json.dumps(doc, indent=2, ensure_ascii=False)) + "\n"
 
 
-def render(result, fmt: str) -> str:
+def render(result, fmt: str, settings=None) -> str:
+    if fmt == "html":  # a page with the pictures (reporters/html.py)
+        from speccheck.reporters.html import render_sheet
+
+        return render_sheet(result, settings)
     return {"text": as_text, "markdown": as_markdown, "json": as_json}[fmt](result)
