@@ -23,6 +23,9 @@ def test_carson_and_sm1138():
 @pytest.mark.parametrize("hz, code", [
     (2.4e3, "2K40"), (12.5e3, "12K5"), (180.5e3, "181K"), (16e3, "16K0"), (0.1, "H100"),
     (1.0, "1H00"), (999.0, "999H"), (1e6, "1M00"), (6.25e6, "6M25"), (1.5e9, "1G50"),
+    # the rounding edges: three significant figures, halves up (RR Appendix 1 as read from memory)
+    (0.9996, "1H00"), (1.5, "1H50"), (0.0125, "H013"), (0.5, "H500"), (0.0004, "H001"),
+    (1.005e6, "1M01"), (1.005e9, "1G01"), (999.5e3, "1M00"),
 ])
 def test_bandwidth_codes(hz, code):
     assert bandwidth.bandwidth_code(hz) == code
@@ -36,5 +39,7 @@ def test_designators_and_their_limits():
     assert bandwidth.emission_designator(100.0, "cw") == "100HA1A"
     assert bandwidth.emission_designator(16e3, "pm") is None
     assert bandwidth.emission_designator(2e12, "fm") is None  # beyond 999 GHz: no spelling
-    with pytest.raises(ValueError):
+    with pytest.raises(ValueError, match="a bandwidth must be a positive number"):
         bandwidth.bandwidth_code(0.0)
+    with pytest.raises(ValueError, match="a bandwidth above 999 GHz has no designator"):
+        bandwidth.bandwidth_code(1e12)

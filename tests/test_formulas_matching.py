@@ -57,3 +57,20 @@ def test_shunt_termination_and_its_cost():
     # it gives up 10·log10(1000/50) = 13.01 dB against a lossless match
     assert matching.termination_cost_db(50.0, 1000.0) == pytest.approx(13.0103, abs=1e-4)
     assert matching.termination_cost_db(50.0, 50.0) == 0.0
+
+
+def test_l_network_edges():
+    same = matching.l_network(50.0, 50.0, 10e6)  # nothing to match: Q 0, no shunt part
+    assert same["q"] == 0.0 and same["x_series"] == 0.0
+    assert same["x_shunt"] == math.inf and same["capacitance"] == 0.0
+    assert same["shunt_on"] == "load"
+    small = matching.l_network(50.0, 60.0, 10e6)  # Q = sqrt(0.2) = 0.447, below 1
+    w = 2 * math.pi * 10e6
+    assert small["x_shunt"] == pytest.approx(60.0 / math.sqrt(0.2))
+    assert small["capacitance"] == pytest.approx(math.sqrt(0.2) / (w * 60.0))
+    assert small["x_series"] == pytest.approx(math.sqrt(0.2) * 50.0)
+
+
+def test_termination_edges():
+    assert matching.termination_resistor(50.0, 50.0) == math.inf  # already matched: no resistor
+    assert matching.termination_cost_db(50.0, 10.0) == 0.0  # a load below the source: nothing given up

@@ -40,3 +40,11 @@ def test_every_listed_input_solves_the_mixing_equation():
     for m, k, s, fs in mixing.spur_inputs(LO, IF, 5):
         assert m * fs + k * LO == pytest.approx(s * IF)
         assert fs > 0
+
+
+def test_up_conversion_finds_positive_lo_orders():
+    # LO 1.5 MHz, IF 10.7 MHz (an up-converter): fs = (IF − k·LO)/m has roots for k > 0 too
+    found = {(m, k, s): fs for m, k, s, fs in mixing.spur_inputs(1.5e6, 10.7e6, 5)}
+    assert found[(1, 5, 1)] == pytest.approx(10.7e6 - 5 * 1.5e6)  # 3.2 MHz
+    assert found[(1, 4, 1)] == pytest.approx(10.7e6 - 4 * 1.5e6)  # 4.7 MHz
+    assert (1, 6, 1) not in found  # 10.7 − 9 = 1.7 MHz would be a root, but order 6 is not searched

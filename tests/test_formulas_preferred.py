@@ -3,6 +3,8 @@
 
 from __future__ import annotations
 
+import math
+
 import pytest
 
 from speccheck.formulas import preferred
@@ -31,3 +33,19 @@ def test_r10_up_just_at_and_just_above_a_step():
     assert preferred.r10_up(12.0) == pytest.approx(12.5)
     with pytest.raises(ValueError):
         preferred.r10_up(0.0)
+
+
+@pytest.mark.parametrize("bad", [0.0, -1.0, math.inf, math.nan])
+def test_r10_up_refuses_what_is_not_a_current(bad):
+    with pytest.raises(ValueError, match="a rating must be a positive number"):
+        preferred.r10_up(bad)
+
+
+def test_r10_up_crosses_decades():
+    assert preferred.r10_up(0.99) == pytest.approx(1.0)
+    assert preferred.r10_up(8.5) == pytest.approx(10.0)
+
+
+def test_decade_values():
+    assert preferred.decade_values(-9, preferred.E12)[5] == pytest.approx(2.7e-9)
+    assert len(preferred.decade_values(3, preferred.E24)) == 24

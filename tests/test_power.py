@@ -785,3 +785,27 @@ def test_inrush_counts_a_resistor_used_as_the_fuse(clean_text):
     text = with_resistor(clean_text, "R1: {kind: resistor, value: 1 ohm, power_rating: 2 W, fusible: true, "
                                      "ends: [DC_IN, V12]}")
     assert sheet(check(text), "supply input", "inrush peak") == pytest.approx(12.0 / 1.5)
+
+
+# ---- thresholds just inside and just outside --------------------------------------------
+
+
+def test_fuse_size_thresholds_at_their_edges(clean_text):
+    # The clean plan's normal (RMS) current clean_rms() at 40 °C ambient, rerated by 0.5 %/°C above
+    # 25 °C (from memory) and derated to 75 % (common practice), gives the least rating; rounded up
+    # to R10 (IEC 60127-1) the preferred one; oversize warning above 2 × preferred. Each rating is
+    # tried 1 mA inside and 1 mA outside its edge.
+    carry = clean_rms() / (1 - 0.005 * 15)  # below this the rerated fuse opens in use (RMS: fuse heats on it)
+    least = carry / 0.75
+    preferred = r10_from_the_list(least)
+
+    def levels(milliamps: float):
+        text = edited(clean_text, "current_rating: 500 mA", f"current_rating: {milliamps:.0f} mA")
+        return [f.level for f in of(check(text), "power.fuse-size")]
+
+    assert levels(math.ceil(least * 1e3)) == []  # just above the least rating
+    assert levels(math.floor(least * 1e3) - 1) == ["warning"]  # just below it
+    assert levels(2 * preferred * 1e3) == []  # exactly twice the preferred rating
+    assert levels(2 * preferred * 1e3 + 10) == ["warning"]  # just over twice
+    assert levels(math.ceil(carry * 1e3) + 1) == ["warning"]
+    assert levels(math.floor(carry * 1e3) - 1) == ["error"]

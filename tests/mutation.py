@@ -1,0 +1,94 @@
+"""Mutation runs, one area at a time (DEVELOPERS.md, "Mutation runs").
+
+    nice .venv/bin/python tests/mutation.py formulas        # or power, freqplan, audio, mains, ...
+    nice .venv/bin/python tests/mutation.py formulas --report-only
+
+Copies the tree into .mutation/<area>/ with a [tool.mutmut] section scoped to that area (the
+modules to change and the tests that pin them), runs mutmut there (one change at a time: an
+operator, a constant, a comparison...), then prints the killed share and the survivors. The
+copy checks with its own (mutated) rules/ (tests/conftest.py sees the folder name `mutants`).
+"""
+
+from __future__ import annotations
+
+import json
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+AREAS: dict[str, tuple[list[str], list[str]]] = {  # area -> (modules to mutate, tests that pin them)
+    "formulas": (["speccheck/formulas/*"],
+                 ["tests/test_formulas_*.py", "tests/test_chain.py", "tests/test_solver.py",
+                  "tests/test_freqplan.py"]),
+    "power": (["rules/power/*"], ["tests/test_power.py"]),
+    "freqplan": (["rules/freqplan/*"], ["tests/test_freqplan.py"]),
+    "rfpath": (["rules/rfpath.py"], ["tests/test_rfpath.py"]),
+    "audio": (["rules/audio.py"], ["tests/test_audio.py"]),
+    "mains": (["rules/mains.py"], ["tests/test_mains.py"]),
+    "wiring": (["rules/wiring.py"], ["tests/test_wiring.py"]),
+    "v2": (["rules/battery.py", "rules/squelch.py", "rules/tap.py", "rules/connect.py"],
+           ["tests/test_v2_rules.py"]),
+}
+
+
+def _toml_list(items: list[str]) -> str:
+    return "[" + ", ".join(json.dumps(i) for i in items) + "]"
+
+
+def prepare(area: str) -> Path:
+    mutate, tests = AREAS[area]
+    work = ROOT / ".mutation" / area
+    if work.exists():
+        shutil.rmtree(work)
+    work.mkdir(parents=True)
+    for name in ("speccheck", "rules", "tests", "examples"):
+        shutil.copytree(ROOT / name, work / name, ignore=shutil.ignore_patterns("__pycache__"))
+    selected = sorted(str(p.relative_to(ROOT)) for pattern in tests for p in ROOT.glob(pattern))
+    (work / "pyproject.toml").write_text(
+        "[tool.mutmut]\n"
+        f"source_paths = {_toml_list(['speccheck/', 'rules/'])}\n"
+        f"only_mutate = {_toml_list(mutate)}\n"
+        f"also_copy = {_toml_list(['examples/'])}\n"
+        f"pytest_add_cli_args = {_toml_list(['-p', 'no:cacheprovider', '-q', '-x'])}\n"
+        f"pytest_add_cli_args_test_selection = {_toml_list(selected)}\n", "utf-8")
+    return work
+
+
+def report(work: Path) -> dict[str, int]:
+    out = subprocess.run([sys.executable, "-m", "mutmut", "results", "--all", "true"], cwd=work,
+                         capture_output=True, text=True).stdout
+    counts: dict[str, int] = {}
+    survivors = []
+    for line in out.splitlines():
+        name, _, status = line.strip().rpartition(": ")
+        if not name:
+            continue
+        counts[status] = counts.get(status, 0) + 1
+        if status != "killed":
+            survivors.append(f"{status:>10}  {name}")
+    total = sum(counts.values())
+    killed = counts.get("killed", 0)
+    print("\n".join(survivors))
+    share = f"{killed / total:.0%}" if total else "-"
+    print(f"{work.name}: {killed} of {total} mutants killed ({share})")
+    print(json.dumps(counts))
+    return counts
+
+
+def main(argv: list[str]) -> int:
+    area = argv[0] if argv else "formulas"
+    if area not in AREAS:
+        print(f"areas: {', '.join(AREAS)}")
+        return 2
+    work = ROOT / ".mutation" / area
+    if "--report-only" not in argv:
+        work = prepare(area)
+        subprocess.run([sys.executable, "-m", "mutmut", "run", "--max-children", "2"], cwd=work)
+    report(work)
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main(sys.argv[1:]))
