@@ -724,3 +724,13 @@ def test_adjacent_channel_rejection_on_the_sheet(clean_text):
     expected = 10 * math.log10(1 + (10 ** 0.6 - 1) * (25 / 7.5) ** (2 * n))
     got = [e.value.value for e in check(text).sheet if e.value.name.startswith("adjacent-channel rejection")]
     assert got == [pytest.approx(min(expected, 80.0), abs=0.06)]
+
+
+def test_the_tank_picture_reads_the_widest_needed_range():
+    # the HTML figure marks the widest range the tank's signals need: 2 x (75 kHz + drift) for the
+    # broadcast example (drift: 500 Hz source + 20 ppm of 10.245 MHz, plain arithmetic)
+    from speccheck.reporters import figure_data
+
+    result = engine.check_file(EXAMPLES / "freq-broadcast-through-narrow.yaml")
+    tank = figure_data.tanks(figure_data.Sheet(result.sheet))[0]
+    assert tank.need == pytest.approx(2 * (75e3 + 500 + 20e-6 * 10.245e6), rel=1e-3)

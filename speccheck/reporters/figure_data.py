@@ -144,7 +144,7 @@ class Tank:
     f0: float
     q: float
     f_if: float | None
-    need: float | None  # the signal's swing: 2 x deviation plus drift, Hz
+    need: float | None  # the widest swing its signals need: 2 x (deviation + drift), Hz
     tune_low: float | None
     tune_high: float | None
     linear: float | None = None  # the linear range as the rule computed it (f0/Q)
@@ -152,6 +152,14 @@ class Tank:
     @property
     def half(self) -> float:
         return (self.linear or self.f0 / self.q) / 2
+
+
+def needed_range(sheet: Sheet, owner: str) -> float | None:
+    """The widest range the tank's signals need: freqplan.tank-range publishes one
+    'needed range …, 2·(deviation + drift)' per signal (one, unnamed, for a single signal)."""
+    needs = [float(e.value.value) for e in sheet.of("discriminator", owner)
+             if e.value.name.startswith("needed range") and isinstance(e.value.value, (int, float))]
+    return max(needs) if needs else None
 
 
 def tanks(sheet: Sheet) -> list[Tank]:
@@ -166,7 +174,7 @@ def tanks(sheet: Sheet) -> list[Tank]:
                     f0,
                     q,
                     sheet.num("discriminator", owner, "final IF"),
-                    sheet.num("discriminator", owner, "needed range (2·deviation + drift)"),
+                    needed_range(sheet, owner),
                     sheet.num("discriminator", owner, "tuning range low"),
                     sheet.num("discriminator", owner, "tuning range high"),
                     sheet.num("discriminator", owner, "linear range (f0/Q)"),
