@@ -739,9 +739,9 @@ def test_the_tank_picture_reads_the_widest_needed_range():
 def test_audio_corner_is_judged_for_every_signal(clean_text):
     # a 1 kHz data signal beside the 3 kHz voice: the clean low-pass (R10 10 kohm, C11 4.7 nF: 3.39 kHz,
     # 1 / (2 pi R C)) suits the voice and is 3.4 times the data signal's top: a note for that one only
-    text = edited(clean_text, "    service: voice\n    path: narrow\n", "    service: voice\n    path: narrow\n"
-                  "  - {name: telemetry, modulation: fm, deviation: 2 kHz, audio_max: 1 kHz, service: data, "
-                  "path: narrow}\n")
+    voice = "    service: voice\n    path: narrow\n"
+    text = edited(clean_text, voice, voice + "  - {name: telemetry, modulation: fm, deviation: 2 kHz, "
+                                             "audio_max: 1 kHz, service: data, path: narrow}\n")
     found = of(check(text), "freqplan.audio-corner")
     assert [(f.level, "telemetry" in f.message) for f in found] == [("note", True)]
     assert f"{1 / (2 * math.pi * 10e3 * 4.7e-9) / 1e3:.1f} times the 1 kHz of telemetry" in found[0].message
