@@ -362,33 +362,12 @@ def schema(kind, version):
 )
 def profile(name, build_file):
     """Show a device profile's values and pins (built in, or declared in --build FILE); no NAME lists them."""
-    from speccheck import loader, profileview
+    from speccheck import profileview
 
-    profiles = dict(loader.builtin_profiles())
-    if build_file:
-        loaded = loader.load(build_file)
-        if loaded.build is None or not loaded.can_check:
-            for f in loaded.findings[:5]:
-                click.echo(
-                    f"{f.location.file}:{f.location.line}:{f.location.col}: {f.level} {f.rule} "
-                    f"{_plain(f.message)}",
-                    err=True,
-                )
-            _trouble(f"{_plain(build_file)}: cannot read its profiles")
-        assert loaded.build is not None
-        profiles = loaded.build.profiles
-    if not name:
-        click.echo("\n".join(profileview.listing(profiles)))
-        return
-    if name not in profiles:
-        import difflib
-
-        close = difflib.get_close_matches(name, list(profiles), n=1)
-        _trouble(
-            f"no profile '{_plain(name)}'{f'; did you mean {close[0]!r}?' if close else ''} "
-            "(`speccheck profile` lists them)"
-        )
-    click.echo("\n".join(_plain(line) for line in profileview.lines(profiles[name])))
+    shown, trouble = profileview.show(name, build_file)
+    click.echo("\n".join(_plain(line) for line in shown), err=bool(trouble))
+    if trouble:
+        _trouble(_plain(trouble))
 
 
 @main.command()
@@ -406,19 +385,12 @@ def upgrade(path, output, in_place, force):
     """Rewrite a format-1 build file as format 2, keeping its comments, order and layout."""
     import os
 
-    from speccheck import files, yamlnodes
-    from speccheck.upgrade import upgrade_text
+    from speccheck import files
+    from speccheck.upgrade import upgrade_file
 
     if output and in_place:
         _trouble("give either --output or --in-place, not both")
-    try:
-        raw = files.read_bytes_bounded(path, yamlnodes.MAX_BYTES)
-        text = raw.decode("utf-8-sig")
-    except files.FileTrouble as exc:
-        _trouble(f"{_plain(path)} {exc}")
-    except UnicodeDecodeError:
-        _trouble(f"{_plain(path)} is not UTF-8 text")
-    done = upgrade_text(text)
+    done = upgrade_file(path)
     if done.trouble:
         _trouble(f"{_plain(path)}: {done.trouble}")
     if in_place:

@@ -73,3 +73,28 @@ def listing(profiles: dict) -> list[str]:
         f"{name:<{width}}  {p.cls:24} {'typical' if p.typical else 'datasheet'}  {where_from(p)}"
         for name, p in sorted(profiles.items())
     ]
+
+
+def show(name: str | None, build_file: str | None) -> tuple[list[str], str]:
+    """(lines to print, trouble): a profile by name, or the list; from a build's profiles when given."""
+    import difflib
+
+    from speccheck import loader
+
+    profiles = dict(loader.builtin_profiles())
+    if build_file:
+        loaded = loader.load(build_file)
+        if loaded.build is None or not loaded.can_check:
+            said = [
+                f"{f.location.file}:{f.location.line}:{f.location.col}: {f.level} {f.rule} {f.message}"
+                for f in loaded.findings[:5]
+            ]
+            return said, f"{build_file}: cannot read its profiles"
+        profiles = loaded.build.profiles
+    if not name:
+        return listing(profiles), ""
+    if name not in profiles:
+        close = difflib.get_close_matches(name, list(profiles), n=1)
+        hint = f"; did you mean {close[0]!r}?" if close else ""
+        return [], f"no profile '{name}'{hint} (`speccheck profile` lists them)"
+    return lines(profiles[name]), ""

@@ -15,7 +15,7 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass, field
 
-from speccheck import textedit, yamlnodes
+from speccheck import files, textedit, yamlnodes
 
 WIPER_NOTE = re.compile(r"^\s*wiper\s+(?:to|on|at)\s+(?P<net>[A-Za-z0-9+_-][A-Za-z0-9+_.-]{0,47})\s*$", re.I)
 LOAD_KEY = {"audio-amp": "load_resistance", "speaker": "load_resistance"}  # others: works_into
@@ -52,7 +52,7 @@ def upgrade_text(text: str) -> Upgraded:
             edits.append(textedit.rename_key(text, doc, ("chain", i, "load_impedance"), new))
             note(("chain", i, "load_impedance"), f"chain[{i}].load_impedance -> {new}")
     parts = doc.data.get("parts")
-    for ref, part in (parts.items() if isinstance(parts, dict) else ()):
+    for ref, part in parts.items() if isinstance(parts, dict) else ():
         if not isinstance(part, dict) or part.get("kind") != "potentiometer" or "wiper" in part:
             continue
         m = WIPER_NOTE.match(str(part.get("note") or ""))
@@ -68,3 +68,14 @@ def upgrade_text(text: str) -> Upgraded:
         return Upgraded(textedit.apply(text, edits), changes)
     except textedit.EditTrouble as exc:
         return Upgraded(text, trouble=str(exc))
+
+
+def upgrade_file(path) -> Upgraded:
+    """The upgrade of a file on disk (read bounded, as UTF-8); `trouble` says why not."""
+    try:
+        text = files.read_bytes_bounded(path, yamlnodes.MAX_BYTES).decode("utf-8-sig")
+    except files.FileTrouble as exc:
+        return Upgraded("", trouble=str(exc))
+    except UnicodeDecodeError:
+        return Upgraded("", trouble="is not UTF-8 text")
+    return upgrade_text(text)
