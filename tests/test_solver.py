@@ -474,3 +474,19 @@ def test_heat_sink_figure_comes_from_the_check():
     pick = float(proposal.chosen.summary.split()[-2])
     assert pick <= need and pick == float(f"{math.floor(need):.2g}")
     assert "the check then gives junction temperature" in proposal.chosen.result
+
+
+def test_wire_or_fuse_when_the_fuse_is_above_the_wiring(tmp_path):
+    # Chassis-wiring ampacity (Handbook of Electronic Tables and Formulas): 24 AWG 3.5 A, 22 AWG 7 A;
+    # a 5 A fuse on 24 AWG wire needs 22 AWG (the thinnest that carries 5 A).
+    from speccheck.formulas.fuses import AWG_CHASSIS_AMPS
+
+    assert picks.thinnest_wire_for(5.0, AWG_CHASSIS_AMPS) == 22
+    assert picks.thinnest_wire_for(3.5, AWG_CHASSIS_AMPS) == 24
+
+
+def test_speaker_rating_steps():
+    # common practice: speakers are sold at 0.5, 1, 2, 3, 5 ... W
+    assert picks.rating_up(2.25, picks.SPEAKER_POWERS) == 3.0
+    assert picks.rating_up(0.5, picks.SPEAKER_POWERS) == 0.5
+    assert picks.rating_up(500.0, picks.SPEAKER_POWERS) is None

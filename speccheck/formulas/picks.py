@@ -66,12 +66,27 @@ def preferred_around(value: float, name: str, each_side: int = 2) -> list[float]
     return below[-each_side:] + above[:each_side]
 
 
-def voltage_rating_up(volts: float) -> float | None:
-    """The smallest stocked capacitor voltage rating at or above `volts`; None above the table."""
-    for rating in CAPACITOR_VOLTAGES:
-        if rating >= volts * (1 - 1e-9):
+# Power ratings loudspeakers are sold with (nominal, continuous): common practice.
+SPEAKER_POWERS = (0.1, 0.25, 0.5, 1.0, 2.0, 3.0, 5.0, 8.0, 10.0, 15.0, 20.0, 30.0, 50.0)
+
+
+def rating_up(value: float, table: tuple[float, ...]) -> float | None:
+    """The smallest rating of an ascending table at or above `value`; None above the table."""
+    for rating in table:
+        if rating >= value * (1 - 1e-9):
             return rating
     return None
+
+
+def voltage_rating_up(volts: float) -> float | None:
+    """The smallest stocked capacitor voltage rating at or above `volts`; None above the table."""
+    return rating_up(volts, CAPACITOR_VOLTAGES)
+
+
+def thinnest_wire_for(amps: float, table: dict[int, float]) -> int | None:
+    """The thinnest gauge (largest AWG number) of an ampacity table {AWG: amperes} that carries `amps`."""
+    fit = [gauge for gauge, carries in table.items() if carries >= amps * (1 - 1e-9)]
+    return max(fit) if fit else None
 
 
 # ---- inverse formulas ---------------------------------------------------------------------

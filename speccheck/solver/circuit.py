@@ -419,3 +419,64 @@ def reverse_polarity(s: Situation, f: Finding) -> Proposal | None:
         "class part for a fuse under 1 A; common practice)",
         source="common practice (the rule's fix)",
     )
+
+
+@remedy("power.fuse-wire")
+def fuse_wire(s: Situation, f: Finding) -> Proposal | None:
+    """The fuse the build needs where the wire carries it; else wire that carries the fitted fuse."""
+    from speccheck.formulas.fuses import AWG_CHASSIS_AMPS
+
+    fuse = s.part_for(f)
+    supply = s.build.supply
+    rating, carries = number(f, "fuse rating"), number(f, "wire ampacity")
+    if fuse is None or fuse.kind != "fuse" or supply is None or rating is None or carries is None:
+        return None
+    options = []
+    needed = s.sheet("fuse", fuse.name, "preferred rating (R10)")
+    if needed is not None and needed <= carries:
+        options.append(
+            Option(
+                [set_or_add(fuse, "current_rating", units.plan_text(needed, "A"))],
+                f"{fuse.name} {units.fmt(needed, 'A')}",
+                f"the rating the build needs, within the {units.fmt(carries, 'A')} the wiring carries",
+            )
+        )
+    gauge = picks.thinnest_wire_for(rating, AWG_CHASSIS_AMPS)
+    if gauge is not None and "wire_gauge" in supply.places:
+        options.append(
+            Option(
+                [Change(supply.places["wire_gauge"], gauge)],
+                f"supply wiring {gauge} AWG",
+                f"carries {units.fmt(AWG_CHASSIS_AMPS[gauge], 'A')}, above the {units.fmt(rating, 'A')} fuse",
+            )
+        )
+    return Proposal(
+        f,
+        f"{fuse.name} against the wiring",
+        options,
+        source="chassis-wiring ampacity (Handbook of Electronic Tables and Formulas, the rule's table); R10 "
+        "series, IEC 60127-1 Annex A",
+    )
+
+
+@remedy("audio.speaker-power")
+def speaker_power(s: Situation, f: Finding) -> Proposal | None:
+    speaker = s.part_for(f)
+    full = number(f, "amplifier full output")
+    if speaker is None or not full:
+        return None
+    pick = picks.rating_up(full, picks.SPEAKER_POWERS)
+    if pick is None:
+        return None
+    return Proposal(
+        f,
+        f"{speaker.name} power rating",
+        [
+            Option(
+                [set_or_add(speaker, "power_rating", units.plan_text(pick, "W"))],
+                f"{speaker.name} rated {units.fmt(pick, 'W')}",
+                f"at or above the {units.fmt(full, 'W')} the amplifier can deliver",
+            )
+        ],
+        source="the rule's full output; speaker power steps: common practice",
+    )
