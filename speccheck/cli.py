@@ -542,30 +542,11 @@ def solve(path, series, apply_changes, fmt, config, no_config):
     finding and makes no other finding appear. Comments, order and layout of the plan stay as
     they are. Exit 0 when it ran, 2 when it could not (unreadable plan, input errors with --apply).
     """
-    from pathlib import Path
-
-    from speccheck import solver
     from speccheck.solver import show
 
-    if not Path(path).exists():
-        _trouble(f"{_plain(path)}: no such file")
     settings = _settings([path], config, no_config)
     try:
-        outcome = solver.solve(path, settings, series or settings.parts_series)
-    except solver.SolveTrouble as exc:
+        text = show.run_command(path, settings, series or settings.parts_series, apply_changes, fmt)
+    except show.CommandTrouble as exc:
         _trouble(_plain(str(exc)))
-    if fmt == "text":
-        click.echo(show.render(outcome), nl=False)
-    if apply_changes and not outcome.refused and outcome.new_text != outcome.text:
-        try:
-            solver.write(outcome, settings)
-        except solver.SolveTrouble as exc:
-            _trouble(_plain(str(exc)))
-        if fmt == "text":
-            click.echo(show.render_after(outcome), nl=False)
-    elif apply_changes and fmt == "text" and not outcome.refused:
-        click.echo("nothing to write: the plan stays as it is")
-    if fmt == "json":
-        click.echo(show.render_json(outcome), nl=False)
-    if outcome.refused and apply_changes:
-        sys.exit(EXIT_TROUBLE)
+    click.echo(text, nl=False)

@@ -144,3 +144,32 @@ def render_json(outcome: Outcome) -> str:
     from speccheck.reporters.neutral import json_text
 
     return json_text(json.dumps(as_dict(outcome), indent=2, ensure_ascii=False)) + "\n"
+
+
+# ---- the command -----------------------------------------------------------------------------
+
+class CommandTrouble(Exception):
+    """`speccheck solve` cannot do its job (exit 2); the message is fit to show."""
+
+
+def run_command(path, settings, series: str, apply_changes: bool, fmt: str) -> str:
+    """What `speccheck solve` prints: solve, show, write when asked, show the check after."""
+    from pathlib import Path
+
+    from speccheck import solver
+
+    if not Path(path).exists():
+        raise CommandTrouble(f"{path}: no such file")
+    try:
+        outcome = solver.solve(path, settings, series)
+        out = render(outcome) if fmt == "text" else ""
+        if outcome.refused and apply_changes:
+            raise CommandTrouble(f"{path}: not written: {outcome.refused}")
+        if apply_changes and outcome.new_text != outcome.text:
+            solver.write(outcome, settings)
+            out += render_after(outcome) if fmt == "text" else ""
+        elif apply_changes and fmt == "text":
+            out += "nothing to write: the plan stays as it is\n"
+    except solver.SolveTrouble as exc:
+        raise CommandTrouble(str(exc)) from None
+    return out + (render_json(outcome) if fmt == "json" else "")
