@@ -119,6 +119,30 @@ def test_pictures_say_in_words_what_they_show_from_the_sheet():
     assert "The signal chain in order:" in figs["chain"].alt
 
 
+def test_switched_build_draws_a_tank_per_position_and_says_for_which():
+    # Format v2: the damping of the tank depends on the selector; the sheet says which signal and
+    # positions each loaded Q holds for, and so do the pictures and the sheet's tables.
+    result = engine.check_file(EXAMPLES / "bench-demod-selector.yaml")
+    tanks = [f for f in figures.figures(result) if f.key.startswith("tank")]
+    positions = {(e.signal, e.position) for e in result.sheet if e.value.name == "loaded Q"}
+    assert len(tanks) == len(positions) >= 2
+    for signal, position in positions:
+        assert any(signal in t.alt and position in t.alt for t in tanks)
+    words = Page(page_of(result)).words
+    assert "part or stage quantity value for" in words
+    plan = next(f for f in figures.figures(result) if f.key == "plan0")
+    assert plan.alt.count("the passband ahead of the mixer for ") == 2
+
+
+def test_tank_picture_marks_the_signal_swing_from_the_sheet():
+    result = engine.check_file(BEGINNER)
+    need = next(
+        e for e in result.sheet if e.section == "discriminator" and e.value.name.startswith("needed range")
+    )
+    tank = next(f for f in figures.figures(result) if f.key == "tank0")
+    assert f"the signal swings {need.value.text}" in tank.alt
+
+
 def test_pictures_are_deterministic():
     result = engine.check_file(BEGINNER)
     assert page_of(result) == page_of(result)

@@ -12,19 +12,38 @@ from dataclasses import dataclass, field
 
 
 class Sheet:
-    """The design sheet of one file, looked up by (section, owner, name)."""
+    """The design sheet of one file, looked up by section, owner and name (a name may be given by
+    its start, so that a wording change after a comma or bracket does not lose the value).
+
+    Format v2 publishes some values once per signal (the switch positions it is received in):
+    `signal` picks that signal's entry, falling back to an entry for all signals."""
 
     def __init__(self, entries):
         self.entries = list(entries)
-        self._at = {(e.section, e.owner, e.value.name): e.value.value for e in self.entries}
 
-    def num(self, section: str, owner: str, name: str) -> float | None:
-        value = self._at.get((section, owner, name))
+    def _find(self, section: str, owner: str, name: str, signal: str | None):
+        found = [
+            e
+            for e in self.entries
+            if e.section == section
+            and e.owner == owner
+            and (e.value.name == name or (name.endswith("…") and e.value.name.startswith(name[:-1])))
+        ]
+        if signal is not None:
+            for wanted in (signal, ""):
+                for e in found:
+                    if getattr(e, "signal", "") == wanted:
+                        return e
+        return found[0] if found else None
+
+    def num(self, section: str, owner: str, name: str, signal: str | None = None) -> float | None:
+        e = self._find(section, owner, name, signal)
+        value = e.value.value if e is not None else None
         return float(value) if isinstance(value, (int, float)) and not isinstance(value, bool) else None
 
-    def text(self, section: str, owner: str, name: str) -> str | None:
-        value = self._at.get((section, owner, name))
-        return value if isinstance(value, str) else None
+    def text(self, section: str, owner: str, name: str, signal: str | None = None) -> str | None:
+        e = self._find(section, owner, name, signal)
+        return e.value.value if e is not None and isinstance(e.value.value, str) else None
 
     def owners(self, section: str) -> list[str]:
         seen: list[str] = []
@@ -36,12 +55,30 @@ class Sheet:
     def of(self, section: str, owner: str) -> list:
         return [e for e in self.entries if e.section == section and e.owner == owner]
 
+    def signals_of(self, section: str, owner: str, name: str) -> list[tuple[str, str]]:
+        """(signal, positions) of each entry of this name, in sheet order; [("", "")] for one for all."""
+        seen: list[tuple[str, str]] = []
+        for e in self.of(section, owner):
+            key = (getattr(e, "signal", ""), getattr(e, "position", ""))
+            if e.value.name == name and key not in seen:
+                seen.append(key)
+        return seen
+
+
+def for_words(signal: str, position: str) -> str:
+    """'repeater voice (S1 narrow; upstream rbw-100k)', or '' for a value that holds for all."""
+    if not signal:
+        return ""
+    return f"{signal} ({position})" if position else signal
+
 
 @dataclass
 class SignalBand:
     name: str
     width: float  # necessary bandwidth, Hz
     path: str | None = None  # the IF path that serves it, when the sheet says
+    position: str = ""  # v2: the switch positions it is received in
+    ahead: tuple | None = None  # v2: the passband ahead of the mixer in those positions
 
 
 @dataclass
@@ -62,7 +99,7 @@ class Conversion:
     if_low: float
     if_high: float
     image: float | None
-    ahead: tuple | None  # (low, high) of the passband ahead of the mixer
+    ahead: tuple | None  # (low, high) of the passband ahead of the mixer (the first, in v2)
     spurs: list  # (name, frequency)
     paths: list  # PathBand after this conversion
     signals: list  # SignalBand
@@ -71,9 +108,10 @@ class Conversion:
 def signals(sheet: Sheet) -> list[SignalBand]:
     out = []
     for name in sheet.owners("signals"):
-        width = sheet.num("signals", name, "necessary bandwidth (ITU-R SM.1138)")
+        width = sheet.num("signals", name, "necessary bandwidth…", name)
         if width:
-            out.append(SignalBand(name, width))
+            where = sheet.signals_of("signals", name, "necessary bandwidth (ITU-R SM.1138)")
+            out.append(SignalBand(name, width, position=where[0][1] if where else ""))
     for path in sheet.owners("if-filter"):
         for e in sheet.of("if-filter", path):
             m = re.fullmatch(r"margin for (.+) \(worst case\)", e.value.name)
@@ -114,6 +152,10 @@ def conversions(sheet: Sheet) -> list[Conversion]:
         if f_in is None or lo is None or f_if is None:
             continue
         low, high = got["passband ahead low edge"], got["passband ahead high edge"]
+        for sig in all_signals:
+            s_low = sheet.num("conversion", owner, "passband ahead low edge", sig.name)
+            s_high = sheet.num("conversion", owner, "passband ahead high edge", sig.name)
+            sig.ahead = (s_low, s_high) if s_low is not None and s_high is not None else None
         spurs = [
             (e.value.name, float(e.value.value))
             for e in sheet.of("spurs", owner)
@@ -144,10 +186,11 @@ class Tank:
     f0: float
     q: float
     f_if: float | None
-    need: float | None  # the widest swing its signals need: 2 x (deviation + drift), Hz
+    need: float | None  # the swing its signal (or the widest of its signals) needs: 2 x (deviation + drift)
     tune_low: float | None
     tune_high: float | None
     linear: float | None = None  # the linear range as the rule computed it (f0/Q)
+    label: str = ""  # v2: the signal and switch positions this Q holds for
 
     @property
     def half(self) -> float:
@@ -157,27 +200,36 @@ class Tank:
 def needed_range(sheet: Sheet, owner: str) -> float | None:
     """The widest range the tank's signals need: freqplan.tank-range publishes one
     'needed range …, 2·(deviation + drift)' per signal (one, unnamed, for a single signal)."""
-    needs = [float(e.value.value) for e in sheet.of("discriminator", owner)
-             if e.value.name.startswith("needed range") and isinstance(e.value.value, (int, float))]
+    needs = [
+        float(e.value.value)
+        for e in sheet.of("discriminator", owner)
+        if e.value.name.startswith("needed range") and isinstance(e.value.value, (int, float))
+    ]
     return max(needs) if needs else None
 
 
 def tanks(sheet: Sheet) -> list[Tank]:
+    """One tank per discriminator, or per signal where the damping depends on the switch positions."""
     out = []
     for owner in sheet.owners("discriminator"):
         f0 = sheet.num("discriminator", owner, "tank resonance f0")
-        q = sheet.num("discriminator", owner, "loaded Q")
-        if f0 and q:
+        for signal, position in sheet.signals_of("discriminator", owner, "loaded Q"):
+            q = sheet.num("discriminator", owner, "loaded Q", signal)
+            if not (f0 and q):
+                continue
             out.append(
                 Tank(
                     owner,
                     f0,
                     q,
-                    sheet.num("discriminator", owner, "final IF"),
-                    needed_range(sheet, owner),
-                    sheet.num("discriminator", owner, "tuning range low"),
-                    sheet.num("discriminator", owner, "tuning range high"),
-                    sheet.num("discriminator", owner, "linear range (f0/Q)"),
+                    sheet.num("discriminator", owner, "final IF", signal),
+                    sheet.num("discriminator", owner, "needed range…", signal)
+                    if signal
+                    else needed_range(sheet, owner),
+                    sheet.num("discriminator", owner, "tuning range low", signal),
+                    sheet.num("discriminator", owner, "tuning range high", signal),
+                    sheet.num("discriminator", owner, "linear range (f0/Q)", signal),
+                    for_words(signal, position),
                 )
             )
     return out

@@ -59,19 +59,39 @@ def _label_rows(items, span: float) -> list[int]:
     return rows
 
 
-def _plan_overview(ax, c: Conversion, marks):
-    top = max(f for _, f, *_ in marks) * 1.12
-    if c.ahead:
+def aheads(c: Conversion) -> list[tuple[str, float, float]]:
+    """The passband ahead of the mixer: one, or (format v2) one per signal where they differ."""
+    per_signal: list[tuple[str, float, float]] = []
+    for sig in c.signals:
+        if sig.ahead and all((low, high) != sig.ahead for _, low, high in per_signal):
+            per_signal.append((sig.name, sig.ahead[0], sig.ahead[1]))
+    if len(per_signal) > 1:
+        return per_signal
+    return [("", c.ahead[0], c.ahead[1])] if c.ahead else []
+
+
+_AHEAD_HATCH = ["//", "\\\\", "..", "xx"]
+
+
+def _draw_aheads(ax, c: Conversion, legend: bool):
+    for i, (who, low, high) in enumerate(aheads(c)):
         ax.axvspan(
-            _mhz(c.ahead[0]),
-            _mhz(c.ahead[1]),
-            facecolor=tint(SKY),
-            hatch="//",
+            _mhz(low),
+            _mhz(high),
+            facecolor=tint(SKY, 0.8 if i else 0.7),
+            hatch=_AHEAD_HATCH[i % len(_AHEAD_HATCH)],
             edgecolor=SKY,
             linewidth=0.6,
-            label="passband ahead of the mixer",
+            alpha=0.9,
+            label=(f"passband ahead of the mixer{f' for {who}' if who else ''}" if legend else None),
         )
-        top = max(top, c.ahead[1] * 1.05)
+
+
+def _plan_overview(ax, c: Conversion, marks):
+    top = max(f for _, f, *_ in marks) * 1.12
+    _draw_aheads(ax, c, legend=True)
+    for _, _, high in aheads(c):
+        top = max(top, high * 1.05)
     for p in c.paths:
         ax.axvspan(_mhz(p.low), _mhz(p.high), facecolor=GREEN, alpha=0.5, edgecolor=GREEN)
     ordered = sorted(marks, key=lambda m: m[1])
@@ -105,20 +125,17 @@ def _plan_overview(ax, c: Conversion, marks):
     ax.set_yticks([])
     ax.set_xlabel("frequency (MHz)")
     ax.set_title("The whole plan on one axis")
-    if c.ahead or c.spurs:
+    if aheads(c) or c.spurs:
         ax.legend(loc="upper center", fontsize=7.5, frameon=False)
 
 
 def _plan_input(ax, c: Conversion, marks):
     near = [m for m in marks if m[0] != "IF"]
-    fs = [f for _, f, *_ in near] + ([c.ahead[0], c.ahead[1]] if c.ahead else [])
+    fs = [f for _, f, *_ in near] + [f for _, low, high in aheads(c) for f in (low, high)]
     low, high = min(fs), max(fs)
     pad = (high - low) * 0.08 or c.f_in * 0.01
     low, high = low - pad, high + pad
-    if c.ahead:
-        ax.axvspan(
-            _mhz(c.ahead[0]), _mhz(c.ahead[1]), facecolor=tint(SKY), hatch="//", edgecolor=SKY, linewidth=0.6
-        )
+    _draw_aheads(ax, c, legend=False)
     ordered = sorted(near, key=lambda m: m[1])
     rows = _label_rows(ordered, (high - low) * 0.25)
     for (name, f, colour, style), row in zip(ordered, rows, strict=True):
@@ -219,8 +236,10 @@ def _plan_alt(c: Conversion) -> str:
     ]
     if c.image is not None:
         words.append(f"the image at {hz(c.image)}")
-    if c.ahead:
-        words.append(f"the passband ahead of the mixer from {hz(c.ahead[0])} to {hz(c.ahead[1])}")
+    for who, low, high in aheads(c):
+        words.append(
+            f"the passband ahead of the mixer{f' for {who}' if who else ''} from {hz(low)} to {hz(high)}"
+        )
     for p in c.paths:
         words.append(f"the {p.name} from {hz(p.low)} to {hz(p.high)}")
     for s in c.signals:
@@ -293,14 +312,17 @@ def tank_response(t: Tank, key: str) -> Figure:
         ax.set_xlim(_khz(lo), _khz(hi))
         ax.set_xlabel("frequency (kHz)")
         ax.set_yticks([0, 0.5, 1])
-        ax.set_title(f"Detector tank: resonance {hz(t.f0)}, loaded Q {t.q:.3g}")
+        ax.set_title(
+            f"Detector tank: resonance {hz(t.f0)}, loaded Q {t.q:.3g}"
+            + (f"\nfor {t.label}" if t.label else "")
+        )
         ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.2), fontsize=7.5, frameon=False, ncol=3)
 
     svg = svg_of(draw, key, (7.6, 4.0))
     fits = "inside" if t.need is None or 2 * half >= t.need else "wider than"
     alt = (
-        f"Response of the detector tank in {t.owner}: resonance {hz(t.f0)}, loaded Q {t.q:.3g}, so a linear "
-        f"range of {hz(2 * half)} around the resonance"
+        f"Response of the detector tank in {t.owner}{f' for {t.label}' if t.label else ''}: "
+        f"resonance {hz(t.f0)}, loaded Q {t.q:.3g}, so a linear range of {hz(2 * half)} around the resonance"
     )
     if t.f_if is not None:
         alt += f"; the final IF at {hz(t.f_if)}"
@@ -308,7 +330,7 @@ def tank_response(t: Tank, key: str) -> Figure:
         alt += f"; the signal swings {hz(t.need)} (twice the deviation plus drift), {fits} the linear range"
     if t.tune_low is not None and t.tune_high is not None:
         alt += f"; the adjustable part tunes the resonance from {hz(t.tune_low)} to {hz(t.tune_high)}"
-    return Figure(key, f"Detector tank: {t.owner}", svg, alt + ".")
+    return Figure(key, f"Detector tank: {t.owner}" + (f", {t.label}" if t.label else ""), svg, alt + ".")
 
 
 def paths_against_signals(c: Conversion, key: str) -> Figure | None:

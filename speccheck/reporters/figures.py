@@ -79,9 +79,11 @@ def chain_blocks(chain: list, sheet: Sheet, worst: dict, key: str) -> Figure | N
     for label, kind in chain:
         lines = []
         for section, name in _KEY_VALUES.get(kind, []):
-            for e in sheet.of(section, label):
-                if e.value.name == name:
-                    lines.append(f"{_short(name)} {e.value.text}")
+            shown = list(
+                dict.fromkeys(e.value.text for e in sheet.of(section, label) if e.value.name == name)
+            )
+            if shown:  # one value per switch position where they differ (format v2)
+                lines.append(f"{_short(name)} {' / '.join(shown)}")
         if kind == "if-filter":
             for p in paths(sheet):
                 lines.append(f"{p.name.replace(' path', '')} {hz(p.low)}–{hz(p.high)}")

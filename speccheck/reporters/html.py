@@ -151,6 +151,15 @@ def _numbers(values) -> str:
     return f'<p class="label">The numbers</p><table class="numbers"><tbody>{rows}</tbody></table>'
 
 
+def _held_for(f) -> str:
+    """Format v2: which signal, in which switch positions, the finding holds for."""
+    signal, position = getattr(f, "signal", ""), getattr(f, "position", "")
+    if not signal and not position:
+        return ""
+    said = f"For {signal}" + (f", with {position}" if position else "") if signal else f"With {position}"
+    return f'<p class="where">{esc(said)}.</p>'
+
+
 def _finding(f, number: int, rule, explained: set, pictures: dict, prefix: str) -> list[str]:
     from speccheck.reporters.reading import plain
 
@@ -160,6 +169,7 @@ def _finding(f, number: int, rule, explained: set, pictures: dict, prefix: str) 
         f'<div class="finding" id="{prefix}f{number}">',
         f"<p>{badge}<strong>{esc(plain(title, rule))}</strong></p>",
         f"<p>{esc(plain(f.message, rule))}</p>",
+        _held_for(f),
         _numbers(f.values),
     ]
     if f.fix:
@@ -268,24 +278,37 @@ def _figures(
     return out
 
 
+def _section_title(section: str) -> str:
+    """'if-filter' -> 'IF filter', 'rf-levels' -> 'RF levels'."""
+    words = [w.upper() if w in ("if", "rf", "lo", "dc", "ac") else w for w in section.split("-")]
+    text = " ".join(words)
+    return text[:1].upper() + text[1:]
+
+
 def _sheet(result, prefix: str) -> list[str]:
+    from speccheck.reporters.figure_data import for_words
+
     out = [f'<section aria-labelledby="{prefix}sheet"><h2 id="{prefix}sheet">The design sheet</h2>']
     if not result.sheet:
         out.append("<p>No derived values: the plan could not be checked, or no check had what it needs.</p>")
     else:
         out.append("<p>Every value the check worked out, stage by stage.</p>")
+    per_signal = any(getattr(e, "signal", "") for e in result.sheet)
+    extra = '<th scope="col">for</th>' if per_signal else ""
     for section, owners in _grouped(result.sheet).items():
-        out.append(f"<h3>{esc(section[:1].upper() + section[1:].replace('-', ' '))}</h3>")
+        out.append(f"<h3>{esc(_section_title(section))}</h3>")
         out.append(
             '<table><thead><tr><th scope="col">part or stage</th><th scope="col">quantity</th>'
-            '<th scope="col">value</th></tr></thead><tbody>'
+            f'<th scope="col">value</th>{extra}</tr></thead><tbody>'
         )
         for owner, entries in owners.items():
             for i, e in enumerate(entries):
                 who = esc(owner) if i == 0 else ""
+                held = for_words(getattr(e, "signal", ""), getattr(e, "position", ""))
+                cell = f"<td>{esc(held) if held else 'all'}</td>" if per_signal else ""
                 out.append(
                     f"<tr><td>{who}</td><td>{esc(e.value.name)}</td>"
-                    f'<td class="value">{esc(e.value.text)}</td></tr>'
+                    f'<td class="value">{esc(e.value.text)}</td>{cell}</tr>'
                 )
         out.append("</tbody></table>")
     out.append("</section>")

@@ -65,6 +65,9 @@ def finding_block(f, rule, explained: set, number: int) -> list[str]:
             f"item {number}): {_words(f.message, rule)}"
         )
     ]
+    signal, position = getattr(f, "signal", ""), getattr(f, "position", "")
+    if signal or position:  # format v2: which signal, in which switch positions
+        lines.append(f"{_IN}- **For:** {md(signal)}{', with ' if signal and position else ''}{md(position)}")
     if f.values:
         lines.append(f"{_IN}- **The numbers:** " + "; ".join(f"{md(v.name)} {md(v.text)}" for v in f.values))
     if f.fix:
@@ -118,6 +121,7 @@ def _waived_block(findings, rules: dict, order: list) -> list[str]:
 
 def sheet_block(result) -> list[str]:
     """The design sheet as one table per section, in the open (not folded away)."""
+    from speccheck.reporters.figure_data import for_words
     from speccheck.reporters.sheet import grouped
 
     if not result.sheet:
@@ -128,11 +132,18 @@ def sheet_block(result) -> list[str]:
         "",
         f"Every value the check worked out ({_plural(len(result.sheet), 'value')}).",
     ]
+    per_signal = any(getattr(e, "signal", "") for e in result.sheet)  # format v2: values per signal
+    head = "| part or stage | quantity | value |" + (" for |" if per_signal else "")
+    rule = "|---|---|---:|" + ("---|" if per_signal else "")
     for section, owners in grouped(result).items():
-        lines += ["", f"#### {md(section)}", "", "| part or stage | quantity | value |", "|---|---|---:|"]
+        lines += ["", f"#### {md(section)}", "", head, rule]
         for owner, entries in owners.items():
             for i, e in enumerate(entries):
-                lines.append(f"| {md(owner) if i == 0 else ''} | {md(e.value.name)} | {md(e.value.text)} |")
+                row = f"| {md(owner) if i == 0 else ''} | {md(e.value.name)} | {md(e.value.text)} |"
+                if per_signal:
+                    held = for_words(getattr(e, "signal", ""), getattr(e, "position", ""))
+                    row += f" {md(held) if held else 'all'} |"
+                lines.append(row)
     return lines
 
 
