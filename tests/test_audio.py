@@ -195,3 +195,16 @@ def test_small_speaker_on_a_12_v_amplifier_is_a_warning(clean_text):
     p_max = ((12.0 - 3.0) / 2) ** 2 / (2 * 8.0)
     assert found[0].message.startswith(f"SPK1 is rated 1 W but U2 can deliver up to {p_max:.4g} W into it")
     assert found[0].location.line == line_of(text, "SPK1: {kind: speaker")
+
+
+def test_coupling_corner_threshold_at_its_edge(clean_text):
+    # C20 (470 µF) into 8 ohm turns over at 1/(2π·8·470 µF) = 42.33 Hz (first-order RC). With
+    # lowest_audio just above it the plan is fine; just below, the rule warns.
+    corner = 1 / (2 * math.pi * 8 * 470e-6)
+    above = edited(clean_text, "  lowest_audio: 300 Hz\n", f"  lowest_audio: {corner * 1.001:.4f} Hz\n")
+    below = edited(clean_text, "  lowest_audio: 300 Hz\n", f"  lowest_audio: {corner * 0.999:.4f} Hz\n")
+    assert of(check(above), "audio.coupling-corner") == []
+    found = of(check(below), "audio.coupling-corner")
+    assert [f.level for f in found] == ["warning"]
+    loss = 10 * math.log10(1 + (1 / 0.999) ** 2)  # first-order high-pass at 0.999 of its corner: 3.01 dB
+    assert f"{loss:.1f} dB down there" in found[0].message
