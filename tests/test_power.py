@@ -809,3 +809,20 @@ def test_fuse_size_thresholds_at_their_edges(clean_text):
     assert levels(2 * preferred * 1e3 + 10) == ["warning"]  # just over twice
     assert levels(math.ceil(carry * 1e3) + 1) == ["warning"]
     assert levels(math.floor(carry * 1e3) - 1) == ["error"]
+
+
+def test_melting_i2t_share_at_its_edge(clean_text):
+    # The clean plan switches 12 V onto C30 (1000 µF) through the assumed 0.5 ohm loop: I²t =
+    # V²·C/(2R) = 0.144 A²s. A stated melting I²t is used at 30 % for repeated switch-on (the
+    # pulse_share setting, from memory): 0.48 A²s gives exactly 0.144 (fine), 0.47 A²s gives 0.141.
+    i2t = 12.0 ** 2 * 1000e-6 / (2 * 0.5)
+
+    def found(melting: str):
+        text = edited(clean_text, "speed: time-lag, ends: [DC_IN, V12]",
+                      f"speed: time-lag, melting_i2t: {melting}, ends: [DC_IN, V12]")
+        return of(check(text), "power.fuse-inrush")
+
+    assert found(f"{i2t / 0.3 * 1.001:.5f} A^2 s") == []
+    below = found(f"{i2t / 0.3 * 0.999:.5f} A^2 s")
+    assert [f.level for f in below] == ["warning"]
+    assert "× 30% for repeated switch-on" in below[0].message
