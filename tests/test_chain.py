@@ -42,3 +42,18 @@ def test_crystal_pulled_and_multiplied():
     assert c.side == "high"  # 20.49 MHz is above the 10.7 MHz input
     assert c.f_if == pytest.approx(c.lo - 10.7e6)
     assert c.if_unc == pytest.approx(500.0 + 2 * 10.245e6 * 20e-6)
+
+
+def test_filter_fit_margin_of_the_clean_plan():
+    # freqplan.filter-fit publishes the worst-case margin: the signal's necessary band (SM.1138:
+    # 2·3 kHz + 2·5 kHz = 16 kHz) around the worst-case IF against FL1's 445-465 kHz passband
+    # (455 kHz ± 10 kHz at 6 dB). The IF and its spread come from the walk (pinned above).
+    from conftest import check
+
+    text = CLEAN.read_text("utf-8")
+    c = plan_of(text).conversions[0]
+    low_side = (c.f_if - c.if_unc - 16e3 / 2) - 445e3
+    high_side = 465e3 - (c.f_if + c.if_unc + 16e3 / 2)
+    margin = next(e.value.value for e in check(text).sheet
+                  if e.value.name == "margin for repeater voice (worst case)")
+    assert margin == pytest.approx(min(low_side, high_side))
