@@ -214,6 +214,10 @@ def _resolve_choices(view, holder, out: set):
         stand_in = _combined(view, live)
         setattr(holder, name, stand_in.name if stand_in is not None else None)
         if stand_in is not None and stand_in.combined_from:
+            listed = holder.places.get(name)
+            if listed is not None:  # findings about the stand-in point at the list that made it
+                stand_in.doc_path = listed
+                stand_in.places = dict.fromkeys(("value", "ends", "kind"), listed)
             view.combined[stand_in.name] = stand_in
 
 

@@ -81,15 +81,15 @@ def test_a_finding_names_its_signal_and_position():
     assert len(found) == 1
     assert found[0].signal == "broadcast FM" and found[0].position == "S1 wide; upstream rbw-1m"
     assert found[0].message.endswith("[broadcast FM; S1 wide; upstream rbw-1m]")
-    assert found[0].location.line == line_of(text, "R5: {kind: resistor")  # R5 || R7 stands at its first part
+    assert found[0].location.line == line_of(text, "tank: {inductor: L2")  # the list that makes R5 || R7
 
 
 def test_a_waiver_can_name_the_signal_it_covers():
     text = edited(bench(), "R7: {kind: resistor, value: 6.8 kohm", "R7: {kind: resistor, value: 68 kohm")
     text = edited(
         text,
-        "R5: {kind: resistor, value: 47 kohm, ends: [U1.quad, TANK_RET]}",
-        "R5: {kind: resistor, value: 47 kohm, ends: [U1.quad, TANK_RET]}  "
+        "tank: {inductor: L2, capacitor: C9, damping: [R5, R7]}",
+        "tank: {inductor: L2, capacitor: C9, damping: [R5, R7]}  "
         "# waive freqplan.tank-range for repeater voice because testing",
     )
     result = check(text, "bench.yaml")
