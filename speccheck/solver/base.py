@@ -57,6 +57,7 @@ class Proposal:
     note: str = ""  # an assumption or a caution the builder must see
     chosen: Option | None = None
     held: str = ""  # why no option was taken
+    covered_by: str = ""  # the title of an earlier proposal whose change already cleared this finding
     clears: list = field(default_factory=list)  # the findings the chosen option clears
 
 

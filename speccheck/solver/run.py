@@ -145,7 +145,7 @@ def _choose(outcome: Outcome, doc: yamlnodes.Document, check) -> None:
     current = outcome.before
     for proposal in outcome.proposals:
         if proposal.finding.fingerprint not in _fingerprints(current):
-            proposal.held = "cleared already by a change above"
+            proposal.covered_by = next((p.title for p in outcome.proposals if proposal.finding in p.clears), "")
             continue
         reasons = []
         for option in proposal.options:

@@ -40,10 +40,10 @@ def _proposal_lines(p: Proposal) -> list[str]:
 def render(outcome: Outcome, show_diff: bool = True) -> str:
     name = _plain(str(outcome.path))
     if outcome.refused:
-        return f"{name}: nothing solved: {outcome.refused}\n"
+        return f"{name}: nothing solved: {_plain(outcome.refused)}\n"
     live = [f for f in outcome.before.findings if not f.waived]
     taken = outcome.taken
-    held = [p for p in outcome.proposals if p.chosen is None]
+    held = [p for p in outcome.proposals if p.chosen is None and not p.covered_by]
     out = (
         [
             f"{name}: SAFETY CAUTIONS for this build:",
@@ -115,6 +115,7 @@ def _proposal(p: Proposal) -> dict:
         "taken": _option(p.chosen) if p.chosen is not None else None,
         "options": [_option(o) for o in p.options],
         "held_back": p.held or None,
+        "cleared_by": p.covered_by or None,
         "clears": [_finding(f) for f in p.clears],
         "note": p.note or None,
         "source": p.source,
