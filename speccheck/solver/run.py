@@ -145,7 +145,8 @@ def _choose(outcome: Outcome, doc: yamlnodes.Document, check) -> None:
     current = outcome.before
     for proposal in outcome.proposals:
         if proposal.finding.fingerprint not in _fingerprints(current):
-            proposal.covered_by = next((p.title for p in outcome.proposals if proposal.finding in p.clears), "")
+            by = [p.title for p in outcome.proposals if proposal.finding in p.clears]
+            proposal.covered_by = by[0] if by else "a change above"
             continue
         reasons = []
         for option in proposal.options:
