@@ -70,11 +70,12 @@ def aheads(c: Conversion) -> list[tuple[str, float, float]]:
     return [("", c.ahead[0], c.ahead[1])] if c.ahead else []
 
 
+_PATH_STYLES = [(GREEN, "-"), (PURPLE, "--"), (BLUE, ":"), (ORANGE, "-.")]
 _AHEAD_HATCH = ["//", "\\\\", "..", "xx"]
 
 
 def _draw_aheads(ax, c: Conversion, legend: bool):
-    for i, (who, low, high) in enumerate(aheads(c)):
+    for i, (who, low, high) in enumerate(sorted(aheads(c), key=lambda a: a[1] - a[2])):  # widest first
         ax.axvspan(
             _mhz(low),
             _mhz(high),
@@ -183,13 +184,16 @@ def _plan_if(ax, c: Conversion):
     low, high = min(span) - widest * 0.6, max(span) + widest * 0.6
     pad = (high - low) * 0.08
     low, high = low - pad, high + pad
-    for p in c.paths:
+    # the widest path first, so that a narrower one drawn over it stays visible; each its own line style
+    for i, p in enumerate(sorted(c.paths, key=lambda p: p.low - p.high)):
+        colour, dashes = _PATH_STYLES[i % len(_PATH_STYLES)]
         ax.fill_between(
             [_khz(p.low), _khz(p.low), _khz(p.high), _khz(p.high)],
-            [0, 0.8, 0.8, 0],
+            [0, 0.8 - 0.04 * i, 0.8 - 0.04 * i, 0],
             step=None,
-            facecolor=tint(GREEN, 0.9),
-            edgecolor=GREEN,
+            facecolor=tint(colour, 0.9) if i == 0 else "none",
+            edgecolor=colour,
+            linestyle=dashes,
             linewidth=2,
             label=f"{p.name} passband",
         )
