@@ -10,7 +10,7 @@ from speccheck import engine
 from speccheck.config import Settings
 
 ROOT = Path(__file__).resolve().parent.parent
-if ROOT.name == "mutants":  # a mutation run's copy: check with its (mutated) rules/, not the installed ones
+if ROOT.name == "mutants" and (ROOT / "rules").is_dir():  # a copy of the tree: its own rules/
     from speccheck import registry
 
     registry.load_folder(ROOT / "rules")

@@ -6,7 +6,7 @@
 Copies the tree into .mutation/<area>/ with a [tool.mutmut] section scoped to that area (the
 modules to change and the tests that pin them), runs mutmut there (one change at a time: an
 operator, a constant, a comparison...), then prints the killed share and the survivors. The
-copy checks with its own (mutated) rules/ (tests/conftest.py sees the folder name `mutants`).
+copy holds rules/ where it installs, as speccheck/rules/.
 """
 
 from __future__ import annotations
@@ -20,8 +20,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parent.parent
 AREAS: dict[str, tuple[list[str], list[str]]] = {  # area -> (modules to mutate, tests that pin them)
     "formulas": (["speccheck/formulas/*"],
-                 ["tests/test_formulas_*.py", "tests/test_chain.py", "tests/test_solver.py",
-                  "tests/test_freqplan.py"]),
+                 ["tests/test_formulas_*.py", "tests/test_chain.py", "tests/test_solver.py"]),
     "power": (["rules/power/*"], ["tests/test_power.py"]),
     "freqplan": (["rules/freqplan/*"], ["tests/test_freqplan.py", "tests/test_chain.py"]),
     "rfpath": (["rules/rfpath.py"], ["tests/test_rfpath.py"]),
@@ -43,12 +42,17 @@ def prepare(area: str) -> Path:
     if work.exists():
         shutil.rmtree(work)
     work.mkdir(parents=True)
-    for name in ("speccheck", "rules", "tests", "examples"):
+    for name in ("speccheck", "tests", "examples"):
         shutil.copytree(ROOT / name, work / name, ignore=shutil.ignore_patterns("__pycache__"))
+    # rules/ goes where it is installed (speccheck/rules), so that the module names the tests
+    # import (speccheck.rules.power...) are the ones mutmut changes
+    skip = shutil.ignore_patterns("__pycache__")
+    shutil.copytree(ROOT / "rules", work / "speccheck" / "rules", ignore=skip)
+    mutate = [m.replace("rules/", "speccheck/rules/", 1) if m.startswith("rules/") else m for m in mutate]
     selected = sorted(str(p.relative_to(ROOT)) for pattern in tests for p in ROOT.glob(pattern))
     (work / "pyproject.toml").write_text(
         "[tool.mutmut]\n"
-        f"source_paths = {_toml_list(['speccheck/', 'rules/'])}\n"
+        f"source_paths = {_toml_list(['speccheck/'])}\n"
         f"only_mutate = {_toml_list(mutate)}\n"
         f"also_copy = {_toml_list(['examples/'])}\n"
         f"pytest_add_cli_args = {_toml_list(['-p', 'no:cacheprovider', '-q', '-x'])}\n"
