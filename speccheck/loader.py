@@ -210,6 +210,9 @@ def _terminals(part: model.Part, data: dict):
         part.ends = list(given.values())  # a two-terminal part written with named terminals
         if part.positive is None and "positive" in given:
             part.positive = given["positive"]
+    track = {k: v for k, v in given.items() if k != "wiper"}
+    if part.kind == "potentiometer" and "wiper" in given and len(track) == 2 and not part.ends:
+        part.ends, part.wiper = list(track.values()), part.wiper or given["wiper"]  # the track's two ends
     out = {}
     if len(part.ends) == 2:
         a, b = part.ends
@@ -230,8 +233,7 @@ def _terminals(part: model.Part, data: dict):
             out[f"{pole.name}.common"] = str(pole.common)
         for position, net in pole.throws.items():
             out[f"{pole.name}.{position}"] = net
-    out.update(given)
-    part.terminals = out
+    part.terminals = given or out  # the file's own names when it gave them, else names made here
 
 
 # ---- profiles --------------------------------------------------------------------------

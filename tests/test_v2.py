@@ -161,3 +161,14 @@ def test_works_into_that_overrides_the_device_is_said():
         "    topology: series-l-shunt-c\n    works_into: 1.5 kohm\n",
     )
     assert not [f for f in of(check(text, "bench.yaml"), "rfpath.input-match") if "replaces" in f.message]
+
+
+def test_a_pot_written_with_three_named_terminals_has_a_track_and_a_wiper():
+    text = edited(
+        bench(),
+        "RV2: {kind: potentiometer, value: 10 kohm, ends: [V6, GND], wiper: SQ_SET}",
+        "RV2: {kind: potentiometer, value: 10 kohm, terminals: {cw: V6, ccw: GND, wiper: SQ_SET}}",
+    )
+    build = loader.load_text(text, "bench.yaml").build
+    assert build.parts["RV2"].ends == ["V6", "GND"] and build.parts["RV2"].wiper == "SQ_SET"
+    assert build.nets.span("SQ_SET") == (0.0, 6.0)  # a wiper sits between its track's ends
