@@ -126,3 +126,16 @@ def test_report_renders_in_headless_chromium(browser_page, tmp_path, example, pi
     assert width == 1000 and height >= seen["height"] - 2 and height > 2500
     assert shot.stat().st_size > 100_000  # a page of text and pictures, not a blank
     assert seen["title"].startswith("Review: ")
+
+
+def test_without_chromium_the_test_skips_with_the_hint_and_fails_in_ci(monkeypatch):
+    import test_browser
+
+    monkeypatch.setattr(test_browser.shutil, "which", lambda name: None)
+    monkeypatch.setattr(test_browser.Path, "exists", lambda self: False)
+    monkeypatch.delenv("CI", raising=False)
+    with pytest.raises(pytest.skip.Exception, match="apt-get install chromium"):
+        test_browser._chromium()
+    monkeypatch.setenv("CI", "true")
+    with pytest.raises(pytest.fail.Exception, match="CI must run the browser test"):
+        test_browser._chromium()

@@ -87,7 +87,8 @@ def chain_blocks(chain: list, sheet: Sheet, worst: dict, key: str) -> Figure | N
         if kind == "if-filter":
             for p in paths(sheet):
                 lines.append(f"{p.name.replace(' path', '')} {hz(p.low)}–{hz(p.high)}")
-        blocks.append((label, lines[:3], worst.get(label)))
+        shown = label if label != kind else stage_words(kind)
+        blocks.append((shown, lines[:3], worst.get(label)))
     per_row = len(blocks) if len(blocks) <= 6 else (len(blocks) + 1) // 2
     rows = (len(blocks) + per_row - 1) // per_row
 
@@ -175,6 +176,11 @@ def chain_blocks(chain: list, sheet: Sheet, worst: dict, key: str) -> Figure | N
             part += f", with {'an error' if level == 'error' else 'a warning'}"
         said.append(part)
     return Figure(key, "The signal chain", svg, "The signal chain in order: " + "; then ".join(said) + ".")
+
+
+def stage_words(kind: str) -> str:
+    """A stage kind as a heading: 'if-filter' -> 'IF filter', 'audio-amp' -> 'audio amp'."""
+    return " ".join(w.upper() if w in ("if", "rf", "lo") else w for w in kind.split("-"))
 
 
 def _short(name: str) -> str:
