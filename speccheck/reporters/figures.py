@@ -87,8 +87,8 @@ def chain_blocks(chain: list, sheet: Sheet, worst: dict, key: str) -> Figure | N
         if kind == "if-filter":
             for p in paths(sheet):
                 lines.append(f"{p.name.replace(' path', '')} {hz(p.low)}–{hz(p.high)}")
-        shown = label if label != kind else stage_words(kind)
-        blocks.append((shown, lines[:3], worst.get(label)))
+        heading = label if label != kind else stage_words(kind)
+        blocks.append((heading, lines[:3], worst.get(label)))
     per_row = len(blocks) if len(blocks) <= 6 else (len(blocks) + 1) // 2
     rows = (len(blocks) + per_row - 1) // per_row
 
