@@ -826,3 +826,15 @@ def test_melting_i2t_share_at_its_edge(clean_text):
     below = found(f"{i2t / 0.3 * 0.999:.5f} A^2 s")
     assert [f.level for f in below] == ["warning"]
     assert "× 30% for repeated switch-on" in below[0].message
+
+
+def test_regulator_dissipation_and_junction_in_the_clean_plan(clean_text):
+    # U3: 12 V in, 6 V out (rail V6), its stated 10 mA load, 5 mA ground current (builtin
+    # regulator profile): (12 − 6)·0.010 + 12·0.005 = 0.12 W; at 65 °C/W and 40 °C: 47.8 °C.
+    result = check(clean_text)
+    assert sheet(result, "U3", "regulator dissipation") == pytest.approx(0.12)
+    assert sheet(result, "U3", "junction temperature at 40 °C ambient") == pytest.approx(40 + 0.12 * 65)
+    # the output voltage from the profile when the regulator names no output rail: the same figure
+    text = edited(clean_text, "rail: V12, output_rail: V6, load_current: 10 mA}",
+                  "rail: V12, load_current: 10 mA}")
+    assert sheet(check(text), "U3", "regulator dissipation") == pytest.approx(0.12)
