@@ -59,3 +59,13 @@ def test_butterworth_width_at_inverts_attenuation():
     assert s.attenuation(s.width_at(30.0) / 2) == pytest.approx(30.0)
     with pytest.raises(ValueError):
         shapes.from_stopband(20e3, 6.0, 10e3, 60.0)  # a stopband narrower than the passband
+
+
+def test_pulse_harmonic_db_at_another_duty_and_rejection():
+    # duty 1/4, n = 2: 0.7071 of the fundamental, −3.01 dB (not the square wave's missing even one)
+    expected = 20 * math.log10(1 / (2 * math.sin(math.pi / 4)))
+    assert harmonics.pulse_harmonic_db(2, 0.25) == pytest.approx(expected)
+    g = shapes.gaussian(10e3)  # 3 dB at ±5 kHz, 12 dB at ±10 kHz (a = 3·(2Δf/B)²)
+    assert shapes.rejection(g, 455e3, 460e3, 465e3) == pytest.approx(12.0 - 3.0)
+    assert shapes.from_stopband(20e3, 6.0, 40e3, 60.0, typical=True).typical is True
+    assert shapes.from_stopband(20e3, 6.0, 40e3, 60.0).what == ""
