@@ -288,7 +288,11 @@ def format_keys() -> set:
                 for item in node:
                     walk(item)
 
-        walk(build_schema())
+        for version in (1, 2):  # both build formats: format 2 adds keys (switches, terminals, ...)
+            try:
+                walk(build_schema(version))
+            except (KeyError, ValueError, OSError):
+                continue
     return _KEYS
 
 
