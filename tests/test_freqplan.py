@@ -654,13 +654,45 @@ def test_audio_low_pass_cuts_broadcast_audio():
     text = path.read_text("utf-8")
     found = of(engine.check_file(path), "freqplan.audio-corner")
     assert [f.level for f in found] == ["warning"]
-    # 1 / (2 pi 10 kohm 4.7 nF) = 3.386 kHz (plain arithmetic)
-    assert f"corner {1 / (2 * math.pi * 10e3 * 4.7e-9) / 1e3:.4g} kHz is below the 15 kHz" in found[0].message
+    # the 10 kohm volume track loads the output: R10 || RV1 = 5 kohm (Thevenin; Horowitz & Hill, The Art
+    # of Electronics, ch. 1), 1 / (2 pi 5 kohm 4.7 nF) = 6.773 kHz as wired, 3.386 kHz for the RC alone,
+    # 20 log10(2) = 6.0 dB of flat loss (plain arithmetic)
+    assert (
+        f"corner {1 / (2 * math.pi * 5e3 * 4.7e-9) / 1e3:.4g} kHz as wired "
+        f"({1 / (2 * math.pi * 10e3 * 4.7e-9) / 1e3:.4g} kHz for the RC alone; RV1 (10 kΩ through C12) loads "
+        "its output, 6.0 dB of flat loss) is below the 15 kHz"
+    ) in found[0].message
     assert found[0].location.line == line_of(text, "C11: {kind: capacitor")
 
 
 def test_clean_audio_corner_is_fine(clean_text):
     assert of(check(clean_text), "freqplan.audio-corner") == []
+
+
+def test_loaded_corner_on_the_sheet_and_the_rc_alone_beside_it(clean_text):
+    """The clean plan's low-pass: R10 10 kohm, C11 4.7 nF, RV1 10 kohm through C12 1 uF (213 x C11,
+    so a short at the corner). Thevenin (Horowitz & Hill, The Art of Electronics, ch. 1): source
+    5 kohm, corner 6.773 kHz as wired beside 3.386 kHz alone, loss 20 log10(2) = 6.02 dB. For
+    3 kHz voice a 6.8 kHz corner is 2.3 x the top: no finding at all."""
+    result = check(clean_text)
+    sheet = {e.value.name: e.value.value for e in result.sheet if e.owner == "audio-filter"}
+    assert sheet["low-pass corner"] == pytest.approx(1 / (2 * math.pi * 10e3 * 4.7e-9))
+    assert sheet["low-pass corner as wired"] == pytest.approx(1 / (2 * math.pi * 5e3 * 4.7e-9))
+    assert sheet["low-pass passband loss as wired"] == pytest.approx(20 * math.log10(2))
+    assert sheet["load on the low-pass output"] == "RV1 (10 kΩ through C12)"
+    assert of(result, "freqplan.audio-corner") == []
+
+
+def test_small_coupling_capacitor_leaves_the_rc_alone(clean_text):
+    """C12 of 100 nF is only 21 x C11 (under the 100 x that makes it a short at the corner, its own
+    corner with 10 kohm lies less than two decades below): the load is no plain resistance, so the
+    sheet names it and the corner stays the RC alone's 3.386 kHz."""
+    text = edited(clean_text, "C12: {kind: capacitor, value: 1 uF", "C12: {kind: capacitor, value: 100 nF")
+    result = check(text)
+    sheet = {e.value.name: e.value.value for e in result.sheet if e.owner == "audio-filter"}
+    assert "low-pass corner as wired" not in sheet
+    assert "not a plain resistance" in sheet["load on the low-pass output"]
+    assert "C12 too small" in sheet["load on the low-pass output"]
 
 
 def test_audio_corner_far_above_voice_is_a_note(clean_text):
@@ -737,11 +769,12 @@ def test_the_tank_picture_reads_the_widest_needed_range():
 
 
 def test_audio_corner_is_judged_for_every_signal(clean_text):
-    # a 1 kHz data signal beside the 3 kHz voice: the clean low-pass (R10 10 kohm, C11 4.7 nF: 3.39 kHz,
-    # 1 / (2 pi R C)) suits the voice and is 3.4 times the data signal's top: a note for that one only
+    # a 1 kHz data signal beside the 3 kHz voice: the clean low-pass (R10 10 kohm, C11 4.7 nF, loaded by
+    # the 10 kohm RV1: 1 / (2 pi (R10 || RV1) C) = 6.77 kHz, Thevenin) suits the voice and is 6.8 times
+    # the data signal's top: a note for that one only
     voice = "    service: voice\n    path: narrow\n"
     text = edited(clean_text, voice, voice + "  - {name: telemetry, modulation: fm, deviation: 2 kHz, "
                                              "audio_max: 1 kHz, service: data, path: narrow}\n")
     found = of(check(text), "freqplan.audio-corner")
     assert [(f.level, "telemetry" in f.message) for f in found] == [("note", True)]
-    assert f"{1 / (2 * math.pi * 10e3 * 4.7e-9) / 1e3:.1f} times the 1 kHz of telemetry" in found[0].message
+    assert f"{1 / (2 * math.pi * 5e3 * 4.7e-9) / 1e3:.1f} times the 1 kHz of telemetry" in found[0].message

@@ -490,3 +490,25 @@ def test_speaker_rating_steps():
     assert picks.rating_up(2.25, picks.SPEAKER_POWERS) == 3.0
     assert picks.rating_up(0.5, picks.SPEAKER_POWERS) == 0.5
     assert picks.rating_up(500.0, picks.SPEAKER_POWERS) is None
+
+
+def test_audio_corner_counts_the_volume_control_as_the_rule_does(tmp_path):
+    # R10 47 kohm with C11 8.2 nF: the RC alone would turn over at 413 Hz, but the rule and the
+    # solver take the corner as wired: RV1 (10 kohm through C12, which is over 100 x C11 and so
+    # a short at the corner) loads AF1, so tau = (R10 || RV1)·C11 (Thevenin; Horowitz & Hill, The
+    # Art of Electronics, ch. 1): 47k || 10k = 8246 ohm, corner 2.354 kHz, below 3 kHz voice.
+    # Target 1.2 x 3 kHz = 3.6 kHz, tau = 1/(2 pi 3600) = 44.21 us (hand arithmetic). Keeping C11:
+    # R || 10k = 5391 ohm, R = 1/(1/5391 - 1/10000) = 11.70 kohm; E12 12 kohm gives 12k || 10k =
+    # 5455 ohm, tau 44.73 us, +1.2 %. Keeping R10: C = 44.21 us / 8246 ohm = 5.36 nF; E12 5.6 nF
+    # gives 46.18 us, +4.4 %. (Without the load the pick would be R10 5.6 kohm, 45.9 us.)
+    text = _edited(
+        "vhf-monitor-455k.yaml",
+        ("R10: {kind: resistor, value: 10 kohm,", "R10: {kind: resistor, value: 47 kohm,"),
+        ("C11: {kind: capacitor, value: 4.7 nF,", "C11: {kind: capacitor, value: 8.2 nF,"),
+    )
+    outcome = _solve_text(tmp_path, text)
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "freqplan.audio-corner"]
+    assert proposal.chosen.summary == "R10 12 kΩ"
+    assert "as wired" in proposal.chosen.result and "+1.2 %" in proposal.chosen.result
+    other = [o for o in proposal.options if o.summary == "C11 5.6 nF"]
+    assert other and "+4.4 %" in other[0].result

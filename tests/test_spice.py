@@ -138,6 +138,8 @@ def test_clean_example_values_that_have_decks(tmp_path):
         ("discriminator", "discriminator", "loaded Q"),
         ("discriminator", "discriminator", "linear range (f0/Q)"),
         ("audio", "audio-filter", "low-pass corner"),
+        ("audio", "audio-filter", "low-pass corner as wired"),
+        ("audio", "audio-filter", "low-pass passband loss as wired"),
         ("audio", "audio-amp", "coupling C20 into SPK1 corner"),
         ("audio", "audio-amp", "output network R21 + C21 turnover"),
         ("fuse", "F1", "inrush peak"),
@@ -312,21 +314,24 @@ def test_hostile_text_cannot_reach_a_deck_line(tmp_path, clean_text):
         assert not (tmp_path / "PWNED").exists()
 
 
-def test_as_wired_copy_shows_the_load_of_the_volume_control(tmp_path):
-    """The design sheet's low-pass corner is the RC alone, 1/(2 pi R10 C11) = 3.386 kHz. As wired,
-    the 10 kohm volume track RV1 (through the 1 uF C12) loads AF1, so the source behind C11 is
-    R10 || RV1 = 5 kohm (Thevenin's theorem; circuit theory, e.g. Horowitz & Hill, The Art of
-    Electronics, ch. 1, from memory) and the corner moves to 1/(2 pi 5 kohm 4.7 nF) = 6.773 kHz,
-    with the divider's 6 dB of flat loss. C12 adds a little phase lead (its 16 Hz corner), so 1 %."""
+def test_as_wired_copy_confirms_the_loaded_corner_on_the_sheet(tmp_path):
+    """The RC alone has its corner at 1/(2 pi R10 C11) = 3.386 kHz. As wired, the 10 kohm volume
+    track RV1 (through the 1 uF C12) loads AF1, so the source behind C11 is R10 || RV1 = 5 kohm
+    (Thevenin's theorem; Horowitz & Hill, The Art of Electronics, 3rd ed., ch. 1) and the corner
+    is 1/(2 pi 5 kohm 4.7 nF) = 6.773 kHz, with the divider's 20 log10(2) = 6.02 dB of flat loss.
+    The sheet now states both, and ngspice on the as-wired copy (C12 and all) agrees within 0.5 %."""
     _ngspice()
     decks, files = export(CLEAN, tmp_path)
-    _deck, path = next((d, f) for d, f in zip(decks, files, strict=True) if d.label == "audio-filter")
+    deck, path = next((d, f) for d, f in zip(decks, files, strict=True) if d.label == "audio-filter")
     text = path.read_text()
     assert "C_C12_WIRED wired_af1 wired_vol_top 1e-06" in text and "R_RV1_WIRED wired_vol_top 0 10000" in text
-    measured = simulate(path)
+    sheet = {c.measure: c.value for c in deck.checks}
     thevenin = 1 / (2 * math.pi * (10e3 * 10e3 / 20e3) * 4.7e-9)
-    assert measured["corner_as_wired"] == pytest.approx(thevenin, rel=0.01)
-    assert measured["passband_as_wired_db"] == pytest.approx(20 * math.log10(0.5), abs=0.1)
+    assert sheet["corner_as_wired"] == pytest.approx(thevenin, rel=1e-4)
+    assert sheet["passband_loss_as_wired"] == pytest.approx(20 * math.log10(2), rel=1e-4)
+    measured = simulate(path)
+    assert measured["corner_as_wired"] == pytest.approx(thevenin, rel=TOLERANCE)
+    assert measured["passband_loss_as_wired"] == pytest.approx(20 * math.log10(2), rel=TOLERANCE)
     assert measured["corner"] == pytest.approx(1 / (2 * math.pi * 10e3 * 4.7e-9), rel=TOLERANCE)
 
 

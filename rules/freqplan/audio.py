@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from speccheck import units
+from speccheck import loads, units
 from speccheck.chain import khz, owner, part_value
 from speccheck.findings import Value
 from speccheck.formulas import audio
@@ -22,6 +22,39 @@ def _rc(build, stage):
     return r * c, build.part(stage.capacitor).at("value")
 
 
+def _as_wired(ctx, build, stage, tau: float, what: str) -> tuple:
+    """(time constant as wired, Load or None) of an RC stage given by its parts: a plain resistive
+    load R_L on its output makes the source behind C the Thevenin resistance R || R_L, so
+    tau = (R || R_L)·C, with the divider's flat loss. Publishes the as-wired figures beside the
+    RC alone's; a load that is not a plain resistance is named and the RC alone is kept."""
+    if stage.time_constant is not None or stage.corner is not None:
+        return tau, None  # given as a figure, not as parts: nothing to load
+    load = loads.resistive_load(build, stage)
+    if load is None:
+        return tau, None
+    who = owner(build, stage)
+    if isinstance(load, loads.NotPlain):
+        ctx.publish("audio", who, f"load on the {what} output",
+                    f"{', '.join(load.parts)}: not a plain resistance at the corner "
+                    f"({', '.join(load.reactive)} too small to count as a short), so the figures are "
+                    "the RC alone's (speccheck spice simulates it as wired)")
+        return tau, None
+    r = part_value(build, stage.resistor)
+    return audio.parallel(r, load.ohms) * (tau / r), load
+
+
+def _publish_load(ctx, build, stage, load, what: str) -> None:
+    who, r = owner(build, stage), part_value(build, stage.resistor)
+    ctx.publish("audio", who, f"load on the {what} output", _load_text(build, stage, load))
+    ctx.publish("audio", who, f"{what} passband loss as wired", audio.divider_loss_db(r, load.ohms), "dB")
+
+
+def _load_text(build, stage, load) -> str:
+    shorted = f" through {', '.join(load.shorted)}" if load.shorted else ""
+    rest = [n for n in load.parts if n not in load.shorted]
+    return f"{', '.join(rest)} ({units.fmt(load.ohms, 'Ω')}{shorted})"
+
+
 @rule("freqplan.de-emphasis",
       verify="""
       Feed tones at constant deviation and read the audio output: the level is 3 dB down at the
@@ -36,7 +69,9 @@ def _rc(build, stage):
       States per 47 CFR 73.317). speccheck takes 75 µs for ITU Region 2 (the Americas) and 50 µs
       for Regions 1 and 3 (that mapping is from memory; a few countries differ, so check your own). The
       corner of a first-order de-emphasis is f = 1 / (2 pi tau): 3183 Hz for 50 µs, 2122 Hz for
-      75 µs. The wrong one makes the audio dull or shrill; none at all leaves it harsh and hissy.
+      75 µs. When a plain resistance R_L loads the network's output, the time constant that
+      counts is (R || R_L) x C (Thevenin); that as-wired figure is the one checked. The
+      wrong one makes the audio dull or shrill; none at all leaves it harsh and hissy.
       """,
       fix="Make R x C of the de-emphasis network equal to the region's time constant (e.g. 5.1 kohm with 10 "
           "nF for 50 µs, 7.5 kohm with 10 nF for 75 µs).",
@@ -53,7 +88,12 @@ def de_emphasis(build, ctx):
         who = owner(build, stage)
         ctx.publish("audio", who, "de-emphasis time constant", tau, "s")
         ctx.publish("audio", who, "de-emphasis corner", audio.corner_from_tau(tau), "Hz")
-        measured.append((stage, tau, where))
+        wired, load = _as_wired(ctx, build, stage, tau, "de-emphasis")
+        if load is not None:
+            ctx.publish("audio", who, "de-emphasis time constant as wired", wired, "s")
+            ctx.publish("audio", who, "de-emphasis corner as wired", audio.corner_from_tau(wired), "Hz")
+            _publish_load(ctx, build, stage, load, "de-emphasis")
+        measured.append((stage, wired, where, load))
     broadcast = [s for s in build.signals if s.service == "broadcast" and s.modulation == "fm"]
     if not broadcast:
         return
@@ -74,10 +114,11 @@ def de_emphasis(build, ctx):
                    fix=f"Add a de-emphasis stage with R x C = {want * 1e6:g} µs after the detector.")
         return
     tol = setting(ctx, "tolerance")
-    for stage, tau, where in measured:
+    for stage, tau, where, load in measured:
         if abs(tau / want - 1) > tol:
+            wired = "" if load is None else f" as wired ({_load_text(build, stage, load)} loads its output)"
             ctx.report(
-                f"de-emphasis of {units.fmt(tau, 's')} (corner {khz(audio.corner_from_tau(tau))}) "
+                f"de-emphasis of {units.fmt(tau, 's')} (corner {khz(audio.corner_from_tau(tau))}){wired} "
                 f"does not match the {want * 1e6:g} µs of {region} (corner "
                 f"{khz(audio.corner_from_tau(want))}) for {sig.name}",
                 where,
@@ -98,13 +139,24 @@ def de_emphasis(build, ctx):
       The audio low-pass after the detector should pass the highest modulating frequency of the
       signals the build receives (about 3 kHz for voice, 15 kHz for broadcast FM) and cut what
       lies above: detector noise, which in FM rises with frequency, and leftovers of the IF. A
-      first-order RC has its corner at f = 1 / (2 pi R C). A corner below the highest audio
-      frequency (by more than the setting low_share, default 10 %) dulls the audio; one far above
-      it (more than high_factor times, default 3) lets the noise through.
+      first-order RC has its corner at f = 1 / (2 pi R C), but only into no load. The volume
+      control usually hangs on the filter's output through a coupling capacitor; then the source
+      behind C is R || R_L (Thevenin's theorem), the corner moves up to 1 / (2 pi (R || R_L) C)
+      and the passband drops by 20 log10((R + R_L) / R_L) dB: a 10 kohm track on a 10 kohm
+      resistor doubles the corner and costs 6 dB. A coupling capacitor in the load counts as a
+      short when it is at least 100 times the filter's capacitor (its reactance at the corner is
+      then under 1 % of R: its own corner lies two decades lower); a smaller one, or a coil,
+      leaves the load no plain resistance, and the RC alone is used. The verdict uses the corner
+      as wired. A corner below the highest audio frequency (by more than the setting low_share,
+      default 10 %) dulls the audio (a warning); one far above it (more than high_factor times,
+      default 3) lets the noise through (a note). The design sheet shows both corners, the RC
+      alone's and the one as wired, with the flat loss.
       """,
-    fix="Choose R x C = 1 / (2 pi f_c) with f_c a little above the highest audio frequency.",
-    source="first-order RC corner (scipy.signal.freqs cross-check in tests); common practice (3 kHz voice, "
-    "15 kHz broadcast)",
+    fix="Choose R x C = 1 / (2 pi f_c) with f_c a little above the highest audio frequency, counting "
+        "the load: R || R_L in place of R (or buffer the filter, or use a larger volume control).",
+    source="first-order RC corner (scipy.signal.freqs cross-check in tests); loaded corner and divider "
+    "loss: Thevenin's theorem (Horowitz & Hill, The Art of Electronics, ch. 1); common practice (3 kHz "
+    "voice, 15 kHz broadcast, two decades for a negligible coupling corner)",
     settings={"low_share": 0.1, "high_factor": 3.0},
 )
 def audio_corner(build, ctx):
@@ -113,21 +165,31 @@ def audio_corner(build, ctx):
         tau, where = _rc(build, stage)
         if tau is None:
             continue
-        fc = audio.corner_from_tau(tau)
-        ctx.publish("audio", owner(build, stage), "low-pass corner", fc, "Hz")
+        alone = audio.corner_from_tau(tau)
+        who = owner(build, stage)
+        ctx.publish("audio", who, "low-pass corner", alone, "Hz")
+        wired_tau, load = _as_wired(ctx, build, stage, tau, "low-pass")
+        fc = audio.corner_from_tau(wired_tau)
+        wired = ""
+        if load is not None:
+            ctx.publish("audio", who, "low-pass corner as wired", fc, "Hz")
+            _publish_load(ctx, build, stage, load, "low-pass")
+            r = part_value(build, stage.resistor)
+            wired = (f" as wired ({khz(alone)} for the RC alone; {_load_text(build, stage, load)} loads its "
+                     f"output, {audio.divider_loss_db(r, load.ohms):.1f} dB of flat loss)")
         if not tops:
             continue
         for sig, top in tops:
-            corner_one(ctx, stage, where, fc, sig, top)
+            corner_one(ctx, stage, where, fc, sig, top, wired)
 
 
-def corner_one(ctx, stage, where, fc: float, sig, top: float) -> None:
+def corner_one(ctx, stage, where, fc: float, sig, top: float, wired: str = "") -> None:
     """audio-corner for one signal (one configuration of the build): a corner below its highest
     audio cuts it; one far above lets the detector's noise through."""
     values = [Value("corner", fc, "Hz"), Value("highest audio", top, "Hz")]
     if fc < top * (1 - setting(ctx, "low_share")):
         ctx.report(
-            f"the audio low-pass corner {khz(fc)} is below the {khz(top)} of {sig.name}: its top "
+            f"the audio low-pass corner {khz(fc)}{wired} is below the {khz(top)} of {sig.name}: its top "
             f"octave is cut",
             where,
             values,
@@ -135,7 +197,7 @@ def corner_one(ctx, stage, where, fc: float, sig, top: float) -> None:
         )
     elif fc > top * setting(ctx, "high_factor"):
         ctx.report(
-            f"the audio low-pass corner {khz(fc)} is {fc / top:.1f} times the {khz(top)} "
+            f"the audio low-pass corner {khz(fc)}{wired} is {fc / top:.1f} times the {khz(top)} "
             f"of {sig.name}: detector noise above the audio passes",
             where,
             values,

@@ -1,7 +1,11 @@
 """Audio networks: first-order RC corners, a high-pass's loss, FM de-emphasis time constants.
 
 f_c = 1/(2 pi R C) = 1/(2 pi tau) (any circuits text; checked against scipy.signal.freqs in
-the tests). SI: ohm, F, s, Hz; dB.
+the tests). A resistive load R_L on the output of an RC low-pass makes the source behind C the
+Thevenin resistance R || R_L, so the corner moves to 1/(2 pi (R || R_L) C), and the passband
+falls by the divider's 20 log10((R + R_L)/R_L) dB (Thevenin's theorem; Horowitz & Hill, The Art
+of Electronics, 3rd ed., ch. 1). The resistance a network of resistors shows at one node is
+found by nodal analysis (any circuits text). SI: ohm, F, s, Hz; dB.
 """
 
 from __future__ import annotations
@@ -34,3 +38,58 @@ def rc_time_constant(corner: float) -> float:
 def high_pass_loss_db(f: float, corner: float) -> float:
     """Loss of a first-order high-pass at f: 10·log10(1 + (f_c/f)²) dB."""
     return 10 * math.log10(1 + (corner / f) ** 2)
+
+
+def parallel(r1: float, r2: float) -> float:
+    """R1 || R2 = R1·R2/(R1 + R2): two resistances side by side (Thevenin resistance of a divider)."""
+    return r1 * r2 / (r1 + r2)
+
+
+def parallel_partner(target: float, other: float) -> float | None:
+    """The resistance that in parallel with `other` gives `target`: 1/(1/target − 1/other);
+    None when `other` alone is already at or below the target."""
+    if other <= target:
+        return None
+    return 1.0 / (1.0 / target - 1.0 / other)
+
+
+def loaded_rc_corner(ohms: float, farads: float, load_ohms: float) -> float:
+    """Corner of an RC low-pass whose output feeds a resistive load R_L: the source behind C is
+    R || R_L (Thevenin), so f_c = 1/(2π·(R∥R_L)·C)."""
+    return rc_corner(parallel(ohms, load_ohms), farads)
+
+
+def divider_loss_db(ohms: float, load_ohms: float) -> float:
+    """Flat loss in the passband of a series R into a load R_L: 20·log10((R + R_L)/R_L) dB
+    (positive; 6.02 dB for R = R_L)."""
+    return 20 * math.log10((ohms + load_ohms) / load_ohms)
+
+
+def node_resistance(resistors: list[tuple[str, str, float]], node: str, grounds: set[str]) -> float | None:
+    """The resistance between `node` and the grounds of a network of resistors (a, b, ohms):
+    inject 1 A at `node` and solve the nodal equations G·v = i (Kirchhoff's current law;
+    any circuits text) by Gaussian elimination. None when no resistor path reaches a ground."""
+    nodes = sorted({n for a, b, _ in resistors for n in (a, b) if n not in grounds} | {node})
+    if node in grounds:
+        return 0.0
+    index = {n: i for i, n in enumerate(nodes)}
+    size = len(nodes)
+    g = [[0.0] * (size + 1) for _ in range(size)]
+    for a, b, ohms in resistors:
+        ia, ib = index.get(a), index.get(b)
+        for i, j in ((ia, ib), (ib, ia)):
+            if i is not None:
+                g[i][i] += 1.0 / ohms
+                if j is not None:
+                    g[i][j] -= 1.0 / ohms
+    g[index[node]][size] = 1.0
+    for col in range(size):
+        pivot = max(range(col, size), key=lambda r: abs(g[r][col]))
+        if abs(g[pivot][col]) < 1e-15:
+            return None  # a node with no path to ground: the network floats
+        g[col], g[pivot] = g[pivot], g[col]
+        for row in range(size):
+            if row != col and g[row][col]:
+                factor = g[row][col] / g[col][col]
+                g[row] = [x - factor * y for x, y in zip(g[row], g[col], strict=True)]
+    return g[index[node]][size] / g[index[node]][index[node]]

@@ -8,7 +8,7 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from speccheck import units
+from speccheck import loads, units
 from speccheck.chain import owner
 from speccheck.findings import Finding
 from speccheck.formulas import audio, matching, mixing, picks, resonators
@@ -264,18 +264,34 @@ def tank_range(s: Situation, f: Finding) -> Proposal | None:
 
 
 def _rc_options(s: Situation, stage, tau: float, what: str) -> list:
-    """Options for an RC stage with a wanted time constant: keep C and pick R, or keep R and pick C."""
+    """Options for an RC stage with a wanted time constant: keep C and pick R, or keep R and pick C.
+    The time constant is the one as wired, as the rule takes it: with a plain resistive load R_L on
+    the output, tau = (R || R_L)·C (Thevenin; formulas.audio)."""
     res, cap = s.build.part(stage.resistor), s.build.part(stage.capacitor)
     if res is None or cap is None or res.value is None or cap.value is None:
         return []
+    load = loads.resistive_load(s.build, stage)
+    r_load = load.ohms if isinstance(load, loads.Load) else None
+
+    def source(r: float) -> float:  # the resistance behind C
+        return audio.parallel(r, r_load) if r_load else r
+
     options = []
-    for keep, change, unit in ((cap, res, "Ω"), (res, cap, "F")):
-        ideal = picks.rc_partner(tau, keep.value.si)
+    for change, unit in ((res, "Ω"), (cap, "F")):
+        if change is res:
+            wanted: float | None = picks.rc_partner(tau, cap.value.si)
+            if r_load and wanted is not None:
+                wanted = audio.parallel_partner(wanted, r_load)
+            if wanted is None:
+                continue  # the load alone is already too low for this C: change C instead
+            ideal = wanted
+        else:
+            ideal = picks.rc_partner(tau, source(res.value.si))
         for value in sorted(
             picks.preferred_around(ideal, s.series_for(change.kind), 1),
             key=lambda v: abs(math.log(v / ideal)),
         ):
-            got = value * keep.value.si
+            got = source(value) * cap.value.si if change is res else source(res.value.si) * value
             options.append(
                 (
                     abs(got / tau - 1),
@@ -283,7 +299,8 @@ def _rc_options(s: Situation, stage, tau: float, what: str) -> list:
                         [value_change(change, value, unit)],
                         f"{change.name} {units.fmt(value, unit)}",
                         f"{what} {units.fmt(got, 's')} (corner "
-                        f"{units.fmt(audio.corner_from_tau(got), 'Hz')}) against {units.fmt(tau, 's')} "
+                        f"{units.fmt(audio.corner_from_tau(got), 'Hz')}"
+                        f"{' as wired' if r_load else ''}) against {units.fmt(tau, 's')} "
                         f"({pct(got / tau - 1)})",
                     ),
                 )
@@ -341,7 +358,10 @@ def audio_corner(s: Situation, f: Finding) -> Proposal | None:
         f,
         "audio low-pass R and C",
         _rc_options(s, stage, tau, "time constant"),
-        source=f"f = 1/(2 pi R C), corner 1.2 x the highest audio (common practice); IEC 60063 {s.series}",
+        source=(
+            f"f = 1/(2 pi (R || R_L) C) as wired (Thevenin), corner 1.2 x the highest audio (common "
+            f"practice); IEC 60063 {s.series}"
+        ),
     )
 
 

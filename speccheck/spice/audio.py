@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import math
 
+from speccheck.loads import PASSIVE, load_on
 from speccheck.spice.deck import (
-    EIGHTH_TURN,
     HALF_POWER_DB,
     Deck,
     Sheet,
@@ -53,50 +53,20 @@ def rc_lowpass(build, sheet: Sheet, stage) -> Deck | None:
     if stage.kind == "de-emphasis":
         deck.lines.append(".measure ac time_constant param='1/(6.28318530718*corner)'")
         sheet.check(deck, "time_constant", "audio", who, "de-emphasis time constant")
-    if shared and len(caps) == 1:
-        _as_wired(build, deck, names, res, cap, inp or "filter input", out, corner)
+    if shared:
+        what = "de-emphasis" if stage.kind == "de-emphasis" else "low-pass"
+        _as_wired(build, deck, names, res, cap, inp or "filter input", out, corner, sheet, who, what)
     return deck
 
 
-PASSIVE = {"resistor": "R", "potentiometer": "R", "speaker": "R", "capacitor": "C", "inductor": "L"}
-
-
-def load_on(build, net: str, skip: set) -> list:
-    """The passive parts that load `net`: every resistor, pot (its whole track), speaker,
-    capacitor or inductor reachable from it through nets that are neither a rail (AC ground)
-    nor a device pin (open: its input impedance is not known), less the parts that carry no
-    current (one end on a net nothing else reaches)."""
-    nets = build.nets
-    found: dict = {}
-    todo, seen = [net], {net}
-    while todo:
-        here = todo.pop()
-        for part in nets.parts_on(here):
-            other = part.other_end(here)
-            if part.name in skip or part.kind not in PASSIVE or part.value is None or other is None:
-                continue
-            found[part.name] = part
-            if other not in seen and other not in build.rails and "." not in other:
-                seen.add(other)
-                todo.append(other)
-    while True:  # drop parts that end on a net nothing else touches: no current flows in them
-        count: dict = {}
-        for part in found.values():
-            for end in part.ends:
-                count[end] = count.get(end, 0) + 1
-        dangling = [p for p in found.values()
-                    if any(count[e] == 1 and e != net and e not in build.rails for e in p.ends)]
-        if not dangling:
-            return list(found.values())
-        for p in dangling:
-            del found[p.name]
-
-
-def _as_wired(build, deck: Deck, names: Names, res, cap, inp: str, out: str, corner: float):
-    """A second copy of an RC stage with the parts that load its output, as the nets show them.
-    Its corner is where the output's phase has turned 45 degrees; the coupling capacitors of
-    the load add a little phase lead, so it is close to, not exactly, the -3 dB point."""
-    load = load_on(build, out, {res.name, cap.name})
+def _as_wired(build, deck: Deck, names: Names, res, cap, inp: str, out: str, corner: float, sheet: Sheet,
+              who: str, what: str):
+    """A second copy of an RC stage with the parts that load its output, as the nets show them
+    (coupling capacitors and all). Where the rule found the load a plain resistance, the sheet's
+    corner as wired (1/(2 pi (R || R_L) C)) and its flat loss are measured here: the loss a decade
+    below the RC's own corner, the corner where the response has fallen 3 dB below the sheet's
+    flat level."""
+    load = load_on(build, out, {res.name, cap.name, *(p.name for p in members(build, cap))})
     if not load:
         return
 
@@ -108,24 +78,32 @@ def _as_wired(build, deck: Deck, names: Names, res, cap, inp: str, out: str, cor
                    f"{drive} {node(inp)} 0 DC 0 AC 1",
                    f"{names.element('R', res.name + ' wired')} {node(inp)} {node(out)} "
                    f"{number(res.value.si)}",
-                   (f"{names.element('C', cap.name + ' wired')} {node(out)} {node(cap.other_end(out))} "
-                   f"{number(cap.value.si)}")]
+                   *(f"{names.element('C', c.name + ' wired')} {node(out)} 0 {number(c.value.si)}"
+                     for c in members(build, cap))]
     for part in load:
         deck.lines += [f"* {comment(described(part))}",
                        (f"{names.element(PASSIVE[part.kind], part.name + ' wired')} {node(part.ends[0])} "
                        f"{node(part.ends[1])} {number(part.value.si)}")]
-    deck.lines += [f".save v({node(out)})",
-                   f".measure ac passband_as_wired_db find vdb({node(out)}) at={number(corner / 10)}",
-                   f".measure ac at_corner_as_wired_db find vdb({node(out)}) at={number(corner)}"]
     listed = ", ".join(p.name for p in load)
-    if any(p.kind == "capacitor" and any(e in names.grounds for e in p.ends) for p in load):
-        # another capacitor to ground in the load makes a second pole: 45 degrees is no corner there
-        deck.notes.append(f"as wired, {listed} load the output; compare at_corner_as_wired_db with "
-                          "passband_as_wired_db (3 dB apart when the load leaves the corner where it was)")
+    deck.lines.append(f".save v({node(out)})")
+    wired = sheet.get("audio", who, f"{what} corner as wired")
+    loss = sheet.get("audio", who, f"{what} passband loss as wired")
+    if wired is not None and loss is not None:
+        # the flat level a decade below the RC's own corner: below the load's coupling corner the
+        # load falls away and the level rises again, so the response's maximum is not the passband
+        deck.lines += [f".measure ac passband_as_wired_db find vdb({node(out)}) at={number(corner / 10)}",
+                       ".measure ac passband_loss_as_wired param='-passband_as_wired_db'",
+                       (f".measure ac corner_as_wired when vdb({node(out)})={number(HALF_POWER_DB - loss)} "
+                        "fall=1")]
+        sheet.check(deck, "passband_loss_as_wired", "audio", who, f"{what} passband loss as wired")
+        sheet.check(deck, "corner_as_wired", "audio", who, f"{what} corner as wired")
+        deck.notes.append(f"as wired, {listed} load the output: the sheet's corner and flat loss as wired "
+                          "are measured on this copy")
         return
-    deck.lines.append(f".measure ac corner_as_wired when vp({node(out)})={number(-EIGHTH_TURN)} cross=1")
-    deck.notes.append(f"as wired, {listed} load the output: corner_as_wired shows where that moves the "
-                      "corner (not a design-sheet value)")
+    deck.lines += [f".measure ac passband_as_wired_db find vdb({node(out)}) at={number(corner / 10)}",
+                   f".measure ac at_corner_as_wired_db find vdb({node(out)}) at={number(corner)}"]
+    deck.notes.append(f"as wired, {listed} load the output, not as a plain resistance (see the design "
+                      "sheet); compare at_corner_as_wired_db with passband_as_wired_db")
 
 
 def audio_output(build, sheet: Sheet, stage) -> Deck | None:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
+from speccheck.loads import members  # noqa: F401  (re-exported: the deck builders read it from here)
 from speccheck.spice.text import comment, file_word
 
 HALF_POWER_DB = -10 * math.log10(2)  # -3.0103 dB: the -3 dB point of a first-order network
@@ -140,14 +141,6 @@ def stands_for(build, paths: list | None = None) -> str:
     names = [s.name for s in build.signals if paths is None or s.path in paths]
     who = ", ".join(names) if names else "no declared signal"
     return f"signals: {who}; switch positions: none (no selecting switch in this plan)"
-
-
-def members(build, part) -> list:
-    """The real parts behind a part: the several a format-2 list stands in for (damping
-    resistors in parallel, filter capacitors side by side), or the part itself."""
-    refs = getattr(part, "combined_from", None) or ()
-    found = [build.parts.get(r) for r in refs]
-    return [p for p in found if p is not None and p.value is not None] or [part]
 
 
 def described(part) -> str:
