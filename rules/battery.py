@@ -37,20 +37,39 @@ class Pack:
         return cells.loaded_voltage(self.end, self.current, self.resistance)
 
 
-def pack(build) -> Pack | None:
+def cell_count(build) -> int | None:
+    """The cells in series of a described battery: as stated, else the voltage over the nominal."""
     supply = build.supply
     bat = supply.battery if supply is not None and supply.kind == "battery" else None
     if bat is None or bat.chemistry not in cells.CHEMISTRY or supply.voltage is None:
         return None
+    return bat.cells or max(1, round(supply.voltage.si / cells.CHEMISTRY[bat.chemistry].nominal))
+
+
+def internal_resistance(build) -> tuple[float, bool] | None:
+    """(ohms, typical) of a described battery: its stated internal resistance, else the
+    chemistry's typical figure per cell times the cells in series (from memory)."""
+    count = cell_count(build)
+    if count is None:
+        return None
+    bat = build.supply.battery
+    if bat.internal_resistance is not None:
+        return bat.internal_resistance.si, False
+    return cells.pack(cells.CHEMISTRY[bat.chemistry].resistance, count), True
+
+
+def pack(build) -> Pack | None:
+    count = cell_count(build)
+    found = internal_resistance(build)
+    if count is None or found is None:
+        return None
+    supply = build.supply
+    bat = supply.battery
     chem = cells.CHEMISTRY[bat.chemistry]
-    count = bat.cells or max(1, round(supply.voltage.si / chem.nominal))
     b = budget(build)
     if b.input is None:
         return None
-    if bat.internal_resistance is not None:
-        r, typical = bat.internal_resistance.si, False
-    else:
-        r, typical = cells.pack(chem.resistance, count), True
+    r, typical = found
     end = bat.end_voltage.si if bat.end_voltage is not None else cells.pack(chem.end, count)
     return Pack(bat.chemistry, count, cells.pack(chem.fresh, count), cells.pack(chem.nominal, count), end, r,
                 typical, b.input, b.complete)

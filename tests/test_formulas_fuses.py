@@ -31,6 +31,31 @@ def test_current_limited_charge():
     assert bound == pytest.approx(0.1692)
 
 
+def _limited_charge_i2t(v: float, c: float, r: float, limit: float) -> float:
+    """The I²t of a current-limited RC charge, integrated numerically with scipy: the current is
+    min(I_limit, (V - v_c)/R); the capacitor voltage comes from solve_ivp, its square from quad."""
+    from scipy.integrate import solve_ivp
+
+    def current(vc: float) -> float:
+        return min(limit, max(0.0, (v - vc) / r))
+
+    stop = c * v / limit + 30 * r * c
+    run = solve_ivp(lambda t, y: [current(y[0]) / c], (0, stop), [0.0], dense_output=True, rtol=1e-10,
+                    atol=1e-12, max_step=r * c / 20)
+    knee = c * (v - limit * r) / limit  # where the limit lets go (the integrand has a kink there)
+    value, _ = integrate.quad(lambda t: current(run.sol(t)[0]) ** 2, 0, stop, points=[knee], limit=400)
+    return float(value)
+
+
+@pytest.mark.parametrize(("v", "c", "r", "limit"), [(18.0, 2200e-6, 0.5, 3.0), (12.0, 4700e-6, 0.1, 5.0)])
+def test_current_limited_charge_through_a_resistance_against_scipy(v, c, r, limit):
+    # 18 V, 2200 uF, 0.5 ohm, 3 A: I·C·V = 0.1188, less I²·R·C/2 = 0.00495, 0.11385 A²s (hand)
+    peak, i2t = fuses.limited_inrush(v, c, limit, r)
+    assert peak == limit
+    assert i2t == pytest.approx(_limited_charge_i2t(v, c, r, limit), rel=1e-4)
+    assert i2t < fuses.limited_inrush(v, c, limit)[1]  # below the bound of a charge all at the limit
+
+
 def test_gates_as_i2t():
     assert fuses.fuse_gate_i2t("time-lag", 1.0) == pytest.approx(10.0 ** 2 * 0.010)  # 1 A²s
     assert fuses.fuse_gate_i2t("quick-acting", 1.0) == pytest.approx(4.0 ** 2 * 0.003)  # 0.048 A²s

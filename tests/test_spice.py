@@ -3,7 +3,7 @@
 The simulator is the independent reference here: for every shipped example and starter each
 deck is run with ngspice (Debian package `ngspice`) in batch mode, and every `.measure` that
 stands for a design-sheet value must agree with the sheet within 0.5 %, or the difference has
-its reason stated below (REASONS). Without ngspice these tests skip with the install hint;
+its reason stated below (REASONS; empty now). Without ngspice these tests skip with the install hint;
 with the environment variable CI set they fail instead, so CI cannot pass without them.
 """
 
@@ -28,16 +28,10 @@ STARTERS = ROOT / "speccheck" / "starters"
 PLANS = sorted(EXAMPLES.glob("*.yaml")) + sorted(STARTERS.glob("*.yaml"))
 TOLERANCE = 0.005  # 0.5 %
 
-# Differences between the simulator and the sheet that are expected, with the reason.
-# (what the deck models, measure) -> (how the simulated value must stand to the sheet's, reason)
-REASONS = {
-    ("current-limited supply", "i2t"): (
-        "at-most-10%-below",
-        "a battery or bench supply that limits the inrush: the sheet gives I*C*V, the upper bound of a "
-        "current-limited charge (speccheck/formulas/fuses.py), while the simulated charge ends on an "
-        "exponential tail below the limit, so its I2t is a few per cent lower (power-hot-amplifier: 0.1139 "
-        "against 0.1188 A2s)"),
-}
+# Differences between the simulator and the sheet that are expected, with the reason:
+# (what the deck models, measure) -> (how the simulated value must stand to the sheet's, reason).
+# None at present: the loaded RC corner and the current-limited inrush are on the sheet as wired.
+REASONS: dict = {}
 
 
 def _models(deck) -> str:

@@ -7,6 +7,7 @@ from speccheck.findings import Value
 from speccheck.formulas.fuses import FUSE_GATES, awg_ampacity, fuse_gate_i2t, inrush, limited_inrush, rerate
 from speccheck.formulas.preferred import r10_up
 from speccheck.registry import rule
+from speccheck.rules.power.source import inrush_source, short_current
 from speccheck.units import fmt
 
 
@@ -222,7 +223,13 @@ def fuse_wire(build, ctx):
       (the supply's output resistance, its leads, connector, the fuse itself and the
       capacitor's ESR): i = (V/R)·e^(−t/RC), a peak of V/R that falls with time constant RC.
       The Joule integral the fuse sees is I²t = V²C/(2R): 12 V into 4700 µF through 0.1 Ω is
-      a 120 A peak and 3.4 A²s. A quick-acting fuse of a small rating melts on far less. A
+      a 120 A peak and 3.4 A²s. R is the plan's own where it says it: supply.source_resistance;
+      a battery's internal resistance (stated, else from its short-circuit max_current as
+      V / I_sc, else the typical figure of its chemistry and cell count); plus a series resistor
+      and a resistor used as the fuse. A bench supply's current limit I caps the peak: the
+      charge runs at I, then ends as the RC tail, I²t = I·C·V − I²·R·C/2. Only where the plan
+      states nothing is R the setting loop_resistance (default 0.5 Ω), and the finding says it
+      is assumed. A quick-acting fuse of a small rating melts on far less. A
       fuse is checked against its datasheet melting I²t (less a share for the thousands of
       switch-ons over its life) when the plan states it, else against the least I²t a
       fuse-link of its speed withstands under IEC 60127-2: a time-lag link must not open
@@ -234,8 +241,9 @@ def fuse_wire(build, ctx):
           "fuse's melting_i2t from its datasheet.",
       # the inrush figures are computed for every bulk capacitor on the supply's rail, fuse or not
       # (the design sheet shows them); only a fuse is judged against them
-      source="inrush of an RC charge: circuit theory (cross-checked with scipy in the tests); fuse gates: "
-             "IEC 60127-2 (from memory); loop resistance and pulse share: from memory",
+      source="inrush of an RC charge and of a current-limited charge: circuit theory (cross-checked with "
+             "scipy in the tests); fuse gates: IEC 60127-2 (from memory); assumed loop resistance, typical "
+             "battery resistance and pulse share: from memory",
       settings={"loop_resistance": 0.5, "pulse_share": 0.3})
 def fuse_inrush(build, ctx):
     supply = build.supply
@@ -247,35 +255,27 @@ def fuse_inrush(build, ctx):
     if farads <= 0:
         return
     volts = abs(supply.voltage.si)
-    series = None
-    for ref in (supply.series_resistor, supply.fuse):  # a series resistor, or a resistor used as the fuse
-        part = build.part(ref) if ref else None
+    series = []  # a series resistor and a resistor used as the fuse: both carry the inrush
+    for ref in dict.fromkeys(r for r in (supply.series_resistor, supply.fuse) if r):
+        part = build.part(ref)
         if part is not None and part.kind == "resistor" and part.value is not None:
-            series = part
-            break
-    r_series = series.value.si if series is not None else 0.0
-    if supply.source_resistance is not None:
-        r_source, source_text = (
-            supply.source_resistance.si,
-            f"supply.source_resistance {supply.source_resistance.text}",
-        )
-    else:
-        r_source = ctx.setting("loop_resistance")
-        source_text = f"an assumed {fmt(r_source, 'Ω')} of supply, leads, fuse and ESR"
-    ohms = r_series + r_source
+            series.append(part)
+    r_series = sum(p.value.si for p in series)
+    source = inrush_source(build, volts, ctx.setting("loop_resistance"))
+    ohms = r_series + source.ohms
     if ohms <= 0 or volts <= 0:
         return
     peak, tau, i2t = inrush(volts, farads, ohms)
-    if (
-        supply.kind in ("battery", "bench")
-        and supply.max_current is not None
-        and supply.max_current.si < peak
-    ):
-        peak, bound = limited_inrush(volts, farads, supply.max_current.si)
-        i2t = min(i2t, bound)
+    limited = source.limit is not None and source.limit < peak
+    if limited:
+        peak, i2t = limited_inrush(volts, farads, source.limit, ohms)
+    source_text = source.how + "".join(f" plus {p.name}" for p in series)
     owner = fuse.name if fuse is not None else "supply input"
     ctx.publish("fuse", owner, "bulk capacitance behind it", farads, "F")
     ctx.publish("fuse", owner, "inrush loop resistance", ohms, "Ω")
+    ctx.publish("fuse", owner, "inrush source", source_text)
+    if limited:
+        ctx.publish("fuse", owner, "inrush current limit", source.limit, "A")
     ctx.publish("fuse", owner, "inrush peak", peak, "A")
     ctx.publish("fuse", owner, "inrush time constant RC", tau, "s")
     ctx.publish("fuse", owner, "inrush I²t", i2t, "A²s")
@@ -314,8 +314,8 @@ def fuse_inrush(build, ctx):
     ]
     head = (
         f"switching {fmt(volts, 'V')} onto {names} ({fmt(farads, 'F')}) through {fmt(ohms, 'Ω')} "
-        f"({source_text}{f' plus {series.name}' if r_series else ''}) gives a {fmt(peak, 'A')} peak and "
-        f"{fmt(i2t, 'A²s')}, more than {basis}"
+        f"({source_text}) gives a {fmt(peak, 'A')} peak{' (the supply current limit)' if limited else ''} "
+        f"and {fmt(i2t, 'A²s')}, more than {basis}"
     )
     where = fuse.at("speed") if fuse.given("speed") else fuse.loc
     if fuse.speed == "quick-acting":
@@ -531,20 +531,3 @@ def resistor_fuse(build, ctx):
         ctx.report(f"{part.name} drops {fmt(drop, 'V')} at the build's {fmt(normal, 'A')}, "
                    f"{drop / volts:.0%} of the "
                    f"{supply.voltage.text} supply", part.at("value"), values, stage=stage)
-
-
-def short_current(supply, volts: float, ohms: float) -> tuple:
-    """(amperes, how) the plan's own supply pushes through `ohms` into a short: V/(R + R_source),
-    no more than a current-limited supply's max_current."""
-    if supply.source_resistance is not None:
-        r_src, how = supply.source_resistance.si, f"through the supply's {supply.source_resistance.text}"
-    elif supply.kind == "battery" and supply.max_current is not None:
-        r_src = volts / supply.max_current.si
-        how = f"the battery's {supply.max_current.text} short-circuit current sets its internal resistance"
-    else:
-        r_src, how = 0.0, "from a stiff supply"
-    amps = volts / (ohms + r_src)
-    limited = supply.kind in ("dc-adapter", "bench") and supply.max_current is not None
-    if limited and supply.max_current.si < amps:
-        amps, how = supply.max_current.si, f"limited to {supply.max_current.text} by the {supply.kind} supply"
-    return amps, how

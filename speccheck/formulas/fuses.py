@@ -32,11 +32,13 @@ def inrush(volts: float, farads: float, ohms: float) -> tuple[float, float, floa
     return volts / ohms, ohms * farads, volts ** 2 * farads / (2 * ohms)
 
 
-def limited_inrush(volts: float, farads: float, limit: float) -> tuple[float, float]:
-    """Switching V onto C from a source that limits its current to `limit`: (peak, I²t bound).
-    At constant current I the charge takes t = C·V/I, so I²t = I·C·V; the real charge ends on
-    an exponential tail below the limit, so that is an upper bound (derived from Q = C·V)."""
-    return limit, limit * farads * volts
+def limited_inrush(volts: float, farads: float, limit: float, ohms: float = 0.0) -> tuple[float, float]:
+    """Switching V onto C through R from a source that limits its current to I (I < V/R):
+    (peak I, I²t). The charge runs at I until the capacitor is at V − I·R (Q = C·V: for a time
+    C·(V − I·R)/I, so I·C·(V − I·R)), then falls as the RC charge from I (I²·R·C/2):
+    I²t = I·C·V − I²·R·C/2. With R = 0 it is I·C·V, the whole charge at the limit. Derived
+    from Q = C·V and the RC charge (any circuits text)."""
+    return limit, limit * farads * volts - limit ** 2 * ohms * farads / 2
 
 
 def fuse_gate_i2t(speed: str, rating: float) -> float:

@@ -32,13 +32,7 @@ def switch_on(build, sheet: Sheet) -> Deck | None:
     names = Names(ground)
     series = build.part(supply.series_resistor)
     r_series = series.value.si if series is not None and series.kind == "resistor" and series.value else 0.0
-    limit = None
-    if (
-        supply.kind in ("battery", "bench")
-        and supply.max_current is not None
-        and supply.max_current.si < volts / ohms
-    ):
-        limit = supply.max_current.si
+    limit = sheet.get("fuse", fuse.name, "inrush current limit")  # the rule's: a bench supply's limit
     src = names.net("supply emf")
     fuse_in = names.net(fuse.other_end(rail) or "fuse input")
     rail_node = names.net(rail)
@@ -111,6 +105,7 @@ def switch_on(build, sheet: Sheet) -> Deck | None:
         )
     deck.notes.append(
         "the supply as a DC step of its voltage behind the loop resistance, as the fuse rule takes it"
+        + (" (and its current limit)" if limit else "")
     )
     if supply.mains is not None or supply.kind == "mains-transformer":
         deck.notes.append(
