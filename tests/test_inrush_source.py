@@ -84,3 +84,19 @@ def test_assumed_loop_resistance_is_said_in_the_finding():
     (found,) = of(check(text), "power.fuse-inrush")
     said = "an assumed 500 mΩ of supply, leads, fuse and ESR: the plan states no source_resistance"
     assert said in found.message
+
+
+def test_resistor_as_fuse_on_a_battery_counts_its_internal_resistance():
+    # a 1 ohm resistor as the only fuse of the six-cell alkaline pack (1.5 ohm typical, from memory in
+    # formulas/battery.py): 9 / (1 + 1.5) = 3.6 A into a short at its far end, 3.6² x 1 = 12.96 W (hand),
+    # not the 81 W of a stiff 9 V; the inrush loop is the same 1.5 + 1 ohm: 9 / 2.5 = 3.6 A peak
+    text = edited(PORTABLE, "F1: {kind: fuse, current_rating: 500 mA, speed: time-lag,",
+                  "F1: {kind: resistor, value: 1 ohm, power_rating: 2 W, fusible: true,")
+    result = check(text)
+    short = next(e.value.value for e in result.sheet
+                 if e.owner == "F1" and e.value.name == "current into a short at its far end")
+    assert short == pytest.approx(9 / 2.5)
+    power = next(e.value.value for e in result.sheet
+                 if e.owner == "F1" and e.value.name == "power into a short at its far end")
+    assert power == pytest.approx(3.6 ** 2 * 1.0)
+    assert _sheet(result, "inrush peak") == pytest.approx(9 / 2.5)

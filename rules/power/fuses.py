@@ -465,7 +465,7 @@ def resistor_fuse(build, ctx):
                     "current", normal, "A"), Value("drop", drop, "V"), Value("dissipation", p_normal, "W")]
     p_short, how = None, ""
     if volts is not None:
-        i_short, how = short_current(supply, volts, ohms)
+        i_short, how = short_current(build, volts, ohms)
         p_short = i_short ** 2 * ohms
         ctx.publish("power", part.name, "current into a short at its far end", i_short, "A")
         ctx.publish("power", part.name, "power into a short at its far end", p_short, "W")

@@ -10,14 +10,15 @@ from speccheck.rules.battery import cell_count, internal_resistance
 from speccheck.units import fmt
 
 
-def short_current(supply, volts: float, ohms: float) -> tuple:
+def short_current(build, volts: float, ohms: float) -> tuple:
     """(amperes, how) the plan's own supply pushes through `ohms` into a short: V/(R + R_source),
     no more than a current-limited supply's max_current."""
+    supply = build.supply
+    battery = battery_resistance(build, volts) if supply.kind == "battery" else None
     if supply.source_resistance is not None:
         r_src, how = supply.source_resistance.si, f"through the supply's {supply.source_resistance.text}"
-    elif supply.kind == "battery" and supply.max_current is not None:
-        r_src = volts / supply.max_current.si
-        how = f"the battery's {supply.max_current.text} short-circuit current sets its internal resistance"
+    elif battery is not None:
+        r_src, how = battery[0], f"through {battery[1]}"
     else:
         r_src, how = 0.0, "from a stiff supply"
     amps = volts / (ohms + r_src)
@@ -25,6 +26,25 @@ def short_current(supply, volts: float, ohms: float) -> tuple:
     if limited and supply.max_current.si < amps:
         amps, how = supply.max_current.si, f"limited to {supply.max_current.text} by the {supply.kind} supply"
     return amps, how
+
+
+def battery_resistance(build, volts: float) -> tuple[float, str] | None:
+    """(ohms, how) of a battery supply's internal resistance from the plan: battery.internal_resistance,
+    else V / its short-circuit max_current, else its chemistry's typical figure per cell (from
+    memory); None when the plan says nothing of it."""
+    supply = build.supply
+    found = internal_resistance(build)
+    if found is not None and not found[1]:
+        return found[0], f"the battery's stated internal resistance {fmt(found[0], 'Ω')}"
+    short = supply.max_current
+    if short is not None and short.si > 0:
+        return volts / short.si, (f"the battery's {fmt(volts / short.si, 'Ω')} internal resistance from its "
+                                  f"{short.text} short-circuit current")
+    if found is not None:
+        return found[0], (f"the typical {fmt(found[0], 'Ω')} of {cell_count(build)} fresh "
+                          f"{supply.battery.chemistry} cells, from memory: state battery.internal_resistance "
+                          "for yours")
+    return None
 
 
 @dataclass(frozen=True)
@@ -48,20 +68,8 @@ def inrush_source(build, volts: float, assumed: float) -> Source:
     if supply.source_resistance is not None:
         stated = supply.source_resistance
         return Source(stated.si, f"supply.source_resistance {stated.text}", True, limit)
-    if supply.kind == "battery":
-        found = internal_resistance(build)
-        if found is not None and not found[1]:
-            stated_text = f"the battery's stated internal resistance {fmt(found[0], 'Ω')}"
-            return Source(found[0], stated_text, True, None)
-        short = supply.max_current
-        if short is not None and short.si > 0:
-            return Source(volts / short.si,
-                          f"the battery's {fmt(volts / short.si, 'Ω')} internal resistance from its "
-                          f"{short.text} short-circuit current", True, None)
-        if found is not None:
-            bat = supply.battery
-            return Source(found[0], f"the typical {fmt(found[0], 'Ω')} of {cell_count(build)} fresh "
-                          f"{bat.chemistry} cells, from memory: state battery.internal_resistance for yours",
-                          True, None)
+    battery = battery_resistance(build, volts) if supply.kind == "battery" else None
+    if battery is not None:
+        return Source(battery[0], battery[1], True, None)
     return Source(assumed, f"an assumed {fmt(assumed, 'Ω')} of supply, leads, fuse and ESR: the plan "
                   "states no source_resistance", False, limit)
