@@ -21,8 +21,9 @@ ROOT = Path(__file__).resolve().parent.parent
 AREAS: dict[str, tuple[list[str], list[str]]] = {  # area -> (modules to mutate, tests that pin them)
     "formulas": (["speccheck/formulas/*"],
                  ["tests/test_formulas_*.py", "tests/test_chain.py", "tests/test_solver.py"]),
-    "power": (["rules/power/*"], ["tests/test_power.py"]),
-    "freqplan": (["rules/freqplan/*"], ["tests/test_freqplan.py", "tests/test_chain.py"]),
+    "power": (["rules/power/*"], ["tests/test_power.py", "tests/test_inrush_source.py"]),
+    "freqplan": (["rules/freqplan/*", "speccheck/loads.py"],
+                 ["tests/test_freqplan.py", "tests/test_chain.py"]),
     "rfpath": (["rules/rfpath.py"], ["tests/test_rfpath.py"]),
     "audio": (["rules/audio.py"], ["tests/test_audio.py"]),
     "mains": (["rules/mains.py"], ["tests/test_mains.py"]),
