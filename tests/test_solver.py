@@ -512,3 +512,115 @@ def test_audio_corner_counts_the_volume_control_as_the_rule_does(tmp_path):
     assert "as wired" in proposal.chosen.result and "+1.2 %" in proposal.chosen.result
     other = [o for o in proposal.options if o.summary == "C11 5.6 nF"]
     assert other and "+4.4 %" in other[0].result
+
+
+STARTER = ROOT / "speccheck" / "starters" / "single-conversion.yaml"
+
+
+def _starter_variant(tmp_path, *pairs: str):
+    text = STARTER.read_text("utf-8")
+    for old, new in zip(pairs[::2], pairs[1::2], strict=True):
+        assert old in text
+        text = text.replace(old, new)
+    plan = tmp_path / "variant.yaml"
+    plan.write_text(text, "utf-8")
+    return plan
+
+
+def _ends(text: str, part: str) -> str:
+    line = next(ln for ln in text.splitlines() if ln.strip().startswith(f"{part}:"))
+    return line.split("ends:")[1]
+
+
+def test_tank_returned_to_ground_through_its_resistor_gets_the_resistor_lifted(tmp_path):
+    # common practice (the rule's own fix): coil -> about 10 ohm -> supply rail, 100 nF from the
+    # junction to ground. With R6 to GND the fix lifts R6 to V6 and keeps C10; moving the coil
+    # itself would leave R6 and C10 doing nothing.
+    plan = _starter_variant(tmp_path, "ends: [TANK_RET, V6]}", "ends: [TANK_RET, GND]}")
+    outcome = solver.solve(plan)
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "wiring.tank-return"]
+    assert proposal.chosen.summary == "R6 ends: GND -> V6"
+    assert "C10 keeps TANK_RET bypassed" in proposal.chosen.result
+    assert _ends(outcome.new_text, "L2") == " [U1.quad, TANK_RET]}"
+    assert _ends(outcome.new_text, "R6") == " [TANK_RET, V6]}"
+    assert _ends(outcome.new_text, "C10") == " [TANK_RET, GND]}"
+    assert outcome.new_text == STARTER.read_text("utf-8")  # exactly the starter's own return
+
+
+def test_tank_feed_resistor_too_large_is_set_to_ten_ohm(tmp_path):
+    # a 4.7 kohm pull-down lifted to the rail would starve the pin: the fix sets it to 10 ohm
+    plan = _starter_variant(
+        tmp_path,
+        "R6: {kind: resistor, value: 10 ohm, ends: [TANK_RET, V6]}",
+        "R6: {kind: resistor, value: 4.7 kohm, ends: [TANK_RET, GND]}",
+    )
+    outcome = solver.solve(plan)
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "wiring.tank-return"]
+    assert proposal.chosen.summary == "R6 ends: GND -> V6; R6 10 Ω"
+    assert "R6: {kind: resistor, value: 10 ohm, ends: [TANK_RET, V6]}" in outcome.new_text
+
+
+def test_coil_alone_on_ground_joins_the_rest_of_the_tank(tmp_path):
+    # C9 and R5 return to TANK_RET, which R6 feeds from V6 and C10 bypasses: the coil goes there too
+    plan = _starter_variant(tmp_path, "q: 60, ends: [U1.quad, TANK_RET]}", "q: 60, ends: [U1.quad, GND]}")
+    outcome = solver.solve(plan)
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "wiring.tank-return"]
+    assert proposal.chosen.summary == "L2 ends: GND -> TANK_RET"
+    assert outcome.new_text == STARTER.read_text("utf-8")
+
+
+def test_whole_tank_on_ground_gets_a_decoupled_feed():
+    # beginner plan: L2, C9 and R5 all on GND; the fix adds the rule's 10 ohm feed and 100 nF bypass
+    outcome = solver.solve(EXAMPLES / "beginner-plan.yaml")
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "wiring.tank-return"]
+    summary = proposal.chosen.summary
+    assert summary.startswith("L2 ends: GND -> TANK_FEED; add R")
+    assert "10 Ω from TANK_FEED to V6" in summary and "100 nF from TANK_FEED to GND" in summary
+
+
+def test_small_package_too_hot_gets_a_lower_supply_or_a_16_ohm_speaker_not_a_heat_sink(tmp_path):
+    # The starter's 8-pin amplifier (θJC 37 °C/W, θJA 100 °C/W here, tj_max 150 °C less the rule's
+    # 25 °C margin: 125 °C; Iq 6 mA; supply 4-12 V) on 18 V into 8 ohm at 40 °C ambient.
+    # Single-ended class-B worst case P = V²/(2π²R_L) + V·Iq (Boylestad & Nashelsky, Example 12.8),
+    # T_j = T_a + P·θJA:
+    #   18 V: 324/157.91 + 0.108 = 2.160 W; the sink would need (125-40)/2.160 - 37 - 1 = 1.35 °C/W,
+    #         below the ~5 °C/W a clip-on reaches on a package without a tab (from memory): none offered
+    #   12 V:  144/157.91 + 0.072 = 0.984 W -> 138.4 °C, too hot;  9 V: 81/157.91 + 0.054 = 0.5669 W
+    #         -> 96.69 °C: the highest common adapter voltage (common practice) that holds it
+    #   16 ohm on 12 V (the profile's highest): 144/315.83 + 0.072 = 0.5279 W -> 92.79 °C
+    plan = _starter_variant(
+        tmp_path,
+        "voltage: 12 V\n", "voltage: 18 V\n",
+        "V12: {voltage: 12 V", "V12: {voltage: 18 V",
+        "theta_ja: 60 degC/W", "theta_ja: 100 degC/W",
+    )
+    outcome = solver.solve(plan)
+    (proposal,) = [p for p in outcome.proposals if p.finding.rule == "power.heat"]
+    assert not any("heat sink θSA" in o.summary for o in proposal.options)
+    assert "a heat sink of θSA 1.35" in proposal.note and "not one this package can take" in proposal.note
+    first, second = proposal.options
+    assert first.summary == "supply 9 V instead of 18 V, no heat sink"
+    assert float(first.result.split()[1]) == pytest.approx(96.69, abs=0.01)
+    assert second.summary == "SPK1 16 Ω speaker on 12 V, no heat sink"
+    assert float(second.result.split()[1]) == pytest.approx(92.79, abs=0.01)
+    assert proposal.chosen is first
+    assert "  voltage: 9 V\n" in outcome.new_text and "V12: {voltage: 9 V" in outcome.new_text
+    plan.write_text(outcome.new_text, "utf-8")
+    assert not [f for f in solver.solve(plan).before.findings if f.rule == "power.heat"]
+
+
+def test_tab_package_keeps_the_heat_sink_first():
+    # power-hot-amplifier: a tab package (θJC 3 °C/W) takes a bolt-on sink; the lower supply and the
+    # higher-impedance speaker follow as alternatives
+    outcome = solver.solve(EXAMPLES / "power-hot-amplifier.yaml")
+    (proposal,) = [p for p in outcome.proposals if p.finding.rule == "power.heat"]
+    assert proposal.chosen.summary.startswith("U2 heat sink θSA")
+    assert any(o.summary.startswith("supply ") for o in proposal.options[1:])
+
+
+def test_heat_sink_bounds_and_common_voltages():
+    # from memory: tab packages (θJC a few °C/W) take sinks to about 1 °C/W, small ones about 5 °C/W
+    assert picks.smallest_heat_sink(3.0) == 1.0
+    assert picks.smallest_heat_sink(37.0) == 5.0
+    assert picks.highest_below(18.0, picks.COMMON_SUPPLY_VOLTS, lambda v: v <= 10) == 9.0
+    assert picks.highest_below(5.0, picks.COMMON_SUPPLY_VOLTS, lambda v: True) is None

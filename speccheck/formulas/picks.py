@@ -8,6 +8,7 @@ formulas/preferred.py.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 from speccheck.formulas import preferred
 
@@ -68,6 +69,31 @@ def preferred_around(value: float, name: str, each_side: int = 2) -> list[float]
 
 # Power ratings loudspeakers are sold with (nominal, continuous): common practice.
 SPEAKER_POWERS = (0.1, 0.25, 0.5, 1.0, 2.0, 3.0, 5.0, 8.0, 10.0, 15.0, 20.0, 30.0, 50.0)
+
+
+# Output voltages of common DC adapters and fixed regulators: common practice.
+COMMON_SUPPLY_VOLTS = (5.0, 6.0, 9.0, 12.0, 15.0, 18.0, 24.0)
+
+# Nominal loudspeaker impedances: common practice (IEC 60268-5 states the rated impedance; these
+# are the values sold for small amplifiers).
+SPEAKER_IMPEDANCES = (4.0, 8.0, 16.0)
+
+# Heat sinks a builder can buy and fit (from memory): a package with a mounting tab has a θJC of a
+# few °C/W and takes a bolt-on extrusion down to about 1 °C/W; a small package without a tab (θJC
+# of tens of °C/W) takes at best a small clip-on sink, not much below 5 °C/W.
+TAB_THETA_JC = 5.0
+SMALLEST_THETA_SA_TAB = 1.0
+SMALLEST_THETA_SA_CLIP_ON = 5.0
+
+
+def smallest_heat_sink(theta_jc: float) -> float:
+    """The lowest sink-to-ambient resistance worth proposing for a package of this θJC (from memory)."""
+    return SMALLEST_THETA_SA_TAB if theta_jc <= TAB_THETA_JC else SMALLEST_THETA_SA_CLIP_ON
+
+
+def highest_below(value: float, table: tuple[float, ...], fits: Callable[[float], bool]) -> float | None:
+    """The highest entry of `table` below `value` for which fits(entry) holds."""
+    return next((v for v in sorted(table, reverse=True) if v < value and fits(v)), None)
 
 
 def rating_up(value: float, table: tuple[float, ...]) -> float | None:
