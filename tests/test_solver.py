@@ -624,3 +624,16 @@ def test_heat_sink_bounds_and_common_voltages():
     assert picks.smallest_heat_sink(37.0) == 5.0
     assert picks.highest_below(18.0, picks.COMMON_SUPPLY_VOLTS, lambda v: v <= 10) == 9.0
     assert picks.highest_below(5.0, picks.COMMON_SUPPLY_VOLTS, lambda v: True) is None
+
+
+def test_capacitor_on_an_adapter_rail_gets_a_rating_with_room(tmp_path):
+    # 12 V on a 10 V electrolytic: the rule's 80 % share alone would take 16 V (75 %); an adapter
+    # may be unregulated and sit above 12 V at light load, so the first pick keeps the working
+    # voltage within two thirds of the rating (common practice): 25 V (48 %), then 16 V
+    plan = _starter_variant(
+        tmp_path, "voltage_rating: 25 V, ends: [V12, GND]", "voltage_rating: 10 V, ends: [V12, GND]"
+    )
+    outcome = solver.solve(plan)
+    (proposal,) = [p for p in outcome.proposals if p.finding.rule == "wiring.cap-voltage"]
+    assert [o.summary for o in proposal.options] == ["C30 rated 25 V", "C30 rated 16 V"]
+    assert "unregulated" in proposal.note

@@ -8,8 +8,6 @@ import math
 from speccheck import units
 from speccheck.findings import Finding
 from speccheck.formulas import audio, picks
-from speccheck.formulas.amplifiers import class_b_dissipation
-from speccheck.formulas.thermal import junction_temperature
 from speccheck.solver.base import (
     Change,
     Option,
@@ -35,7 +33,14 @@ def cap_voltage(s: Situation, f: Finding) -> Proposal | None:
     share = allowed / rating
     options: list[Option] = []
     pick = picks.voltage_rating_up(working / share)
-    while pick is not None and len(options) < 2:
+    roomy = picks.voltage_rating_up(working / UNREGULATED_SHARE) if _on_unregulated_rail(s, part) else None
+    steps = []
+    if roomy is not None and pick is not None and roomy > pick:
+        steps.append(roomy)  # the rule's share alone leaves no room for the adapter's rise at light load
+    while pick is not None and len(steps) < 2:
+        steps.append(pick)
+        pick = picks.voltage_rating_up(pick * 1.001)
+    for pick in steps:
         options.append(
             Option(
                 [set_or_add(part, "voltage_rating", units.plan_text(pick, "V"))],
@@ -43,13 +48,29 @@ def cap_voltage(s: Situation, f: Finding) -> Proposal | None:
                 f"{working:.3g} V is {working / pick:.0%} of {units.fmt(pick, 'V')} (keep under {share:.0%})",
             )
         )
-        pick = picks.voltage_rating_up(pick * 1.001)
     return Proposal(
         f,
         f"{part.name} voltage rating",
         options,
+        note="an adapter or transformer supply may be unregulated and rise above its nominal voltage at "
+        "light load: the first rating leaves a third in hand (common practice)"
+        if len(steps) > 1 and steps[0] == roomy
+        else "",
         source="stocked capacitor voltage ratings (R5 of ISO 3, and common practice); derating: the rule's",
     )
+
+
+# An adapter or transformer supply without a regulator sits well above its nominal voltage at light
+# load; builders keep the working voltage within about two thirds of the rating there (common practice).
+UNREGULATED_SHARE = 2 / 3
+
+
+def _on_unregulated_rail(s: Situation, part) -> bool:
+    supply = s.build.supply
+    if supply is None or supply.kind not in ("dc-adapter", "mains-transformer"):
+        return False
+    rails = [s.build.rails.get(end) for end in part.ends]
+    return any(rail is not None and rail.source == "supply" and not rail.is_ground for rail in rails)
 
 
 def _polarity(s: Situation, f: Finding, positive: str | None, why: str) -> Proposal | None:
@@ -104,194 +125,6 @@ def speaker_coupling(s: Situation, f: Finding) -> Proposal | None:
     return _polarity(s, f, nets[0], f"+ toward the amplifier output {nets[0]}, - toward the speaker")
 
 
-def _swap_end(s: Situation, f: Finding, part, old: str, new: str, why: str, title: str) -> Proposal | None:
-    if old not in part.ends or new in part.ends:
-        return None
-    index = part.ends.index(old)
-    path = part.places["ends"] + (index,)
-    return Proposal(
-        f,
-        title,
-        [Option([Change(path, new)], f"{part.name} ends: {old} -> {new}", why)],
-        source="common practice (the fix the rule names)",
-    )
-
-
-DECOUPLING_MAX_OHMS = 100.0  # a series feed above this starves the pin's bias (common practice)
-DECOUPLING = (10.0, 100e-9)  # the rule's "about 10 ohm with a 100 nF bypass" (common practice)
-
-
-def _end_change(part, old: str, new: str) -> Change | None:
-    if old not in part.ends or new in part.ends:
-        return None
-    return Change(part.places["ends"] + (part.ends.index(old),), new)
-
-
-def _grounded(s: Situation, node: str, kind: str, besides) -> list:
-    """Parts of this kind from `node` to ground (not `besides`)."""
-    nets = s.build.nets
-    return [
-        p
-        for p in nets.parts_on(node)
-        if p is not besides and p.kind == kind and nets.is_ground(p.other_end(node) or "")
-    ]
-
-
-def _fed_from(s: Situation, node: str, rail: str) -> bool:
-    """The node is fed from `rail` through a resistor and bypassed to ground: the rule's return."""
-    nets = s.build.nets
-    fed = any(p.kind == "resistor" and p.other_end(node) == rail for p in nets.parts_on(node))
-    return fed and bool(_grounded(s, node, "capacitor", None))
-
-
-def _return_through_feed(s: Situation, coil, node: str, rail: str) -> Option | None:
-    """Coil (or crystal) -> node -> resistor to ground (and a bypass): lift the resistor's ground end
-    to the rail, so the node is fed from the supply and stays bypassed, as the rule describes."""
-    resistors = [p for p in _grounded(s, node, "resistor", coil) if len(p.ends) == 2]
-    if not resistors:
-        return None
-    feed, ground_end = resistors[0], resistors[0].other_end(node)
-    pin = coil.other_end(node)
-    moved = _end_change(feed, ground_end, rail) if ground_end else None
-    if moved is None:
-        return None
-    changes, words = [moved], [f"{feed.name} ends: {ground_end} -> {rail}"]
-    ohms = feed.value.si if feed.value is not None else None
-    if ohms is None or ohms > DECOUPLING_MAX_OHMS:
-        changes.append(value_change(feed, DECOUPLING[0], "Ω"))
-        words.append(f"{feed.name} {units.fmt(DECOUPLING[0], 'Ω')}")
-        ohms = DECOUPLING[0]
-    bypass = _grounded(s, node, "capacitor", coil)
-    if bypass:
-        kept = f"{bypass[0].name} keeps {node} bypassed to {ground_end}"
-    else:
-        name = s.new_name("C")
-        changes.append(_new_bypass(name, node, ground_end))
-        words.append(f"add {name} {units.fmt(DECOUPLING[1], 'F')} from {node} to {ground_end}")
-        kept = f"{name} bypasses {node} to {ground_end}"
-    return Option(
-        changes,
-        "; ".join(words),
-        f"{coil.name} returns {pin} to {rail} through {feed.name} ({units.fmt(ohms, 'Ω')}); {kept}",
-    )
-
-
-def _new_bypass(name: str, node: str, ground: str) -> Change:
-    value = {"kind": "capacitor", "value": units.plan_text(DECOUPLING[1], "F"), "dielectric": "ceramic"}
-    return Change(("parts",), {**value, "ends": [node, ground]}, key=name)
-
-
-def _tank_node(s: Situation, coil, pin: str) -> str | None:
-    """The node the rest of the tank (its capacitor, its damping) returns to, when that node is fed."""
-    nets = s.build.nets
-    others = [p for p in nets.parts_on(pin) if p is not coil and p.kind in ("capacitor", "resistor")]
-    for part in others:
-        node = part.other_end(pin)
-        if node and not nets.is_rail(node) and "." not in node:
-            return node
-    return None
-
-
-@remedy("wiring.tank-return")
-def tank_return(s: Situation, f: Finding) -> Proposal | None:
-    coil = s.part_for(f)
-    far = next((v.value for v in f.values if v.name == "coil far end"), None)
-    pin = next((v.value for v in f.values if v.name == "pin"), None)
-    dev = s.build.device(str(pin).split(".")[0]) if pin else None
-    if coil is None or not isinstance(far, str) or not isinstance(pin, str) or dev is None or not dev.rail:
-        return None
-    rail, nets, options = dev.rail, s.build.nets, []
-    if not nets.is_ground(far) and not nets.is_rail(far):
-        feed = _return_through_feed(s, coil, far, rail)
-        if feed is not None:
-            options.append(feed)
-    node = _tank_node(s, coil, pin)
-    if node and node != far and _fed_from(s, node, rail):
-        moved = _end_change(coil, far, node)
-        if moved is not None:
-            options.append(
-                Option(
-                    [moved],
-                    f"{coil.name} ends: {far} -> {node}",
-                    f"{coil.name} returns with the rest of the tank to {node}, fed from {rail} and "
-                    "bypassed to ground",
-                )
-            )
-    if nets.is_ground(far) and not options:
-        decoupled = _decoupled_return(s, coil, far, rail)
-        options += [decoupled] if decoupled is not None else []
-    direct = _end_change(coil, far, rail)
-    if direct is not None:
-        options.append(
-            Option(
-                [direct],
-                f"{coil.name} ends: {far} -> {rail}",
-                f"the coil returns {pin} to its supply {rail} directly (keep {rail} bypassed close by)",
-            )
-        )
-    return Proposal(
-        f,
-        f"{coil.name} return",
-        options,
-        source="common practice (the rule's fix: the supply rail through about 10 ohm with a 100 nF "
-        "bypass to ground)",
-    )
-
-
-def _decoupled_return(s: Situation, coil, ground: str, rail: str) -> Option | None:
-    """Coil straight to ground: a new node fed from the rail through 10 ohm, bypassed by 100 nF."""
-    moved_from = ground
-    node = s.new_net("TANK_FEED")
-    moved = _end_change(coil, moved_from, node)
-    if moved is None:
-        return None
-    r_name, c_name = s.new_name("R"), s.new_name("C")
-    feed = {"kind": "resistor", "value": units.plan_text(DECOUPLING[0], "Ω"), "ends": [node, rail]}
-    changes = [moved, Change(("parts",), feed, key=r_name), _new_bypass(c_name, node, ground)]
-    return Option(
-        changes,
-        f"{coil.name} ends: {ground} -> {node}; add {r_name} {units.fmt(DECOUPLING[0], 'Ω')} from {node} to "
-        f"{rail} and {c_name} {units.fmt(DECOUPLING[1], 'F')} from {node} to {ground}",
-        f"{coil.name} returns the pin to {rail} through {r_name}; {c_name} keeps the supply's noise out",
-    )
-
-
-@remedy("wiring.crystal-dc")
-def crystal_dc(s: Situation, f: Finding) -> Proposal | None:
-    part = s.part_for(f)
-    if part is None or len(part.ends) != 2:
-        return None
-    nets = s.build.nets
-    pots = [nets.dc(end) for end in part.ends]
-    if any(p is None for p in pots):
-        return None
-    pin_index = 0 if "." in part.ends[0] else 1
-    pin, other = part.ends[pin_index], part.ends[1 - pin_index]
-    dev = s.build.device(pin.split(".")[0])
-    if dev is None or not dev.rail or nets.dc(dev.rail) is None:
-        return None
-    if abs(nets.dc(dev.rail).volts - pots[pin_index].volts) > 1e-9:
-        return None  # the pin does not sit at its supply: returning there would not remove the DC
-    if not nets.is_ground(other) and not nets.is_rail(other):
-        feed = _return_through_feed(s, part, other, dev.rail)
-        if feed is not None:
-            return Proposal(
-                f,
-                f"{part.name} return",
-                [feed],
-                source="common practice (the rule's fix: the far end at the pin's potential, bypassed)",
-            )
-    return _swap_end(
-        s,
-        f,
-        part,
-        other,
-        dev.rail,
-        f"both ends at {pots[pin_index].volts:g} V; {dev.rail} must be bypassed to ground at the crystal",
-        f"{part.name} return",
-    )
-
-
 # ---- power ------------------------------------------------------------------------------------
 
 
@@ -333,182 +166,6 @@ def fuse_inrush(s: Situation, f: Finding) -> Proposal | None:
         ],
         source="IEC 60127-2 time-lag characteristic (the rule's comparison)",
     )
-
-
-@remedy("power.heat")
-def heat(s: Situation, f: Finding) -> Proposal | None:
-    """A heat sink where the package takes one that can be bought; else (and after it) a lower supply
-    or a higher-impedance speaker that keeps the junction within its limit without one."""
-    dev = s.device_for(f)
-    if dev is None or dev.profile is None:
-        return None
-    sinks = _heat_sink_options(s, f, dev)
-    cooler = _cooler_amplifier(s, f, dev)
-    notes = [] if sinks else _no_heat_sink_why(f, dev)
-    if any(o.summary.startswith("supply") or " on " in o.summary for o in cooler):
-        notes.append(
-            f"a lower supply feeds everything on {dev.rail} (the check after the change covers it); "
-            "rename the rail if its name states its voltage"
-        )
-    return Proposal(
-        f,
-        f"{dev.name} junction temperature",
-        sinks + cooler,
-        note="; ".join(notes),
-        source="θSA = (Tj,max - Ta)/P - θJC - θCS (the rule's figure), rounded down; heat sink bounds from "
-        "memory; class-B dissipation V²/(2π²R_L) + V·I_q and T_j = T_a + P·θ (Boylestad & Nashelsky "
-        "Example 12.8, the rule's formulas); supply voltages and speaker impedances: common practice",
-    )
-
-
-def _no_heat_sink_why(f: Finding, dev) -> list[str]:
-    need = number(f, "heat sink needed θSA")
-    jc = dev.profile.theta_jc.si if dev.profile.theta_jc is not None else None
-    if need is None or jc is None:
-        return []
-    if need <= 0:
-        return [f"no heat sink helps: θJC {units.fmt(jc, '°C/W')} alone takes the junction past its limit"]
-    floor = picks.smallest_heat_sink(jc)
-    return [
-        f"a heat sink of θSA {units.fmt(need, '°C/W')} is not one this package can take (θJC "
-        f"{units.fmt(jc, '°C/W')}: no tab; a small clip-on reaches about {units.fmt(floor, '°C/W')} at best, "
-        "from memory)"
-    ]
-
-
-def _heat_sink_options(s: Situation, f: Finding, dev) -> list[Option]:
-    need = number(f, "heat sink needed θSA")
-    jc = dev.profile.theta_jc.si if dev.profile.theta_jc is not None else None
-    if not need or need <= 0 or jc is None:
-        return []  # θJC alone (with the interface) already takes the junction past its limit
-    floor = picks.smallest_heat_sink(jc)
-    options = []
-    for pick in _heat_sink_steps(need):
-        if pick < floor:
-            continue
-        text = units.plan_text(pick, "°C/W")
-        if dev.heat_sink is not None and dev.heat_sink.theta_sa is not None:
-            change = Change(dev.heat_sink.places["theta_sa"], text)
-        elif dev.heat_sink is not None:
-            change = Change(dev.heat_sink.doc_path, text, key="theta_sa")
-        else:
-            change = Change(dev.doc_path, {"theta_sa": text}, key="heat_sink")
-        options.append(
-            Option(
-                [change],
-                f"{dev.name} heat sink θSA {units.fmt(pick, '°C/W')}",
-                f"θSA {units.fmt(need, '°C/W')} or less is needed; choose a heat sink rated at or "
-                f"below {units.fmt(pick, '°C/W')} as mounted",
-                figure=("heat", dev.name, "junction temperature at"),
-            )
-        )
-    return options
-
-
-def _heat_sink_steps(need: float) -> list[float]:
-    """Round numbers at or below the needed θSA (heat sinks have no preferred series): two figures."""
-    exponent = math.floor(math.log10(need)) - 1
-    first = math.floor(need / 10**exponent) * 10**exponent
-    return [float(f"{first:.2g}")] + ([float(f"{first * 0.8:.2g}")] if first * 0.8 > 0 else [])
-
-
-def _junction_limit(s: Situation, dev) -> float | None:
-    """tj_max less the rule's margin, as the rule published it on the design sheet."""
-    for entry in s.before.sheet:
-        named = entry.value.name.startswith("junction limit")
-        if entry.section == "heat" and entry.owner == dev.name and named:
-            value = entry.value.value
-            return float(value) if isinstance(value, (int, float)) else None
-    return None
-
-
-def _cooler_amplifier(s: Situation, f: Finding, dev) -> list[Option]:
-    """A lower common supply voltage, or the next speaker impedance up, that keeps the junction within
-    the rule's limit on the thermal path it has now (class-B dissipation, T_j = T_a + P·θ)."""
-    from dataclasses import replace
-
-    from speccheck.budget import AMPLIFIER, amp_point
-
-    found = number(f, "θ junction to ambient"), number(f, "ambient"), _junction_limit(s, dev)
-    point = amp_point(s.build, dev)[0] if dev.profile.cls == AMPLIFIER else None
-    if point is None or point.topology == "split-supply" or None in found:
-        return []
-    theta, ta, limit = (float(x or 0.0) for x in found)
-    iq = dev.profile.quiescent_current.si if dev.profile.quiescent_current is not None else 0.0
-    lowest = dev.profile.supply_min.si if dev.profile.supply_min is not None else 0.0
-    highest = dev.profile.supply_max.si if dev.profile.supply_max is not None else math.inf
-
-    def junction(volts: float, ohms: float) -> float:
-        power = class_b_dissipation(point.topology, volts, ohms)[0] + iq * volts
-        return junction_temperature(ta, power, theta)
-
-    def fits(ohms: float):
-        return lambda volts: lowest <= volts <= highest and junction(volts, ohms) <= limit
-
-    def output(volts: float, ohms: float) -> str:
-        watts = replace(point, v_supply=volts, r_load=ohms).full_output()["p_out"]
-        return f"full output {units.fmt(watts, 'W')}"
-
-    options = []
-    supply = _supply_changes(s, dev)
-    volts = picks.highest_below(point.v_supply, picks.COMMON_SUPPLY_VOLTS, fits(point.r_load))
-    if supply is not None and volts is not None:
-        options.append(
-            Option(
-                supply(volts),
-                f"supply {units.fmt(volts, 'V')} instead of {units.fmt(point.v_supply, 'V')}, no heat sink",
-                f"junction {units.fmt(junction(volts, point.r_load), '°C')} at {units.fmt(ta, '°C')} "
-                f"ambient (limit {units.fmt(limit, '°C')}); {output(volts, point.r_load)}",
-                figure=("heat", dev.name, "junction temperature at"),
-            )
-        )
-    speaker = s.build.part(point.stage.load) if point.stage is not None else None
-    ohms = next((z for z in picks.SPEAKER_IMPEDANCES if z > point.r_load * 1.01), None)
-    if speaker is None or speaker.kind != "speaker" or ohms is None:
-        return options
-    changes = [value_change(speaker, ohms, "Ω")]
-    volts = point.v_supply
-    if not fits(ohms)(volts):
-        lower = picks.highest_below(point.v_supply, picks.COMMON_SUPPLY_VOLTS, fits(ohms))
-        if supply is None or lower is None:
-            return options
-        volts = lower
-        changes += supply(volts)
-    on = f" on {units.fmt(volts, 'V')}" if volts != point.v_supply else ""
-    options.append(
-        Option(
-            changes,
-            f"{speaker.name} {units.fmt(ohms, 'Ω')} speaker{on}, no heat sink",
-            f"junction {units.fmt(junction(volts, ohms), '°C')} at {units.fmt(ta, '°C')} ambient (limit "
-            f"{units.fmt(limit, '°C')}); {output(volts, ohms)}",
-            figure=("heat", dev.name, "junction temperature at"),
-        )
-    )
-    return options
-
-
-def _supply_changes(s: Situation, dev):
-    """The edits that set the amplifier's rail to another voltage: an adapter-fed rail only (a
-    battery's voltage is its cells', a transformer's its windings', a regulator's its own)."""
-    supply, rail = s.build.supply, s.build.rails.get(dev.rail or "")
-    if (
-        supply is None
-        or rail is None
-        or rail.source != "supply"
-        or supply.rail != dev.rail
-        or supply.kind == "battery"
-        or supply.mains is not None
-        or supply.battery is not None
-        or "voltage" not in supply.places
-    ):
-        return None
-
-    def changes(volts: float) -> list[Change]:
-        text = units.plan_text(volts, "V")
-        found = [Change(supply.places["voltage"], text)]
-        return found + ([Change(rail.places["voltage"], text)] if "voltage" in rail.places else [])
-
-    return changes
 
 
 def _pins(dev, role: str) -> list[str]:

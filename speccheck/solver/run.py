@@ -27,7 +27,7 @@ from pathlib import Path
 from speccheck import engine, files, loader, textedit, yamlnodes
 from speccheck.config import Settings
 from speccheck.findings import RANK, Finding
-from speccheck.solver import base, circuit, tuning  # noqa: F401  (importing them registers the remedies)
+from speccheck.solver import base, circuit, heat, returns, tuning  # noqa: F401  (importing them registers the remedies)
 
 SERIES_NAMES = ("E12", "E24", "E96")
 
