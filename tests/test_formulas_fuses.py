@@ -75,3 +75,8 @@ def test_awg_rows():
     assert fuses.awg_ampacity(21) == (7.0, 22)  # an odd gauge takes the next thinner row
     assert fuses.awg_ampacity(None) is None
     assert fuses.awg_ampacity(60) is None
+
+
+def test_long_time_gate_is_one_and_a_half_times_the_rating():
+    # IEC 60127-2 standard sheets (from memory): a fuse-link carries 1.5 x I_n for at least one hour
+    assert fuses.FUSE_CARRY == 1.5

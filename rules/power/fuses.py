@@ -4,7 +4,15 @@ from __future__ import annotations
 
 from speccheck.budget import RESERVOIR_MIN, ambient, budget, bulk_capacitors, fused_rail, supply_fuse
 from speccheck.findings import Value
-from speccheck.formulas.fuses import FUSE_GATES, awg_ampacity, fuse_gate_i2t, inrush, limited_inrush, rerate
+from speccheck.formulas.fuses import (
+    FUSE_CARRY,
+    FUSE_GATES,
+    awg_ampacity,
+    fuse_gate_i2t,
+    inrush,
+    limited_inrush,
+    rerate,
+)
 from speccheck.formulas.preferred import r10_up
 from speccheck.registry import rule
 from speccheck.rules.power.source import inrush_source, short_current
@@ -58,9 +66,15 @@ def fuse_choice(build, ctx, normal: float) -> dict:
       preferred ratings series, R10 of IEC 60127-1 Annex A (1, 1.25, 1.6, 2, 2.5, 3.15, 4, 5,
       6.3, 8 × 10ⁿ A).
 
-      Smaller than that the fuse opens in normal use or after weeks of nuisance; much larger
-      and it does not protect: a fault that draws a few times the normal current (a shorted
-      capacitor, a stalled amplifier) leaves it intact while the wiring and the parts burn.
+      The normal current is the budget at full output held continuously (for an amplifier, a
+      full-power sine); speech and music average far less, so a fuse a little below it is a
+      thin margin, not a failure. A warning when the fuse runs above the derated share of its
+      (rerated) rating: it ages and may open after hours at full output. An error only past
+      1.5 times the rerated rating, the current IEC 60127-2 lets a link carry for an hour: no
+      standard promises that it survives, and a UL 248-14 fuse opens within the hour above
+      135 %. Much larger than the preferred rating and it does not protect: a fault that draws
+      a few times the normal current (a shorted capacitor, a stalled amplifier) leaves it
+      intact while the wiring and the parts burn.
       """,
       fix="Fit the preferred rating shown (the next R10 value above the derated current).",
       source="UL 248-14; IEC 60127-2; R10 series: IEC 60127-1 Annex A / ISO 3; 75 % continuous-use "
@@ -121,11 +135,16 @@ def fuse_size(build, ctx):
         Value("fitted", rating, "A"),
         Value("preferred", c["preferred"], "A"),
     ]
-    warm = f" (at {fmt(c['ambient'], '°C')} it carries {fmt(carry, 'A')})" if c["rerate"] < 1 else ""
-    if normal > carry:
+    fitted = part.current_rating.text
+    if c["rerate"] < 1:
+        fitted += f"; {fmt(carry, 'A')} at {fmt(c['ambient'], '°C')}"
+    assumed = f"the build's normal current of {fmt(normal, 'A')}, its budget at full output held continuously"
+    if normal > FUSE_CARRY * carry:
         ctx.report(
-            f"{part.name} ({part.current_rating.text}) is below the build's normal current of "
-            f"{fmt(normal, 'A')}{warm}: it will open in normal use; fit {fmt(c['preferred'], 'A')}",
+            f"{part.name} ({fitted}) is far below {assumed}: that is {normal / carry:.0%} of its "
+            f"{'rerated ' if c['rerate'] < 1 else ''}rating, past the {FUSE_CARRY:g} × rating a fuse-link "
+            f"carries for an hour under IEC 60127-2, so it opens in normal use; "
+            f"fit {fmt(c['preferred'], 'A')}",
             part.at("current_rating"),
             values,
             level="error",
@@ -133,9 +152,9 @@ def fuse_size(build, ctx):
         )
     elif rating < c["least"] * (1 - 1e-9):
         ctx.report(
-            f"{part.name} ({part.current_rating.text}) runs at {normal / carry:.0%} of its "
-            f"rating{' after rerating' if c['rerate'] < 1 else ''} in normal use (keep under "
-            f"{c['share']:.0%}): expect nuisance opening; fit {fmt(c['preferred'], 'A')}",
+            f"{part.name} ({fitted}) runs at {normal / carry:.0%} of its "
+            f"{'rerated ' if c['rerate'] < 1 else ''}rating (keep under {c['share']:.0%}) at {assumed}: "
+            f"it ages and may open after hours at full output; fit {fmt(c['preferred'], 'A')}",
             part.at("current_rating"),
             values,
             stage="power",
@@ -202,7 +221,7 @@ def fuse_wire(build, ctx):
         )
     if normal and normal > amps:
         ctx.report(
-            f"the build draws {fmt(normal, 'A')} at full output, more than the {fmt(amps, 'A')} the "
+            f"The build draws {fmt(normal, 'A')} at full output, more than the {fmt(amps, 'A')} the "
             f"{gauge} supply wiring carries",
             supply.at("wire_gauge"),
             [Value("input current budget", normal, "A"), Value("wire ampacity", amps, "A")],
@@ -313,7 +332,7 @@ def fuse_inrush(build, ctx):
         Value("fuse withstands", allowed, "A²s"),
     ]
     head = (
-        f"switching {fmt(volts, 'V')} onto {names} ({fmt(farads, 'F')}) through {fmt(ohms, 'Ω')} "
+        f"Switching {fmt(volts, 'V')} onto {names} ({fmt(farads, 'F')}) through {fmt(ohms, 'Ω')} "
         f"({source_text}) gives a {fmt(peak, 'A')} peak{' (the supply current limit)' if limited else ''} "
         f"and {fmt(i2t, 'A²s')}, more than {basis}"
     )
@@ -404,7 +423,7 @@ def fuse_missing(build, ctx):
         if supply.max_current is not None
         else ""
     )
-    ctx.report(f"the {supply.kind} supply{can} has no fuse{need}", supply.at("kind"), values, stage="power")
+    ctx.report(f"The {supply.kind} supply{can} has no fuse{need}", supply.at("kind"), values, stage="power")
 
 
 @rule(
@@ -502,7 +521,7 @@ def resistor_fuse(build, ctx):
                        stage=stage)
     elif as_fuse and p_short is not None and p_short < ctx.setting("fusing_factor") * rating:
         limited = how.startswith("limited")
-        ctx.report(f"fusible {part.name} takes only {fmt(p_short, 'W')} into a short ({how}), "
+        ctx.report(f"Fusible {part.name} takes only {fmt(p_short, 'W')} into a short ({how}), "
                    f"{p_short / rating:.3g} "
                    f"times its {rating_text} rating: it may sit hot instead of opening (check its fusing "
                    f"curve)"

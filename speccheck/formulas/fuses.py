@@ -18,6 +18,11 @@ AWG_CHASSIS_AMPS = {10: 55.0, 12: 41.0, 14: 32.0, 16: 22.0, 18: 16.0, 20: 11.0, 
 # has an upper limit). (multiple of I_n, least pre-arcing time in s)
 FUSE_GATES = {"time-lag": (10.0, 0.010), "quick-acting": (4.0, 0.003)}
 
+# IEC 60127-2, the long-time gate shared by its standard sheets (from memory): a fuse-link
+# carries 1.5 x I_n for at least an hour without opening (it opens at 2.1 x I_n within a
+# time that depends on the sheet). Above 1.5 x I_n no standard promises the link survives.
+FUSE_CARRY = 1.5
+
 
 def awg_ampacity(gauge: int) -> tuple[float, int] | None:
     """(amperes, gauge of the table row used); an odd gauge takes the next thinner even row."""
