@@ -637,3 +637,39 @@ def test_capacitor_on_an_adapter_rail_gets_a_rating_with_room(tmp_path):
     (proposal,) = [p for p in outcome.proposals if p.finding.rule == "wiring.cap-voltage"]
     assert [o.summary for o in proposal.options] == ["C30 rated 25 V", "C30 rated 16 V"]
     assert "unregulated" in proposal.note
+
+
+def test_no_heat_sink_helps_when_the_case_path_alone_is_too_hot(tmp_path):
+    # the starter's amplifier on 24 V into 8 ohm: P = 576/157.91 + 24·0.006 = 3.792 W; the junction
+    # may rise (125 - 40) = 85 °C, 22.4 °C/W at 3.792 W, less than θJC 37 + θCS 1: no sink can do it
+    # (θSA = (Tj - Ta)/P - θJC - θCS, handbook heat-sink selection). The supply falls to 9 V (96.69 °C,
+    # the same arithmetic as above), within the profile's 12 V maximum.
+    plan = _starter_variant(
+        tmp_path,
+        "voltage: 12 V\n", "voltage: 24 V\n",
+        "V12: {voltage: 12 V", "V12: {voltage: 24 V",
+        "theta_ja: 60 degC/W", "theta_ja: 100 degC/W",
+        "voltage_rating: 25 V, ends: [V12, GND]", "voltage_rating: 50 V, ends: [V12, GND]",
+    )
+    outcome = solver.solve(plan)
+    (proposal,) = [p for p in outcome.proposals if p.finding.rule == "power.heat"]
+    assert proposal.note.startswith("no heat sink helps")
+    assert proposal.options[0].summary == "supply 9 V instead of 24 V, no heat sink"
+
+
+def test_crystal_on_a_pin_off_its_rail_gets_a_blocking_capacitor(tmp_path):
+    # a pin biased at 2 V (not at its 6 V supply): returning the crystal to the rail would leave
+    # 4 V across it, so the fix is the rule's other one, about 1 nF in series (common practice)
+    plan = _starter_variant(
+        tmp_path,
+        "devices:\n",
+        "profiles:\n  osc-chip:\n    class: other\n    description: a test oscillator\n    pins:\n"
+        "      osc_in: {role: oscillator, dc: 2 V}\ndevices:\n  U4: {profile: osc-chip, rail: V6}\n",
+        "parts:\n",
+        "parts:\n  X2: {kind: crystal, frequency: 10 MHz, ends: [U4.osc_in, GND]}\n",
+    )
+    outcome = solver.solve(plan)
+    (proposal,) = [p for p in outcome.taken if p.finding.rule == "wiring.crystal-dc"]
+    assert proposal.chosen.summary.startswith("add C33 1 nF in series: X2 ends: GND -> X2_DC")
+    assert "X2: {kind: crystal, frequency: 10 MHz, ends: [U4.osc_in, X2_DC]}" in outcome.new_text
+    assert "C33: {kind: capacitor, value: 1 nF, dielectric: ceramic, ends: [X2_DC, GND]}" in outcome.new_text

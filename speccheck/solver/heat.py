@@ -45,7 +45,10 @@ def _no_heat_sink_why(f: Finding, dev) -> list[str]:
     if need is None or jc is None:
         return []
     if need <= 0:
-        return [f"no heat sink helps: θJC {units.fmt(jc, '°C/W')} alone takes the junction past its limit"]
+        return [
+            f"no heat sink helps: θJC {units.fmt(jc, '°C/W')} and the mounting interface already take the "
+            "junction past its limit"
+        ]
     floor = picks.smallest_heat_sink(jc)
     return [
         f"a heat sink of θSA {units.fmt(need, '°C/W')} is not one this package can take (θJC "

@@ -7,20 +7,6 @@ from speccheck import units
 from speccheck.findings import Finding
 from speccheck.solver.base import Change, Option, Proposal, Situation, remedy, value_change
 
-
-def _swap_end(s: Situation, f: Finding, part, old: str, new: str, why: str, title: str) -> Proposal | None:
-    if old not in part.ends or new in part.ends:
-        return None
-    index = part.ends.index(old)
-    path = part.places["ends"] + (index,)
-    return Proposal(
-        f,
-        title,
-        [Option([Change(path, new)], f"{part.name} ends: {old} -> {new}", why)],
-        source="common practice (the fix the rule names)",
-    )
-
-
 DECOUPLING_MAX_OHMS = 100.0  # a series feed above this starves the pin's bias (common practice)
 DECOUPLING = (10.0, 100e-9)  # the rule's "about 10 ohm with a 100 nF bypass" (common practice)
 
@@ -160,8 +146,14 @@ def _decoupled_return(s: Situation, coil, ground: str, rail: str) -> Option | No
     )
 
 
+BLOCKING = 1e-9  # the rule's "a series capacitor (about 1 nF)" (common practice)
+
+
 @remedy("wiring.crystal-dc")
 def crystal_dc(s: Situation, f: Finding) -> Proposal | None:
+    """The far end to the pin's own potential (its bypassed supply rail) where the pin sits there;
+    else a 1 nF blocking capacitor in series, the rule's other fix (new parts only where needed,
+    so that the names proposed further on stay without gaps)."""
     part = s.part_for(f)
     if part is None or len(part.ends) != 2:
         return None
@@ -172,25 +164,46 @@ def crystal_dc(s: Situation, f: Finding) -> Proposal | None:
     pin_index = 0 if "." in part.ends[0] else 1
     pin, other = part.ends[pin_index], part.ends[1 - pin_index]
     dev = s.build.device(pin.split(".")[0])
-    if dev is None or not dev.rail or nets.dc(dev.rail) is None:
-        return None
-    if abs(nets.dc(dev.rail).volts - pots[pin_index].volts) > 1e-9:
-        return None  # the pin does not sit at its supply: returning there would not remove the DC
-    if not nets.is_ground(other) and not nets.is_rail(other):
-        feed = _return_through_feed(s, part, other, dev.rail)
-        if feed is not None:
-            return Proposal(
-                f,
-                f"{part.name} return",
-                [feed],
-                source="common practice (the rule's fix: the far end at the pin's potential, bypassed)",
+    options = []
+    rail = dev.rail if dev is not None else None
+    rail_dc = nets.dc(rail) if rail else None
+    at_rail = rail_dc is not None and abs(rail_dc.volts - pots[pin_index].volts) < 1e-9
+    if rail and at_rail and not nets.is_ground(other) and not nets.is_rail(other):
+        feed = _return_through_feed(s, part, other, rail)
+        options += [feed] if feed is not None else []
+    moved = _end_change(part, other, rail) if rail and at_rail and not options else None
+    if moved is not None:
+        options.append(
+            Option(
+                [moved],
+                f"{part.name} ends: {other} -> {rail}",
+                f"both ends at {pots[pin_index].volts:g} V; {rail} must be bypassed to ground at the crystal",
             )
-    return _swap_end(
-        s,
+        )
+    blocked = _blocking_capacitor(s, part, other) if not options else None  # names only when used
+    options += [blocked] if blocked is not None else []
+    return Proposal(
         f,
-        part,
-        other,
-        dev.rail,
-        f"both ends at {pots[pin_index].volts:g} V; {dev.rail} must be bypassed to ground at the crystal",
         f"{part.name} return",
+        options,
+        source="common practice (the rule's fix: the far end at the pin's potential, or a series capacitor "
+        "of about 1 nF)",
+    )
+
+
+def _blocking_capacitor(s: Situation, crystal, far: str) -> Option | None:
+    """A 1 nF capacitor between the crystal's far end and the net it went to: no DC across the crystal,
+    and against a load of some 20 pF it is close to a short at the oscillator's frequency."""
+    node = s.new_net(f"{crystal.name}_DC")
+    moved = _end_change(crystal, far, node)
+    if moved is None:
+        return None
+    name = s.new_name("C")
+    value = {"kind": "capacitor", "value": units.plan_text(BLOCKING, "F"), "dielectric": "ceramic"}
+    return Option(
+        [moved, Change(("parts",), {**value, "ends": [node, far]}, key=name)],
+        f"add {name} {units.fmt(BLOCKING, 'F')} in series: {crystal.name} ends: {far} -> {node}, {name} from "
+        f"{node} to {far}",
+        f"{name} blocks the DC; {units.fmt(BLOCKING, 'F')} in series with the crystal's load changes it by "
+        "a few percent at most",
     )
