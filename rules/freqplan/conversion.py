@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from speccheck import responses
 from speccheck.chain import (
     FilterPoint,
     PathBand,
@@ -174,6 +175,9 @@ def filter_fit(build, ctx):
                 published.add(id(pb))
                 ctx.publish("if-filter", owner_name, "passband low edge", pb.low, "Hz")
                 ctx.publish("if-filter", owner_name, "passband high edge", pb.high, "Hz")
+                if pb.shape is not None:  # the curve the shares come from, for the pictures
+                    for name, value, unit in responses.shape_entries(pb.shape):
+                        ctx.publish("if-filter", owner_name, name, value, unit)
             fit_one(ctx, build, sig, need[0], point, pb, levels)
 
 
@@ -207,9 +211,6 @@ def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels
         )
         fixable = bn + 2 * point.unc <= pb.width
     else:
-        centre_level = share_level(on_centre, levels)
-        if centre_level == "error":
-            return  # too narrow even on centre: freqplan.path-width says so
         worst = min(
             passed(sig, pb.shape.attenuation, f - pb.center)
             for f in (point.f - point.unc, point.f + point.unc)
@@ -221,6 +222,9 @@ def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels
             round(worst * 100, 2),
             "%",
         )
+        centre_level = share_level(on_centre, levels)
+        if centre_level == "error":
+            return  # too narrow even on centre: freqplan.path-width says so
         level = share_level(worst, levels)
         rank = {None: 0, "note": 1, "warning": 2, "error": 3}
         if rank[level] < 2 or rank[level] <= rank[centre_level]:

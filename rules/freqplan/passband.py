@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from speccheck import responses
 from speccheck.chain import (
     Band,
     Conversion,
@@ -77,6 +78,9 @@ def image(build, ctx):
         if band is not None:  # the passband ahead of the mixer, for the frequency-plan picture
             ctx.publish("conversion", c.owner, "passband ahead low edge", band.low, "Hz")
             ctx.publish("conversion", c.owner, "passband ahead high edge", band.high, "Hz")
+            for k, (centre, shape) in enumerate(band.responses):  # the curves the rejection comes from
+                for name, value, unit in responses.shape_entries(shape, responses.ahead_prefix(k), centre):
+                    ctx.publish("conversion", c.owner, name, value, unit)
         if band is None:
             ctx.report(
                 f"{c.owner}: the image at {hz(img)} ({khz(abs(img - c.f_in))} from the wanted "
@@ -194,6 +198,10 @@ def path_width(build, ctx):
                 "%",
             )
         ctx.publish("signals", sig.name, "necessary bandwidth (ITU-R SM.1138)", bn, "Hz")
+        tone = worst_tone(sig)
+        if tone is not None:  # the tone every share is computed with, for the spectrum pictures
+            for name, value, unit in responses.tone_entries(*tone):
+                ctx.publish("signals", sig.name, name, value, unit)
         if designator:
             ctx.publish("signals", sig.name, "emission designator", designator)
         for point in plan.filters:

@@ -9,6 +9,10 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass, field
+from functools import partial
+
+from speccheck import responses
+from speccheck.formulas import shapes
 
 
 class Sheet:
@@ -35,6 +39,10 @@ class Sheet:
                     if getattr(e, "signal", "") == wanted:
                         return e
         return found[0] if found else None
+
+    def value(self, section: str, owner: str, name: str, signal: str | None = None):
+        e = self._find(section, owner, name, signal)
+        return e.value.value if e is not None else None
 
     def num(self, section: str, owner: str, name: str, signal: str | None = None) -> float | None:
         e = self._find(section, owner, name, signal)
@@ -79,6 +87,12 @@ class SignalBand:
     path: str | None = None  # the IF path that serves it, when the sheet says
     position: str = ""  # v2: the switch positions it is received in
     ahead: tuple | None = None  # v2: the passband ahead of the mixer in those positions
+    tone: tuple | None = None  # (peak deviation, tone) the rules test it with (FM only)
+    responses_ahead: list = field(default_factory=list)  # (centre, Shape) of each filter ahead of the mixer
+    image_rejection: float | None = None  # dB, by the passband ahead in its positions
+    share: float | None = None  # % of its power its path passes at the worst-case IF (as the rule found)
+    share_centre: float | None = None  # % on the path's centre
+    share_upstream: float | None = None  # % the upstream bandwidth passes
 
 
 @dataclass
@@ -86,8 +100,17 @@ class PathBand:
     name: str  # e.g. "narrow path"
     low: float
     high: float
-    # Room for a response shape (frequency, dB) when the rules publish one; a flat top until then.
-    shape: list = field(default_factory=list)
+    shape: shapes.Shape | None = None  # the response the rules judged it with, as published
+
+    @property
+    def centre(self) -> float:
+        return (self.low + self.high) / 2
+
+    def attenuation(self, f: float) -> float:
+        """dB at frequency f; a flat top (0 dB inside) where no shape was published."""
+        if self.shape is None:
+            return 0.0 if self.low <= f <= self.high else shapes.ULTIMATE_DB
+        return self.shape.attenuation(f - self.centre)
 
 
 @dataclass
@@ -103,6 +126,16 @@ class Conversion:
     spurs: list  # (name, frequency)
     paths: list  # PathBand after this conversion
     signals: list  # SignalBand
+    responses_ahead: list = field(default_factory=list)  # (centre, Shape), when one for all signals
+    image_rejection: float | None = None  # dB, when one for all signals
+
+    @property
+    def low_side(self) -> bool:
+        return self.lo < self.f_in
+
+    def input_of(self, f_if: float) -> float:
+        """The input frequency that lands on f_if (the wanted side of the LO)."""
+        return self.lo + f_if if self.low_side else self.lo - f_if
 
 
 def signals(sheet: Sheet) -> list[SignalBand]:
@@ -118,6 +151,29 @@ def signals(sheet: Sheet) -> list[SignalBand]:
             for sig in out:
                 if m and m.group(1) == sig.name and sig.path is None:
                     sig.path = path
+    for sig in out:
+        dev = sheet.num("signals", sig.name, responses.DEVIATION, sig.name)
+        tone = sheet.num("signals", sig.name, responses.TONE, sig.name)
+        sig.tone = (dev, tone) if dev is not None and tone else None
+        sig.share_upstream = sheet.num("source", "upstream", f"share of {sig.name} passed", sig.name)
+        if sig.path is not None:
+            sig.share = sheet.num(
+                "if-filter", sig.path, f"share of {sig.name} passed at the worst-case IF", sig.name
+            )
+            sig.share_centre = sheet.num("if-filter", sig.path, f"share of {sig.name} passed", sig.name)
+    return out
+
+
+def ahead_responses(sheet: Sheet, owner: str, signal: str | None) -> list:
+    """(centre, Shape) of each filter ahead of the mixer, as freqplan.image published them."""
+    out = []
+    for k in range(8):
+        prefix = responses.ahead_prefix(k)
+        centre = sheet.num("conversion", owner, f"{prefix}centre", signal)
+        shape = responses.shape_from(lambda n: sheet.value("conversion", owner, n, signal), prefix)
+        if centre is None or shape is None:
+            break
+        out.append((centre, shape))
     return out
 
 
@@ -127,7 +183,8 @@ def paths(sheet: Sheet) -> list[PathBand]:
         low = sheet.num("if-filter", owner, "passband low edge")
         high = sheet.num("if-filter", owner, "passband high edge")
         if low is not None and high is not None and high > low:
-            out.append(PathBand(owner, low, high))
+            shape = responses.shape_from(partial(sheet.value, "if-filter", owner), width=high - low)
+            out.append(PathBand(owner, low, high, shape))
     return out
 
 
@@ -156,6 +213,10 @@ def conversions(sheet: Sheet) -> list[Conversion]:
             s_low = sheet.num("conversion", owner, "passband ahead low edge", sig.name)
             s_high = sheet.num("conversion", owner, "passband ahead high edge", sig.name)
             sig.ahead = (s_low, s_high) if s_low is not None and s_high is not None else None
+            sig.responses_ahead = ahead_responses(sheet, owner, sig.name)
+            sig.image_rejection = sheet.num(
+                "conversion", owner, "image rejection ahead of the mixer", sig.name
+            )
         spurs = [
             (e.value.name, float(e.value.value))
             for e in sheet.of("spurs", owner)
@@ -175,6 +236,8 @@ def conversions(sheet: Sheet) -> list[Conversion]:
                 spurs,
                 near,
                 all_signals,
+                ahead_responses(sheet, owner, None),
+                sheet.num("conversion", owner, "image rejection ahead of the mixer"),
             )
         )
     return out

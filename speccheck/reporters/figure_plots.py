@@ -4,11 +4,11 @@ from __future__ import annotations
 
 from speccheck.formulas.resonators import tank_amplitude, tank_phase
 from speccheck.reporters.figure_data import Conversion, Tank
+from speccheck.reporters.figure_spectra import ahead_groups, if_panel, input_panel
 from speccheck.reporters.figure_svg import (
     BLACK,
     BLUE,
     GREEN,
-    GREY,
     ORANGE,
     PURPLE,
     SKY,
@@ -31,8 +31,8 @@ def frequency_plan(c: Conversion, key: str) -> Figure:
     def draw(fig):
         top, (left, right) = _plan_axes(fig)
         _plan_overview(top, c, marks)
-        _plan_input(right, c, marks)
-        _plan_if(left, c)
+        input_panel(right, c, marks)
+        if_panel(left, c)
 
     svg = svg_of(draw, key, (8.4, 5.6))
     return Figure(key, f"Frequency plan: {c.owner}", svg, _plan_alt(c))
@@ -130,107 +130,6 @@ def _plan_overview(ax, c: Conversion, marks):
         ax.legend(loc="upper center", fontsize=7.5, frameon=False)
 
 
-def _plan_input(ax, c: Conversion, marks):
-    near = [m for m in marks if m[0] != "IF"]
-    fs = [f for _, f, *_ in near] + [f for _, low, high in aheads(c) for f in (low, high)]
-    low, high = min(fs), max(fs)
-    pad = (high - low) * 0.08 or c.f_in * 0.01
-    low, high = low - pad, high + pad
-    _draw_aheads(ax, c, legend=False)
-    ordered = sorted(near, key=lambda m: m[1])
-    rows = _label_rows(ordered, (high - low) * 0.25)
-    for (name, f, colour, style), row in zip(ordered, rows, strict=True):
-        ax.axvline(_mhz(f), color=colour, linestyle=style, linewidth=1.8)
-        ax.annotate(
-            name,
-            (_mhz(f), 0.95 - 0.12 * row),
-            xycoords=("data", "axes fraction"),
-            xytext=(3, 0),
-            textcoords="offset points",
-            fontsize=8.5,
-            va="top",
-        )
-    shown = [(n, f) for n, f in c.spurs if low <= f <= high]
-    if shown:
-        ax.plot(
-            [_mhz(f) for _, f in shown],
-            [0.05] * len(shown),
-            linestyle="none",
-            marker="|",
-            markersize=12,
-            color=PURPLE,
-            transform=ax.get_xaxis_transform(),
-        )
-        ax.annotate(
-            f"{len(shown)} spur{'s' if len(shown) > 1 else ''} and birdie{'s' if len(shown) > 1 else ''}",
-            (0.02, 0.14),
-            xycoords="axes fraction",
-            fontsize=7.5,
-            color=BLACK,
-            bbox={"boxstyle": "round,pad=0.15", "facecolor": "white", "edgecolor": PURPLE},
-        )
-    ax.set_xlim(_mhz(low), _mhz(high))
-    ax.set_ylim(0, 1)
-    ax.set_yticks([])
-    ax.set_xlabel("frequency (MHz)")
-    ax.set_title("Around the input")
-
-
-def _plan_if(ax, c: Conversion):
-    span = [c.if_low, c.if_high]
-    for p in c.paths:
-        span += [p.low, p.high]
-    widest = max((s.width for s in c.signals), default=0.0)
-    low, high = min(span) - widest * 0.6, max(span) + widest * 0.6
-    pad = (high - low) * 0.08
-    low, high = low - pad, high + pad
-    # the widest path first, so that a narrower one drawn over it stays visible; each its own line style
-    for i, p in enumerate(sorted(c.paths, key=lambda p: p.low - p.high)):
-        colour, dashes = _PATH_STYLES[i % len(_PATH_STYLES)]
-        ax.fill_between(
-            [_khz(p.low), _khz(p.low), _khz(p.high), _khz(p.high)],
-            [0, 0.8 - 0.04 * i, 0.8 - 0.04 * i, 0],
-            step=None,
-            facecolor=tint(colour, 0.9) if i == 0 else "none",
-            edgecolor=colour,
-            linestyle=dashes,
-            linewidth=2,
-            label=f"{p.name} passband",
-        )
-    levels = [0.62, 0.42, 0.22, 0.12]
-    styles = [(BLUE, "///"), (VERMILION, "\\\\\\"), (PURPLE, "xx"), (ORANGE, "++")]
-    for i, sig in enumerate(c.signals):
-        colour, hatch = styles[i % len(styles)]
-        y = levels[i % len(levels)]
-        for j, centre in enumerate((c.if_low, c.if_high)):
-            ax.add_patch(
-                _rect(
-                    _khz(centre - sig.width / 2),
-                    y - 0.08 + 0.09 * j,
-                    _khz(sig.width),
-                    0.08,
-                    colour,
-                    hatch,
-                    sig.name + " at the worst-case IF" if j == 0 else None,
-                )
-            )
-    ax.axvline(_khz(c.f_if), color=GREEN, linestyle="-.", linewidth=1.2)
-    ax.set_xlim(_khz(low), _khz(high))
-    ax.set_ylim(0, 1)
-    ax.set_yticks([])
-    ax.set_xlabel("frequency (kHz)")
-    ax.set_title("At the IF: filter and signal")
-    ax.legend(loc="upper right", fontsize=7, frameon=False, ncol=1)
-
-
-def _rect(x, y, w, h, colour, hatch, label):
-    from matplotlib.patches import Rectangle
-
-    return Rectangle(
-        (x, y), w, h, facecolor=tint(colour), edgecolor=colour, hatch=hatch, linewidth=1, label=label
-    )
-
-
 def _plan_alt(c: Conversion) -> str:
     words = [
         (
@@ -246,8 +145,14 @@ def _plan_alt(c: Conversion) -> str:
         )
     for p in c.paths:
         words.append(f"the {p.name} from {hz(p.low)} to {hz(p.high)}")
-    for s in c.signals:
-        words.append(f"{s.name} {hz(s.width)} wide, drawn at the lowest and the highest worst-case IF")
+    for who, _, rejection in ahead_groups(c):
+        if rejection is not None:
+            words.append(
+                f"the image rejected by {rejection:.1f} dB ahead of the mixer{f' for {who}' if who else ''}"
+            )
+    for p in c.paths:
+        if p.shape is not None:
+            words.append(f"the {p.name} drawn as its modelled response in dB")
     if c.spurs:
         words.append(f"{len(c.spurs)} spurious responses and birdies marked near the input")
     return "; ".join(words) + "."
@@ -335,76 +240,6 @@ def tank_response(t: Tank, key: str) -> Figure:
     if t.tune_low is not None and t.tune_high is not None:
         alt += f"; the adjustable part tunes the resonance from {hz(t.tune_low)} to {hz(t.tune_high)}"
     return Figure(key, f"Detector tank: {t.owner}" + (f", {t.label}" if t.label else ""), svg, alt + ".")
-
-
-def paths_against_signals(c: Conversion, key: str) -> Figure | None:
-    """Each signal's band at the worst-case IF against every IF path; the path that serves it drawn bold."""
-    if not c.paths or not c.signals:
-        return None
-
-    def draw(fig):
-        axes = fig.subplots(len(c.signals), 1, squeeze=False)[:, 0]
-        for ax, sig in zip(axes, c.signals, strict=True):
-            span = [c.if_low - sig.width / 2, c.if_high + sig.width / 2]
-            for p in c.paths:
-                span += [p.low, p.high]
-            pad = (max(span) - min(span)) * 0.1
-            styles = ["-", "--", ":", "-."]
-            for i, p in enumerate(c.paths):
-                serving = sig.path is None or sig.path == p.name
-                ax.plot(
-                    _khz_list([p.low, p.low, p.high, p.high]),
-                    [0, 1, 1, 0],
-                    color=GREEN if serving else GREY,
-                    linestyle=styles[i % len(styles)],
-                    linewidth=2.2 if serving else 1.2,
-                    label=f"{p.name}" + (" (serves it)" if serving and sig.path else ""),
-                )
-            ax.add_patch(
-                _rect(
-                    _khz(c.if_low - sig.width / 2),
-                    0.15,
-                    _khz(sig.width),
-                    0.3,
-                    BLUE,
-                    "///",
-                    "signal at the lowest worst-case IF",
-                )
-            )
-            ax.add_patch(
-                _rect(
-                    _khz(c.if_high - sig.width / 2),
-                    0.5,
-                    _khz(sig.width),
-                    0.3,
-                    VERMILION,
-                    "\\\\\\",
-                    "signal at the highest worst-case IF",
-                )
-            )
-            ax.set_xlim(_khz(min(span) - pad), _khz(max(span) + pad))
-            ax.set_ylim(0, 1.25)
-            ax.set_yticks([])
-            ax.set_title(f"{sig.name}: {hz(sig.width)} wide", loc="left")
-            ax.legend(loc="upper right", fontsize=7, frameon=False, ncol=2)
-        axes[-1].set_xlabel("frequency (kHz)")
-
-    svg = svg_of(draw, key, (7.6, 1.9 + 1.6 * len(c.signals)))
-    words = []
-    for sig in c.signals:
-        served = [p for p in c.paths if sig.path is None or sig.path == p.name]
-        for p in served:
-            low, high = c.if_low - sig.width / 2, c.if_high + sig.width / 2
-            inside = p.low <= low and high <= p.high
-            words.append(
-                f"{sig.name} ({hz(sig.width)}) spans {hz(low)} to {hz(high)} at the worst-case IF, "
-                f"{'inside' if inside else 'outside'} the {p.name} ({hz(p.low)} to {hz(p.high)})"
-            )
-    return Figure(key, "IF paths against the signals", svg, "; ".join(words) + ".")
-
-
-def _khz_list(fs):
-    return [_khz(f) for f in fs]
 
 
 # Key values shown in each block of the chain picture, by stage kind: (section, name) in order of preference.

@@ -11,7 +11,8 @@ hatching, so the pictures read in grey and on paper too.
 
 Modules: figure_data.py reads the sheet (by section, owner and name, as the rules publish them;
 tests/test_html.py checks each picture appears for the examples, so a renamed entry shows up
-there); figure_plots.py draws the frequency plan, the IF paths and the tank; figure_svg.py holds
+there); figure_plots.py draws the frequency plan and the tank, figure_spectra.py the response curves
+(the shapes the rules published, speccheck/responses.py) and the signals' Bessel lines; figure_svg.py holds
 the palette and turns a matplotlib figure into inline SVG; this module draws the chain and
 picks the pictures for one file.
 """
@@ -29,7 +30,8 @@ from speccheck.reporters.figure_data import (
     signals,
     tanks,
 )
-from speccheck.reporters.figure_plots import frequency_plan, paths_against_signals, tank_response
+from speccheck.reporters.figure_plots import frequency_plan, tank_response
+from speccheck.reporters.figure_spectra import paths_against_signals
 from speccheck.reporters.figure_svg import (
     BLACK,
     BLUE,
