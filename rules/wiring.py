@@ -127,27 +127,38 @@ def _check_coil_return(build, ctx, dev, pin_net, coil):
 
 @rule(
     "wiring.crystal-dc",
-    level="warning",
+    level="error",
     title="DC standing across a crystal",
     explanation="""
       A quartz crystal is meant to carry only the oscillator's RF. When one end sits on a pin with
       a DC bias and the other end on a net at another DC potential (often ground), that DC stands
-      across the crystal all the time it is powered. It stresses the electrodes, shifts and ages
-      the frequency, and in some oscillators it upsets the bias of the pin. Application circuits
+      across the crystal all the time it is powered. The quartz plate itself blocks DC, so the
+      oscillator may well start on the first day; what fails is the crystal and the tuning. The
+      steady field between the electrodes drives their metal across the plate (electromigration),
+      so the frequency ages and the motional resistance rises until the oscillator stops; the
+      load the pin sees is no longer the one the crystal was cut for, so the pulling the plan
+      computes is not the one on the bench; and a holder that leaks a little (flux, moisture)
+      pulls the pin's bias off, and the oscillator does not start at all. Application circuits
       avoid it by returning the crystal's far end to the same DC potential as the pin (often the
       bypassed supply rail) or by putting a blocking capacitor in series.
+
+      An error when the DC across the crystal is above the threshold setting (default 0.1 V, a
+      real bias rather than two nets at nearly the same potential).
       """,
     fix="Return the crystal's far end to the same potential as the pin (the bypassed supply rail), "
     "or put a series capacitor (about 1 nF) in line with it.",
-    source="common practice (crystal oscillator application circuits)",
+    source="common practice (crystal oscillator application circuits: no DC across the crystal); "
+    "electrode migration under DC: from memory",
     verify="With the board powered and no crystal fitted, measure the DC between the two crystal pads: "
     "it should be about 0 V. Fitted, the oscillator should start every time it is powered.",
+    settings={"threshold": DC_THRESHOLD},
 )
 def crystal_dc(build, ctx):
     nets = build.nets
+    least = ctx.setting("threshold")
     for part in build.parts.values():
         known = nets.across(part) if part.kind == "crystal" else None
-        if known is None or known[4] <= DC_THRESHOLD:
+        if known is None or known[4] <= least:
             continue
         a, pa, b, pb, across = known
         ctx.report(

@@ -69,12 +69,23 @@ def test_tank_node_tied_to_nothing_is_a_warning(clean_text):
 def test_crystal_from_biased_pin_to_ground_has_dc_across(clean_text):
     text = edited(clean_text, "ends: [U1.osc_base, V6]", "ends: [U1.osc_base, GND]")
     found = of(check(text), "wiring.crystal-dc")
-    assert len(found) == 1
+    assert [f.level for f in found] == ["error"]  # the brief lists DC across a crystal among the errors
     f = found[0]
     assert f.message.startswith("X1 has 6 V DC across it: U1.osc_base at 6 V")
     assert "GND at 0 V" in f.message
     assert f.location.line == line_of(text, "ends: [U1.osc_base, GND]")
     assert {v.name: v.value for v in f.values}["DC across crystal"] == 6.0  # V6 rail 6 V minus ground 0 V
+
+
+def test_crystal_dc_below_the_threshold_setting_is_fine(clean_text):
+    # 6 V across X1 (V6 rail against ground): a project threshold of 6.5 V lets it pass, 5.5 V does not
+    text = edited(clean_text, "ends: [U1.osc_base, V6]", "ends: [U1.osc_base, GND]")
+
+    def levels(volts: float):
+        settings = Settings(rule_settings={"wiring.crystal-dc": {"threshold": volts}})
+        return [f.level for f in of(check(text, settings=settings), "wiring.crystal-dc")]
+
+    assert levels(6.5) == [] and levels(5.5) == ["error"]
 
 
 def test_crystal_returned_to_the_pin_potential_is_fine(clean_text):

@@ -265,7 +265,7 @@ def test_the_baseline_hides_old_findings_and_shows_a_new_one(repo):
     begin.write_text("# kept as written\n\n" + begin.read_text())
     for fmt in ("text", "sarif"):
         res = run("check", "--format", fmt, "--baseline", "speccheck-baseline.json", ".")
-        assert res.exit_code == 0  # crystal DC is a warning; the fail level is error
+        assert res.exit_code == 1  # crystal DC is an error: the new mistake fails the check
         new = from_text(res.stdout) if fmt == "text" else from_sarif(res.stdout)
         assert [(f, line, rule) for f, line, _, rule, _, _ in new] == [
             ("builds/clean.yaml", line_of(text, "ends: [U1.osc_base, GND]"), "wiring.crystal-dc")
