@@ -108,9 +108,11 @@ def _signal_panel(ax, c: Conversion, sig: SignalBand) -> None:
         ax.plot(xs_l, [max(a, FLOOR_DB) for a in after], linestyle="none", marker="x", markersize=5,
                 color=BLACK, label="each line after the path")
     elif serving is not None:  # not FM: its necessary band at both worst-case ends
-        for f, colour in ((c.if_low, BLUE), (c.if_high, ORANGE)):
-            ax.plot([_khz(f - sig.width / 2), _khz(f + sig.width / 2)], [-3, -3], color=colour, linewidth=5,
-                    solid_capstyle="butt")
+        ends = ((c.if_low, BLUE, -4, "-", "lowest"), (c.if_high, ORANGE, -10, "--", "highest"))
+        for f, colour, y, style, end in ends:
+            ax.plot([_khz(f - sig.width / 2), _khz(f + sig.width / 2)], [y, y], color=colour, linewidth=4,
+                    linestyle=style, solid_capstyle="butt",
+                    label=f"its necessary band at the {end} worst-case IF")
     ax.set_xlim(_khz(low), _khz(high))
     ax.set_ylim(FLOOR_DB, 6)
     ax.set_yticks([0, -20, -40, -60])
