@@ -147,3 +147,34 @@ def dc_unblocked(build, ctx):
             if pin.needs_dc_blocked and pot is not None and pot.origin != net and abs(pot.volts) >= least:
                 ctx.report(f"{net} must not be fed DC, but {fmt(pot.volts, 'V')} reaches it: {pot.why}",
                            dev.loc, [Value("DC at the pin", pot.volts, "V")], stage="parts")
+
+
+@rule("connect.configurations-capped", level="note",
+      title="More signal and position combinations than are checked",
+      explanation="""
+      In a plan with selector switches or upstream bandwidth settings, the rules that depend on
+      what is in circuit (path width, tank, audio corner, gain ahead, tap loading) run once for
+      each signal in each switch position and upstream setting it can be received in. A plan
+      with many switches multiplies these combinations; speccheck checks the first ones, in plan
+      order, up to a fixed number, and says nothing about the rest. Naming for each signal the
+      positions it is received in (`switches:`) and the upstream setting (`upstream:`) keeps the
+      count to the combinations that matter.
+      """,
+      fix="Give each signal its `switches:` positions and `upstream:` setting, so that only the "
+          "combinations it is received in are checked.",
+      source="speccheck's own limit (a bound on the work of one check)",
+      verify="Nothing to measure: the combinations left out were not reviewed.")
+def configurations_capped(build, ctx):
+    from speccheck.configs import MAX_CONFIGURATIONS, configuration_count
+
+    if not build.switched:
+        return
+    total = configuration_count(build)
+    if total <= MAX_CONFIGURATIONS:
+        return
+    switches = [p for p in build.parts.values() if p.selector]
+    where = switches[0].loc if switches else build.source.at("bandwidth_settings")
+    ctx.report(f"The plan has {total} combinations of signal, switch positions and upstream setting; "
+               f"the first {MAX_CONFIGURATIONS} in plan order were checked and the other "
+               f"{total - MAX_CONFIGURATIONS} were not", where,
+               [Value("combinations", total), Value("checked", MAX_CONFIGURATIONS)], stage="parts")

@@ -393,6 +393,9 @@ def upgrade(path, output, in_place, force):
     done = upgrade_file(path)
     if done.trouble:
         _trouble(f"{_plain(path)}: {done.trouble}")
+    if done.current:
+        click.echo(f"{_plain(path)}: already format 2; nothing to change, nothing written", err=True)
+        return
     if in_place:
         try:
             files.write_atomic(path, done.text, force=True, mode=os.stat(path).st_mode & 0o7777)

@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import copy
 import itertools
+import math
 import weakref
 from dataclasses import dataclass
 from typing import Any
@@ -80,14 +81,11 @@ def selectors(build) -> list:
     return [p for p in build.parts.values() if p.selector]
 
 
-def configurations(build) -> list:
-    """Every (signal, switch positions, upstream setting) the plan receives, in plan order."""
-    cached = _CONFIGS.get(build)
-    if cached is not None:
-        return cached
+def _every_configuration(build):
+    """(total count, lazy iterator) of every (signal, switch positions, upstream setting)."""
     switches = selectors(build)
     settings = list(build.source.bandwidth_settings) if build.source is not None else []
-    out: list = []
+    plans = []
     for sig in build.signals or [None]:
         choices, unstated = [], []
         for sw in switches:
@@ -100,12 +98,29 @@ def configurations(build) -> list:
             ups = [sig.upstream]
         else:
             ups = settings or [None]
-        for combo in itertools.product(*choices):
-            for up in ups:
-                out.append(Configuration(sig, tuple(combo), up, tuple(unstated)))
-    out = out[:MAX_CONFIGURATIONS]
+        plans.append((sig, choices, ups, tuple(unstated)))
+    total = sum(math.prod(len(c) for c in choices) * len(ups) for _, choices, ups, _ in plans)
+    every = (Configuration(sig, tuple(combo), up, unstated)
+             for sig, choices, ups, unstated in plans
+             for combo in itertools.product(*choices) for up in ups)
+    return total, every
+
+
+def configurations(build) -> list:
+    """Every (signal, switch positions, upstream setting) the plan receives, in plan order; no
+    more than MAX_CONFIGURATIONS (configuration_count says how many there are)."""
+    cached = _CONFIGS.get(build)
+    if cached is not None:
+        return cached
+    _, every = _every_configuration(build)
+    out = list(itertools.islice(every, MAX_CONFIGURATIONS))  # lazily: a huge product is never built
     _CONFIGS[build] = out
     return out
+
+
+def configuration_count(build) -> int:
+    """How many (signal, positions, upstream setting) combinations the plan has, checked or not."""
+    return _every_configuration(build)[0]
 
 
 # ---- what is in circuit ----------------------------------------------------------------

@@ -26,6 +26,7 @@ class Upgraded:
     text: str
     changes: list = field(default_factory=list)  # what was edited, in words, with the line
     trouble: str = ""  # why the file could not be upgraded ("" when it was)
+    current: bool = False  # the file is already format 2: nothing to change, nothing to write
 
 
 def upgrade_text(text: str) -> Upgraded:
@@ -36,7 +37,7 @@ def upgrade_text(text: str) -> Upgraded:
         )
     spec = doc.data.get("build_spec")
     if spec == 2:
-        return Upgraded(text, trouble="the file is already format 2")
+        return Upgraded(text, current=True)
     if spec != 1 or isinstance(spec, bool):
         return Upgraded(text, trouble="the file has no `build_spec: 1`, so it is not a format-1 build plan")
     edits, changes = [], []

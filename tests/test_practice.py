@@ -10,7 +10,7 @@ only what the case is about. Where each check value comes from is said beside it
   ±6 kHz for 12.5 kHz channels (common practice);
 - broadcast FM: ±75 kHz deviation, 15 kHz audio (ITU-R BS.450-3) through a wide path of 180 to
   230 kHz (common practice: 10.7 MHz ceramic filters of 180 to 230 kHz at 3 dB);
-- a usual crystal: ±30 ppm tolerance (common practice for a general-purpose HC-49 class crystal
+- a usual crystal: ±30 ppm tolerance (common practice for a general-purpose through-hole crystal
   at 25 °C);
 - a small low-voltage audio amplifier on 9 V and 12 V into 8 Ω (common practice).
 """

@@ -66,7 +66,8 @@ def test_load_impedance_is_renamed_by_stage_kind():
 
 
 def test_upgrade_refuses_what_is_not_a_v1_plan():
-    assert "already format 2" in upgrade_text((EXAMPLES / "bench-demod-selector.yaml").read_text()).trouble
+    v2 = upgrade_text((EXAMPLES / "bench-demod-selector.yaml").read_text())
+    assert v2.current and not v2.trouble and not v2.changes
     assert "no `build_spec: 1`" in upgrade_text("build: {name: x}\n").trouble
     assert upgrade_text("a: [\n").trouble
 
@@ -85,8 +86,14 @@ def test_upgrade_command_prints_writes_and_rewrites(tmp_path):
     assert again.exit_code == 2 and "exists" in again.output  # never overwritten without --force
     assert runner.invoke(main, ["upgrade", str(src), "--in-place"]).exit_code == 0
     assert src.read_text() == out.output
-    refused = runner.invoke(main, ["upgrade", str(src), "--in-place"])
-    assert refused.exit_code == 2 and "already format 2" in refused.output
+    upgraded = src.read_bytes()
+    for how in (["--in-place"], ["-o", str(tmp_path / "again.yaml")], []):
+        again = runner.invoke(main, ["upgrade", str(src), *how])
+        # already format 2: one line saying so, exit 0, nothing written or printed as a plan
+        assert again.exit_code == 0 and again.output.strip().endswith("already format 2; nothing to change, "
+                                                                       "nothing written")
+        assert len(again.output.strip().splitlines()) == 1
+    assert src.read_bytes() == upgraded and not (tmp_path / "again.yaml").exists()
 
 
 def test_profile_command_lists_and_shows_typical_values():

@@ -160,3 +160,26 @@ def test_the_shipped_v2_examples_have_no_connectivity_finding():
     for text in (bench(), portable()):
         result = check(text, "x.yaml")
         assert not [f for f in result.findings if f.rule.startswith("connect.")]
+
+
+# ---- how many combinations are checked --------------------------------------------------------
+
+def test_combinations_past_the_cap_are_named_in_a_note(monkeypatch):
+    from speccheck import configs
+
+    # 12 upstream settings (the format's most) that neither signal names, and S1 in both positions
+    # for each: 2 signals x 2 positions x 12 settings = 48 combinations; with the cap at 20, 28 are left
+    settings = ", ".join(f"rbw-{k}: {100 + 10 * k} kHz" for k in range(12))
+    text = edited(bench(), "bandwidth_settings: {rbw-100k: 100 kHz, rbw-1m: 1 MHz}",
+                  f"bandwidth_settings: {{{settings}}}")
+    for cut in ("    upstream: rbw-100k\n", "    upstream: rbw-1m\n", "    switches: {S1: narrow}\n",
+                "    switches: {S1: wide}\n"):
+        text = edited(text, cut, "")
+    assert of(check(text), "connect.configurations-capped") == []  # 48: all checked under the cap of 64
+    monkeypatch.setattr(configs, "MAX_CONFIGURATIONS", 20)
+    result = check(text, "many.yaml")
+    found = of(result, "connect.configurations-capped")
+    assert [f.level for f in found] == ["note"]
+    assert found[0].message == ("The plan has 48 combinations of signal, switch positions and upstream "
+                                "setting; the first 20 in plan order were checked and the other 28 were not")
+    assert of(check(bench()), "connect.configurations-capped") == []  # 2 signals, each in one position

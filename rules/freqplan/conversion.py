@@ -141,8 +141,8 @@ def conversion(build, ctx):
       capacitors, can put the signal on the filter's skirt or outside it: one side of the
       spectrum is cut, the audio distorts, the squelch chatters.
 
-      speccheck models the filter's response shape (its bandwidth at bandwidth_at, and its
-      stopband, shape factor or the typical shape of its class) and the FM signal's Bessel
+      speccheck models the filter's response shape (its bandwidth and the level it is stated
+      at, its stopband, shape factor or the typical shape of its class) and the FM signal's Bessel
       spectrum for its highest audio tone at full deviation, and computes the share of the
       signal's power the filter passes with the carrier at each end of the worst-case IF. The
       levels follow the path-width rule's shares (see `speccheck explain freqplan.path-width`):

@@ -142,8 +142,8 @@ def image_verdict(ctx, c: Conversion, img: float, band: Band, where, values: lis
 
       speccheck takes the signal's spectrum as the textbook Bessel-function sidebands of its
       highest audio tone at full deviation (the widest single-tone spectrum of the channel) and
-      the path's response shape (bandwidth at bandwidth_at, stopband or shape factor, or the
-      typical shape of its class), and computes the share of the signal's power the path
+      the path's response shape (its bandwidth and the level it is stated at, its stopband or
+      shape factor, or the typical shape of its class), and computes the share of the signal's power the path
       passes, in % and dB:
       - below error_share (default 50 %: more than half the power, 3 dB, the half-power
         convention) the spectrum is clearly cut: heavy distortion on the bench, an error;
