@@ -40,7 +40,7 @@ class Band:
 
     def attenuation(self, f: float) -> float:
         """Attenuation in dB at f of the filters that make this band, in cascade."""
-        return sum(shape.attenuation(f - c) for c, shape in self.responses)
+        return shapes.cascade_attenuation(self.responses, f)
 
     def holds(self, f: float) -> bool:
         return self.low <= f <= self.high

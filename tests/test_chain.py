@@ -57,3 +57,23 @@ def test_filter_fit_margin_of_the_clean_plan():
     margin = next(e.value.value for e in check(text).sheet
                   if e.value.name == "margin for repeater voice (worst case)")
     assert margin == pytest.approx(min(low_side, high_side))
+
+
+def test_cascade_adds_in_db_but_stops_at_the_ultimate_attenuation():
+    """Two filters in cascade add their attenuations in dB (cascade of two-ports, any circuits
+    text), but feed-through on the board bypasses the whole cascade: the total stops at the
+    largest ultimate attenuation of the filters (common practice), never 2 x 80 dB."""
+    from speccheck.chain import Band
+    from speccheck.formulas import shapes
+
+    first = shapes.Shape(1e6, 6.0, "butterworth", 2.0)
+    second = shapes.Shape(1e6, 6.0, "butterworth", 2.0, ultimate_db=70.0)
+    band = Band(10.2e6, 11.2e6, "two filters", [(10.7e6, first), (10.7e6, second)])
+    # At the 6 dB edge each Butterworth is 6 dB down by definition: 12 dB in cascade.
+    assert band.attenuation(10.7e6 + 0.5e6) == pytest.approx(12.0, abs=1e-9)
+    # Far out each one stops at its own ultimate (80 and 70 dB); the cascade at the larger, 80 dB.
+    assert band.attenuation(10.7e6 + 50e6) == pytest.approx(80.0)
+    assert Band(0.0, 1.0, "none").attenuation(5.0) == 0.0
+    # The same sum serves the pictures, so a drawn curve and a verdict cannot disagree.
+    responses = [(10.7e6, first), (10.7e6, second)]
+    assert shapes.cascade_attenuation(responses, 10.7e6 + 50e6) == pytest.approx(80.0)

@@ -136,3 +136,16 @@ def rejection(shape: Shape, center: float, wanted: float, unwanted: float) -> fl
     """How much more the shape attenuates `unwanted` than `wanted`, in dB (image or adjacent
     channel rejection of a filter centred on `center`)."""
     return shape.attenuation(unwanted - center) - shape.attenuation(wanted - center)
+
+
+def cascade_attenuation(responses: list[tuple[float, Shape]], f: float) -> float:
+    """Attenuation in dB at f of filters in cascade, each given as (centre, Shape).
+
+    The cascade adds in dB (cascaded two-ports, any circuits text) but stops at the largest
+    ultimate attenuation of its filters: on one board, feed-through around the filters (shared
+    ground, pin-to-pin and wiring capacitance) bypasses the whole cascade, not one filter at a
+    time (common practice)."""
+    if not responses:
+        return 0.0
+    total = sum(shape.attenuation(f - centre) for centre, shape in responses)
+    return min(total, max(shape.ultimate_db for _, shape in responses))

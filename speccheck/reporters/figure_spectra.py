@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 
-from speccheck.formulas import fmspectrum
+from speccheck.formulas import fmspectrum, shapes
 from speccheck.reporters.figure_data import Conversion, PathBand, SignalBand
 from speccheck.reporters.figure_svg import (
     BLACK,
@@ -54,8 +54,8 @@ def worst_end(c: Conversion, sig: SignalBand, path: PathBand) -> tuple[float, fl
 
 
 def ahead_attenuation(responses: list, f: float) -> float:
-    """dB of the filters ahead of the mixer in cascade at input frequency f."""
-    return sum(shape.attenuation(f - centre) for centre, shape in responses)
+    """dB of the filters ahead of the mixer in cascade at input frequency f (as the rule sums them)."""
+    return shapes.cascade_attenuation(responses, f)
 
 
 def curve(ax, xs_hz: list, attenuation, scale, **style) -> None:
