@@ -14,22 +14,53 @@ from speccheck.registry import rule
 from speccheck.units import fmt
 
 
+def _source_nets(build) -> set:
+    """The nets the source's signal enters the build on: `source.net` when the plan names it.
+    Else the input region: the nets of the first stage's parts and of the parts on the first
+    device's input pin, and one part further out from a net of that region that is no rail
+    (a DC-blocking capacitor from the connector, listed in no stage)."""
+    source = build.source
+    if source is not None and source.net:
+        return {source.net}
+    region: set = set()
+    for stage in build.chain[:1]:  # the first stage takes the source's signal
+        for ref in stage.parts:
+            part = build.part(ref)
+            if part is not None:
+                region |= set(part.terminals.values())
+    device = next((build.devices.get(st.device) for st in build.chain if st.device), None)
+    if device is not None and device.profile is not None:
+        for pin in device.profile.pins.values():
+            if pin.role == "input":
+                region.add(f"{device.name}.{pin.name}")
+                for part in build.nets.parts_on(f"{device.name}.{pin.name}"):
+                    region |= set(part.terminals.values())
+    out = set(region)
+    for net in region - set(build.rails):
+        for part in build.nets.parts_on(net):
+            if not part.selector:
+                out |= set(part.terminals.values())
+    return out
+
+
 def _outside(build) -> set:
-    """Nets that meet the world outside the plan: the supply input, the source input, the taps."""
-    out = {t.net for t in build.taps}
+    """Nets that meet the world outside the plan: the supply input (and the mains conductors),
+    the source input, the taps, the speaker line."""
+    out = {t.net for t in build.taps} | _source_nets(build)
     supply = build.supply
     for ref in ((supply.fuse, supply.series_resistor, supply.reverse_protection) if supply else ()):
         part = build.part(ref)
         if part is not None:
             out |= set(part.terminals.values())
     if supply is not None and supply.mains is not None:
+        out |= {n for n in (supply.mains.line_net, supply.mains.neutral_net) if n}
         for ref in (supply.mains.transformer, supply.mains.primary_fuse, supply.mains.switch):
             part = build.part(ref)
             if part is not None:
                 out |= set(part.terminals.values())
-    for stage in build.chain[:1]:  # the first stage takes the source's signal
-        for ref in stage.parts:
-            part = build.part(ref)
+    for stage in build.chain:  # the speaker, or the jack a speaker plugs into
+        for ref in (stage.load, stage.coupling) if stage.kind == "audio-amp" else ():
+            part = build.part(ref) if isinstance(ref, str) else None
             if part is not None:
                 out |= set(part.terminals.values())
     return out
@@ -45,8 +76,10 @@ def _anchored(build, net: str) -> bool:
       A net joins two or more terminals; a net that only one terminal of one part reaches goes
       nowhere. Usually a name is misspelt in one of the places it should appear (SPK and SPK1),
       or the part that should sit there was left out of the plan. Rails, declared nodes, device
-      pins, the supply and source inputs and the taps' nets meet something outside the parts
-      list and are not counted.
+      pins, the supply and source inputs, the taps' nets and the speaker line meet something
+      outside the parts list and are not counted. The source's net is `source.net` when the
+      plan names it; else the nets of the first stage's parts and of the parts on the first
+      device's input pin (a DC-blocking capacitor from the connector, say).
       """,
       fix="Correct the net's name where it is misspelt, or add the part that connects to it.",
       source="common practice (netlist connectivity check)",
@@ -55,6 +88,10 @@ def single_connection(build, ctx):
     if build.build_spec != 2:
         return
     outside = _outside(build)
+    source = build.source
+    if source is not None and source.net and not build.nets.parts_on(source.net):
+        ctx.report(f"source.net {source.net} is on no part: nothing takes the source's signal",
+                   source.at("net"), [Value("net", source.net)], stage="input")
     for net, parts in build.nets.members.items():
         if len(parts) != 1 or _anchored(build, net) or net in outside:
             continue

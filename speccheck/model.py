@@ -143,6 +143,7 @@ class Source(Located):
     shape_factor: float = plain(None)
     bandwidth_settings: dict = plain({})  # v2: setting name -> Q (frequency), filled by the loader
     output_impedance: Q = qty("resistance")  # v2: the same as impedance
+    net: str = plain(None)  # v2: the net the source's signal enters the build on (its connector)
 
 
 # ---- supply and rails ------------------------------------------------------------------

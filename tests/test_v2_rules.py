@@ -183,3 +183,29 @@ def test_combinations_past_the_cap_are_named_in_a_note(monkeypatch):
     assert found[0].message == ("The plan has 48 combinations of signal, switch positions and upstream "
                                 "setting; the first 20 in plan order were checked and the other 28 were not")
     assert of(check(bench()), "connect.configurations-capped") == []  # 2 signals, each in one position
+
+
+def coupled_input() -> str:
+    # a DC-blocking capacitor from the connector's net IF_IN to the match, listed in no stage
+    text = edited(portable(), "ends: [IF_IN, U1.mixer_in]", "ends: [LIN, U1.mixer_in]")
+    return edited(text, "  C1: {kind", "  C2: {kind: capacitor, value: 10 nF, dielectric: ceramic, "
+                                        "ends: [IF_IN, LIN]}\n  C1: {kind")
+
+
+def test_the_net_the_source_feeds_is_a_connection():
+    assert of(check(coupled_input(), "portable.yaml"), "connect.single-connection") == []
+    direct = edited(coupled_input(), "ends: [IF_IN, LIN]", "ends: [IF_IN, U1.mixer_in]")
+    direct = edited(direct, "ends: [LIN, U1.mixer_in]", "ends: [U1.mixer_in, GND]")  # L1 to ground
+    assert of(check(direct, "portable.yaml"), "connect.single-connection") == []
+
+
+def test_source_net_names_where_the_signal_enters():
+    named = edited(coupled_input(), "\nsource:\n", "\nsource:\n  net: IF_IN\n")
+    assert of(check(named, "portable.yaml"), "connect.single-connection") == []
+    wrong = edited(named, "  net: IF_IN\n", "  net: IF_JACK\n")
+    found = of(check(wrong, "portable.yaml"), "connect.single-connection")
+    messages = sorted(f.message for f in found)
+    assert messages[0].startswith("net IF_IN reaches only C2")  # named elsewhere: IF_IN is no input now
+    assert messages[1] == "source.net IF_JACK is on no part: nothing takes the source's signal"
+    named_net = next(f for f in found if f.message == messages[1])
+    assert named_net.location.line == line_of(wrong, "net: IF_JACK")

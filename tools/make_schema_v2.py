@@ -58,6 +58,7 @@ def v2(v1: dict) -> dict:
                                  "description": "the selectable IF or resolution bandwidths upstream, by name"}
     src["output_impedance"] = ref("resistance", "the output impedance of the upstream equipment "
                                                 "(the same as impedance; either may be given)")
+    src["net"] = ref("net", "the net the source's signal enters the build on (its connector or cable)")
     supply = p["supply"]["properties"]
     supply["battery"] = {
         "type": "object", "additionalProperties": False, "required": ["chemistry"],
