@@ -131,13 +131,14 @@ def _cooler_amplifier(s: Situation, f: Finding, dev) -> list[Option]:
         return f"full output {units.fmt(watts, 'W')}"
 
     options = []
+    sink = "with its heat sink as declared" if dev.heat_sink is not None else "no heat sink"
     supply = _supply_changes(s, dev)
     volts = picks.highest_below(point.v_supply, picks.COMMON_SUPPLY_VOLTS, fits(point.r_load))
     if supply is not None and volts is not None:
         options.append(
             Option(
                 supply(volts),
-                f"supply {units.fmt(volts, 'V')} instead of {units.fmt(point.v_supply, 'V')}, no heat sink",
+                f"supply {units.fmt(volts, 'V')} instead of {units.fmt(point.v_supply, 'V')}, {sink}",
                 f"junction {units.fmt(junction(volts, point.r_load), '°C')} at {units.fmt(ta, '°C')} "
                 f"ambient (limit {units.fmt(limit, '°C')}); {output(volts, point.r_load)}",
                 figure=("heat", dev.name, "junction temperature at"),
@@ -159,7 +160,7 @@ def _cooler_amplifier(s: Situation, f: Finding, dev) -> list[Option]:
     options.append(
         Option(
             changes,
-            f"{speaker.name} {units.fmt(ohms, 'Ω')} speaker{on}, no heat sink",
+            f"{speaker.name} {units.fmt(ohms, 'Ω')} speaker{on}, {sink}",
             f"junction {units.fmt(junction(volts, ohms), '°C')} at {units.fmt(ta, '°C')} ambient (limit "
             f"{units.fmt(limit, '°C')}); {output(volts, ohms)}",
             figure=("heat", dev.name, "junction temperature at"),

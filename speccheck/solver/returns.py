@@ -142,7 +142,8 @@ def _decoupled_return(s: Situation, coil, ground: str, rail: str) -> Option | No
         changes,
         f"{coil.name} ends: {ground} -> {node}; add {r_name} {units.fmt(DECOUPLING[0], 'Ω')} from {node} to "
         f"{rail} and {c_name} {units.fmt(DECOUPLING[1], 'F')} from {node} to {ground}",
-        f"{coil.name} returns the pin to {rail} through {r_name}; {c_name} keeps the supply's noise out",
+        f"{coil.name} returns {coil.other_end(ground)} to {rail} through {r_name}; {c_name} keeps the "
+        "supply's noise out",
     )
 
 
