@@ -673,3 +673,20 @@ def test_crystal_on_a_pin_off_its_rail_gets_a_blocking_capacitor(tmp_path):
     assert proposal.chosen.summary.startswith("add C33 1 nF in series: X2 ends: GND -> X2_DC")
     assert "X2: {kind: crystal, frequency: 10 MHz, ends: [U4.osc_in, X2_DC]}" in outcome.new_text
     assert "C33: {kind: capacitor, value: 1 nF, dielectric: ceramic, ends: [X2_DC, GND]}" in outcome.new_text
+
+
+def test_lower_supply_keeps_a_declared_heat_sink(tmp_path):
+    # 18 V with a declared 20 °C/W sink: θ = θJC 37 + θCS 1 (the rule's assumed) + 20 = 58 °C/W.
+    # 12 V: P = 144/157.91 + 0.072 = 0.9839 W -> 40 + 0.9839·58 = 97.07 °C, within 125 °C
+    # (T_j = T_a + P·θ, the series thermal model; class-B P from Boylestad & Nashelsky Example 12.8)
+    plan = _starter_variant(
+        tmp_path,
+        "voltage: 12 V\n", "voltage: 18 V\n",
+        "V12: {voltage: 12 V", "V12: {voltage: 18 V",
+        "rail: V12, theta_ja: 60 degC/W,", "rail: V12, heat_sink: {theta_sa: 20 degC/W},",
+    )
+    outcome = solver.solve(plan)
+    (proposal,) = [p for p in outcome.proposals if p.finding.rule == "power.heat"]
+    first = proposal.options[0]
+    assert first.summary == "supply 12 V instead of 18 V, with its heat sink as declared"
+    assert float(first.result.split()[1]) == pytest.approx(97.07, abs=0.01)
