@@ -222,6 +222,8 @@ class Pin(Located):
     output_impedance: Q = qty("resistance")
     input_impedance: Q = qty("resistance")
     needs_dc_blocked: bool = plain(False)
+    output_low: Q = qty("voltage")  # a switching output's levels (squelch hysteresis)
+    output_high: Q = qty("voltage")
     note: str = plain(None)
 
 

@@ -83,6 +83,8 @@ def v2(v1: dict) -> dict:
     pin["output_impedance"] = ref("resistance", "output resistance of an output pin")
     pin["input_impedance"] = ref("resistance", "input resistance of an input pin")
     pin["needs_dc_blocked"] = {"type": "boolean", "description": "an input that must not be fed DC"}
+    pin["output_low"] = ref("voltage", "a switching output's low level (default: ground)")
+    pin["output_high"] = ref("voltage", "a switching output's high level (default: the device's supply)")
     part = d["part"]["properties"]
     part["kind"]["enum"] = part["kind"]["enum"] + ["transistor", "module"]
     part["terminals"] = {"type": "object", "minProperties": 1, "maxProperties": 24,
