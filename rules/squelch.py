@@ -54,7 +54,8 @@ def feedback(build, stage) -> Feedback | None:
     pin_of = split_pin(net)
     dev = build.device(pin_of[0]) if pin_of else None
     pin = dev.pin(pin_of[1]) if dev is not None and pin_of else None
-    if pin is not None and (pin.output_low is not None or pin.output_high is not None):
+    stated_levels = pin is not None and (pin.output_low is not None or pin.output_high is not None)
+    if dev is not None and pin is not None and stated_levels:
         supply = build.nets.rail_voltage(dev.rail)
         low = pin.output_low.si if pin.output_low is not None else 0.0
         high = pin.output_high.si if pin.output_high is not None else supply
@@ -66,7 +67,7 @@ def feedback(build, stage) -> Feedback | None:
     stated = build.nets.stated(net)
     if stated is not None:
         return Feedback(part, net, (stated.volts, stated.volts), stated.why)
-    if pin is not None:
+    if dev is not None and pin is not None:
         supply = build.nets.rail_voltage(dev.rail)
         if supply is not None:  # common practice: a switching output swings from ground to its supply
             return Feedback(
@@ -314,6 +315,8 @@ def _judge_hysteresis(build, ctx, stage, fb: Feedback) -> None:
         _value(build.part(stage.shunt)),
         _value(fb.part),
     )
+    if fb.levels is None:
+        return
     out_lo, out_hi = fb.levels
     swing = out_hi - out_lo
     track = _value(pot)

@@ -90,7 +90,8 @@ def test_hysteresis_wider_than_the_threshold_range_is_a_warning():
 def test_the_profile_states_the_output_levels():
     text = bench().replace(
         "signals:\n",
-        "profiles:\n  if-chip-with-levels:\n    class: fm-if-subsystem\n    supply_min: 2 V\n    supply_max: 8 V\n"
+        "profiles:\n  if-chip-with-levels:\n    class: fm-if-subsystem\n"
+        "    supply_min: 2 V\n    supply_max: 8 V\n"
         "    quiescent_current: 4 mA\n    input_impedance: 1.5 kohm\n    max_input: -10 dBm\n"
         "    max_gain_ahead: 10 dB\n    pins:\n      mixer_in: {role: input}\n"
         "      osc_base: {role: oscillator, dc: supply}\n      osc_emitter: {role: oscillator-out}\n"
