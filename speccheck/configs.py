@@ -244,6 +244,66 @@ def prepare(build):
                 _resolve_choices(build, holder, set())
 
 
+# ---- capacitors on an RC node that the stage does not list ------------------------------------
+
+RC_STAGES = ("audio-filter", "de-emphasis")  # an R feeding a node with C to ground: the C's all count
+
+
+def _through_switches(build, cfg: Configuration, node: str) -> dict:
+    """Nets joined to `node` by the poles of the selectors in this configuration -> the words
+    saying how ("" for the node itself, "S2 narrow" for a throw)."""
+    reached = {node: ""}
+    changed = True
+    while changed:
+        changed = False
+        for sw in selectors(build):
+            here = cfg.position(sw.name)
+            for pole in sw.poles.values():
+                chosen = pole.throws.get(here)
+                if chosen is None:
+                    continue
+                for a, b in ((pole.common, chosen), (chosen, pole.common)):
+                    if a in reached and b not in reached:
+                        reached[b] = f"{sw.name} {here}"
+                        changed = True
+    return reached
+
+
+def _count_unlisted(view, build, stage, s, cfg: Configuration) -> None:
+    """Count with the stage's capacitor every other capacitor in circuit from its node to ground
+    (directly or through a switch's selected throw): they are in parallel on the bench."""
+    listed = list(stage.choices.get("capacitor") or ([stage.capacitor] if stage.capacitor else []))
+    grounds = {name for name, rail in build.rails.items() if rail.is_ground}
+    first = next((build.parts[r] for r in listed if r in build.parts), None)
+    if first is None or s.capacitor is None:
+        return
+    node = next((n for n in first.terminals.values() if n not in grounds), None)
+    if node is None:
+        return
+    nets = _through_switches(build, cfg, node)
+    extra = []
+    for part in view.parts.values():
+        ends = set(part.terminals.values())
+        if part.kind != "capacitor" or part.name in listed or len(ends) != 2 or not ends & grounds:
+            continue
+        on = next((n for n in ends if n in nets), None)
+        if on is not None:
+            extra.append((part.name, node, nets[on]))
+    if not extra:
+        return
+    live = [r for r in listed if r in view.parts] + [ref for ref, _, _ in extra]
+    stand_in = _combined(view, live)
+    if stand_in is None:
+        return
+    if stand_in.combined_from:
+        listed_at = stage.places.get("capacitor")
+        if listed_at is not None:
+            stand_in.doc_path = listed_at
+            stand_in.places = dict.fromkeys(("value", "ends", "kind"), listed_at)
+        view.combined[stand_in.name] = stand_in
+    s.capacitor, s.unlisted = stand_in.name, tuple(extra)
+
+
 # ---- the view of one configuration ---------------------------------------------------------
 
 _VIEWS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
@@ -271,6 +331,8 @@ def view(build, cfg: Configuration):
             s.tank = copy.copy(stage.tank)
             _resolve_choices(v, s.tank, out)
         _resolve_choices(v, s, out)
+        if s.kind in RC_STAGES:
+            _count_unlisted(v, build, stage, s, cfg)
         v.chain.append(s)
     if cfg.upstream and build.source is not None:
         v.source = copy.copy(build.source)

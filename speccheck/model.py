@@ -443,6 +443,9 @@ class Stage(Located):
     hysteresis: str = plain(None)
     note: str = plain(None)
     choices: dict = field(default_factory=dict, repr=False, metadata={"derived": True})  # field -> [refs]
+    # in one configuration's view: capacitors from the RC node to ground that the stage does not
+    # list but that are in circuit there, counted with the listed ones: ((ref, node, through), ...)
+    unlisted: tuple = field(default=(), repr=False, metadata={"derived": True})
 
     @property
     def label(self) -> str:

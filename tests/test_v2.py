@@ -172,3 +172,30 @@ def test_a_pot_written_with_three_named_terminals_has_a_track_and_a_wiper():
     build = loader.load_text(text, "bench.yaml").build
     assert build.parts["RV2"].ends == ["V6", "GND"] and build.parts["RV2"].wiper == "SQ_SET"
     assert build.nets.span("SQ_SET") == (0.0, 6.0)  # a wiper sits between its track's ends
+
+
+# ---- a capacitor switched onto an RC node but not listed in the stage ---------------------------
+
+def test_a_capacitor_switched_onto_the_node_counts_and_is_named():
+    import math
+
+    # C13 (3.9 nF) reaches AF1 through S2 pole c in the narrow position; the stage lists C11 only
+    text = edited(bench(), "    capacitor: [C11, C13]\n", "    capacitor: C11\n")
+    result = check(text)
+    found = of(result, "freqplan.audio-corner")
+    named = [f for f in found if f.message.startswith("C13 is on AF1")]
+    assert len(named) == 1 and named[0].level == "note"
+    assert named[0].message.startswith("C13 is on AF1 in S1 narrow but not in the audio-filter stage: it is "
+                                       "counted in parallel with C11")
+    assert named[0].location.line == line_of(text, "  C13: {kind")
+    # RC low-pass corner 1/(2·π·R·C) (Horowitz & Hill ch. 1): 10 kΩ with 1 nF + 3.9 nF in the narrow position
+    corners = {e.position: e.value.value for e in result.sheet if e.value.name == "low-pass corner"}
+    narrow = next(v for k, v in corners.items() if "narrow" in k)
+    wide = next(v for k, v in corners.items() if "wide" in k)
+    assert math.isclose(narrow, 1 / (2 * math.pi * 10e3 * 4.9e-9), rel_tol=1e-9)
+    assert math.isclose(wide, 1 / (2 * math.pi * 10e3 * 1e-9), rel_tol=1e-9)
+    # listed as the plan does it, the same corner and no note
+    listed = check(bench())
+    notes = of(listed, "freqplan.audio-corner")
+    assert not [f for f in notes if "not in the audio-filter stage" in f.message]
+    assert {e.position: e.value.value for e in listed.sheet if e.value.name == "low-pass corner"} == corners

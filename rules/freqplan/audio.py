@@ -22,6 +22,26 @@ def _rc(build, stage):
     return r * c, build.part(stage.capacitor).at("value")
 
 
+def _say_unlisted(ctx, build, stage) -> None:
+    """A note for each capacitor counted on the stage's node that the stage does not list."""
+    if not stage.unlisted:
+        return
+    counted = build.part(stage.capacitor)
+    total = f" ({counted.value.text} = {units.fmt(counted.value.si, 'F')} in all)" \
+        if counted is not None and counted.value is not None else ""
+    listed = [r for r in (counted.combined_from if counted is not None else ()) if
+              r not in {ref for ref, _, _ in stage.unlisted}]
+    for ref, node, through in stage.unlisted:
+        part = build.part(ref)
+        where = f" in {through}" if through else ""
+        ctx.report(f"{ref} is on {node}{where} but not in the {stage.label} stage: it is counted in "
+                   f"parallel with {', '.join(listed) or 'the listed capacitor'}{total}; list it in the "
+                   "stage's capacitor", part.loc if part is not None else stage.loc,
+                   [Value("node", node), Value("counted capacitance", counted.value.si, "F")]
+                   if counted is not None and counted.value is not None else [Value("node", node)],
+                   level="note", stage=stage.label)
+
+
 def _as_wired(ctx, build, stage, tau: float, what: str) -> tuple:
     """(time constant as wired, Load or None) of an RC stage given by its parts: a plain resistive
     load R_L on its output makes the source behind C the Thevenin resistance R || R_L, so
@@ -85,6 +105,7 @@ def de_emphasis(build, ctx):
         tau, where = _rc(build, stage)
         if tau is None:
             continue
+        _say_unlisted(ctx, build, stage)
         who = owner(build, stage)
         ctx.publish("audio", who, "de-emphasis time constant", tau, "s")
         ctx.publish("audio", who, "de-emphasis corner", audio.corner_from_tau(tau), "Hz")
@@ -150,7 +171,10 @@ def de_emphasis(build, ctx):
       as wired. A corner below the highest audio frequency (by more than the setting low_share,
       default 10 %) dulls the audio (a warning); one far above it (more than high_factor times,
       default 3) lets the noise through (a note). The design sheet shows both corners, the RC
-      alone's and the one as wired, with the flat loss.
+      alone's and the one as wired, with the flat loss. In a plan with selector switches, every
+      capacitor in circuit from the stage's node to ground counts in each position (one that a
+      switch's throw brings in too), listed in the stage or not; one it does not list is named
+      in a note, so that the plan can say it.
       """,
     fix="Choose R x C = 1 / (2 pi f_c) with f_c a little above the highest audio frequency, counting "
         "the load: R || R_L in place of R (or buffer the filter, or use a larger volume control).",
@@ -165,6 +189,7 @@ def audio_corner(build, ctx):
         tau, where = _rc(build, stage)
         if tau is None:
             continue
+        _say_unlisted(ctx, build, stage)
         alone = audio.corner_from_tau(tau)
         who = owner(build, stage)
         ctx.publish("audio", who, "low-pass corner", alone, "Hz")
