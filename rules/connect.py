@@ -101,7 +101,7 @@ def single_connection(build, ctx):
         names = [name for name, n in part.terminals.items() if n == net]
         if part.selector:
             continue  # an unused throw of a selector is a throw left open
-        ctx.report(f"net {net} reaches only {part.name} ({', '.join(names)}): nothing else connects to it",
+        ctx.report(f"Net {net} reaches only {part.name} ({', '.join(names)}): nothing else connects to it",
                    part.loc, [Value("net", net)], stage=build.stage_of_part(part.name).label
                    if build.stage_of_part(part.name) else "parts")
 
@@ -174,7 +174,7 @@ def dc_unblocked(build, ctx):
     for tap in build.taps:
         pot = nets.dc(tap.net)
         if tap.needs_dc_blocked and not tap.coupling and pot is not None and abs(pot.volts) >= least:
-            ctx.report(f"tap {tap.name} feeds {fmt(pot.volts, 'V')} DC from {tap.net} into a load that must "
+            ctx.report(f"Tap {tap.name} feeds {fmt(pot.volts, 'V')} DC from {tap.net} into a load that must "
                        f"not see DC, with no coupling capacitor: {pot.why}", tap.at("net"),
                        [Value("DC at the tap", pot.volts, "V")], stage="tap")
     for dev in build.devices.values():

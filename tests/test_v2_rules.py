@@ -153,7 +153,7 @@ def test_dc_into_a_pot_or_a_load_that_needs_it_blocked():
     assert len(found) == 1 and value(found[0], "DC across the track") == 4.5
     text = edited(portable(), "    net: U1.audio\n    series: R15\n    coupling: C15\n", "    net: U2.out\n")
     found = of(check(text, "portable.yaml"), "connect.dc-unblocked")
-    assert len(found) == 1 and "tap data out" in found[0].message
+    assert len(found) == 1 and "Tap data out" in found[0].message
 
 
 def test_the_shipped_v2_examples_have_no_connectivity_finding():
@@ -205,7 +205,7 @@ def test_source_net_names_where_the_signal_enters():
     wrong = edited(named, "  net: IF_IN\n", "  net: IF_JACK\n")
     found = of(check(wrong, "portable.yaml"), "connect.single-connection")
     messages = sorted(f.message for f in found)
-    assert messages[0].startswith("net IF_IN reaches only C2")  # named elsewhere: IF_IN is no input now
+    assert messages[0].startswith("Net IF_IN reaches only C2")  # named elsewhere: IF_IN is no input now
     assert messages[1] == "source.net IF_JACK is on no part: nothing takes the source's signal"
     named_net = next(f for f in found if f.message == messages[1])
     assert named_net.location.line == line_of(wrong, "net: IF_JACK")
