@@ -11,6 +11,7 @@ copy holds rules/ where it installs, as speccheck/rules/.
 
 from __future__ import annotations
 
+import ast
 import json
 import shutil
 import subprocess
@@ -33,6 +34,27 @@ AREAS: dict[str, tuple[list[str], list[str]]] = {  # area -> (modules to mutate,
 }
 
 
+def undecorate(path: Path) -> None:
+    """Rewrite `@rule(...)` above a check into a `rule(...)(check)` call after it: mutmut leaves
+    decorated functions alone, and the rule bodies hold the thresholds. Same rules, same order."""
+    src = path.read_text("utf-8")
+    tree = ast.parse(src)
+    lines = src.splitlines(keepends=True)
+    edits = []
+    for node in tree.body:
+        if not isinstance(node, ast.FunctionDef) or len(node.decorator_list) != 1:
+            continue
+        deco = node.decorator_list[0]
+        if not (isinstance(deco, ast.Call) and isinstance(deco.func, ast.Name) and deco.func.id == "rule"):
+            continue
+        call = ast.get_source_segment(src, deco)
+        edits.append((deco.lineno - 1, node.lineno - 1, node.end_lineno, f"{call}({node.name})\n"))
+    for start, def_line, end, call in reversed(edits):
+        lines[end:end] = ["\n", call]
+        del lines[start:def_line]
+    path.write_text("".join(lines), "utf-8")
+
+
 def _toml_list(items: list[str]) -> str:
     return "[" + ", ".join(json.dumps(i) for i in items) + "]"
 
@@ -49,6 +71,8 @@ def prepare(area: str) -> Path:
     # import (speccheck.rules.power...) are the ones mutmut changes
     skip = shutil.ignore_patterns("__pycache__")
     shutil.copytree(ROOT / "rules", work / "speccheck" / "rules", ignore=skip)
+    for module in (work / "speccheck" / "rules").rglob("*.py"):
+        undecorate(module)
     mutate = [m.replace("rules/", "speccheck/rules/", 1) if m.startswith("rules/") else m for m in mutate]
     selected = sorted(str(p.relative_to(ROOT)) for pattern in tests for p in ROOT.glob(pattern))
     (work / "pyproject.toml").write_text(
