@@ -94,6 +94,12 @@ def test_network_turning_over_inside_the_audio_band(clean_text):
     assert found[0].message.startswith(
         f"output network R21 (10 ohm) + C21 (10 uF) turns over at {turnover / 1e3:.4g} kHz"
     )
+    assert found[0].message.endswith("inside the audio band (below 20 kHz): R21 takes audio power")
+    assert found[0].location.line == line_of(text, "C21: {kind: capacitor")
+    assert [(v.name, v.unit) for v in found[0].values] == [("turnover", "Hz")]
+    assert found[0].values[0].value == pytest.approx(turnover)
+    entry = next(e for e in check(text).sheet if e.value.name == "output network R21 + C21 turnover")
+    assert (entry.section, entry.owner, entry.value.unit) == ("audio", "audio-amp", "Hz")
 
 
 def test_electrolytic_in_the_network(clean_text):
