@@ -27,6 +27,7 @@ class Pack:
     resistance_typical: bool
     current: float  # A, the budget's supply input
     complete: bool  # False when the budget is only a lower bound
+    position: str = ""  # the switch positions that draw most, when positions change the budget
 
     @property
     def fresh_loaded(self) -> float:
@@ -72,7 +73,7 @@ def pack(build) -> Pack | None:
     r, typical = found
     end = bat.end_voltage.si if bat.end_voltage is not None else cells.pack(chem.end, count)
     return Pack(bat.chemistry, count, cells.pack(chem.fresh, count), cells.pack(chem.nominal, count), end, r,
-                typical, b.input, b.complete)
+                typical, b.input, b.complete, b.position)
 
 
 def needs(build) -> list:
@@ -114,7 +115,9 @@ def _r_text(p: Pack) -> str:
 
 
 def _lower_bound(p: Pack) -> str:
-    return "" if p.complete else " (the budget is incomplete, so the real current is higher)"
+    """Where the budget current holds: the switch position drawing most, and whether it is complete."""
+    where = f" with {p.position}" if p.position else ""
+    return where + ("" if p.complete else " (the budget is incomplete, so the real current is higher)")
 
 
 @rule(
@@ -149,6 +152,8 @@ def sag(build, ctx):
     ctx.publish("power", who, "fresh open-circuit voltage", p.fresh, "V")
     ctx.publish("power", who, "internal resistance", p.resistance, "Ω")
     ctx.publish("power", who, "budget current", p.current, "A")
+    if p.position:
+        ctx.publish("power", who, "budget current taken with", p.position)
     drop = p.fresh - p.fresh_loaded
     ctx.publish("power", who, "sag at the budget current", drop, "V")
     ctx.publish("power", who, "fresh voltage under load", p.fresh_loaded, "V")

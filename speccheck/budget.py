@@ -150,6 +150,13 @@ class Budget:
     input_rails: list = field(default_factory=list)
     pulsed: dict = field(default_factory=dict)  # amplifier -> (rail, average, RMS) of its full-output draw
     input_rms: float | None = None  # RMS of the supply input current at full output
+    position: str = ""  # format 2: the switch positions this budget holds for, when positions differ
+    by_position: dict = field(default_factory=dict)  # switch positions -> input current there
+
+    @property
+    def in_position(self) -> str:
+        """' with S2 on' when switch positions change the budget: this is the position drawing most."""
+        return f" with {self.position}" if self.position else ""
 
     @property
     def complete(self) -> bool:
@@ -173,20 +180,53 @@ def regulator_outputs(build, dev) -> list:
 
 
 def budget(build) -> Budget:
-    """Quiescent currents, amplifier supply current at full output, regulators' input draw."""
+    """Quiescent currents, amplifier supply current at full output, regulators' input draw.
+
+    In a switched build (format 2) the budget is worked out for every switch position the plan
+    receives in, and the one with the largest input current is returned, naming its position."""
     cached = _BUDGETS.get(build)
     if cached is not None:
         return cached
+    if build.switched and getattr(build, "configuration", None) is None:
+        b = _worst_position(build)
+    else:
+        b = _one_budget(build)
+    _BUDGETS[build] = b
+    return b
+
+
+def _worst_position(build) -> Budget:
+    from speccheck import configs
+
+    feeders = {switch for switch, _ in switched_rails(build)[0].values()}
+    if not feeders:  # no switch changes what draws current: the build's own budget
+        return _one_budget(build)
+    found: dict = {}
+    for cfg in build.configurations():
+        key = tuple(p for p in cfg.positions if p[0] in feeders)  # only the switches that feed a rail
+        if key not in found:
+            found[key] = _one_budget(configs.view(build, cfg))
+    labels = {pos: "; ".join(f"{ref} {where}" for ref, where in pos) for pos in found}
+    worst_at = max(found, key=lambda pos: found[pos].input or 0.0)  # the first of equals: plan order
+    worst = found[worst_at]
+    inputs = {labels[pos]: b.input for pos, b in found.items()}
+    if len({round(v or 0.0, 12) for v in inputs.values()}) > 1:
+        worst.position, worst.by_position = labels[worst_at], inputs
+    return worst
+
+
+def _one_budget(build) -> Budget:
     b = Budget()
     direct: dict = {}
 
     def add(rail, owner, what, amps):
         direct.setdefault(rail, []).append((owner, what, amps))
 
+    fed, dead = switched_rails(build)
     regulators = []
     for dev in build.devices.values():
         prof = dev.profile
-        if prof is None:
+        if prof is None or (dev.rail and dev.rail in dead):
             continue
         if not dev.rail or dev.rail not in build.rails:
             (b.no_rail if not dev.rail else b.bad_rail).append(dev)
@@ -217,6 +257,10 @@ def budget(build) -> Budget:
     for reg in regulators:
         for out in regulator_outputs(build, reg):
             feeding.setdefault(reg.rail, []).append((reg, out))
+    through: dict[str, list[Any]] = {}  # rail -> [(switch, rail it feeds through it)]
+    for rail, (switch, common) in fed.items():
+        if rail not in dead:
+            through.setdefault(common, []).append((switch, rail))
 
     def total(rail, seen):
         if rail in b.totals:
@@ -232,6 +276,8 @@ def budget(build) -> Budget:
             prior = b.delivered.get(reg.name, (0.0, 0.0))
             b.delivered[reg.name] = (prior[0] + amps, prior[1] + computed)
             items.append((reg.name, f"delivered to {out}", amps))
+        for switch, out in through.get(rail, []):
+            items.append((switch, f"switched to {out}", total(out, seen)))
         b.items[rail] = items
         b.totals[rail] = sum(a for _, _, a in items)
         return b.totals[rail]
@@ -243,7 +289,7 @@ def budget(build) -> Budget:
     if supply and supply.rail in b.totals:
         b.input_rails = [supply.rail]
     else:
-        made = {out for reg in regulators for out in regulator_outputs(build, reg)}
+        made = {out for reg in regulators for out in regulator_outputs(build, reg)} | set(fed)
         b.input_rails = [n for n, r in build.rails.items()
                          if not r.is_ground and r.source in (None, "supply") and n not in made]
     b.input = sum(b.totals.get(n, 0.0) for n in b.input_rails) if b.input_rails else None
@@ -253,8 +299,36 @@ def budget(build) -> Budget:
         average = sum(avg for _, avg, _ in b.pulsed.values())
         rms = sum(r for _, _, r in b.pulsed.values())
         b.input_rms = rms_with_dc(max(0.0, b.input - average), average, rms) if b.pulsed else b.input
-    _BUDGETS[build] = b
     return b
+
+
+def switched_rails(build) -> tuple[dict, set]:
+    """Rails a selector switch feeds from another rail (rail -> (switch, common rail)), and those of
+    them the build's configuration leaves unfed, with the rails their regulators make (dead).
+    A pole whose common is a rail feeds the rail on each of its throws; in a view the selected
+    throw alone is fed. A build with no such pole has none (every format-1 file)."""
+    fed: dict = {}
+    chosen: set = set()
+    cfg = getattr(build, "configuration", None)
+    for part in build.parts.values():
+        if not part.selector:
+            continue
+        for pole in part.poles.values():
+            if pole.common not in build.rails:
+                continue
+            for position, net in pole.throws.items():
+                if net in build.rails and net != pole.common:
+                    fed.setdefault(net, (part.name, pole.common))
+                    if cfg is None or cfg.position(part.name) == position:
+                        chosen.add(net)
+    dead = set(fed) - chosen
+    grew = bool(dead)
+    while grew:  # a regulator on a dead rail makes nothing
+        off = {d.name for d in build.devices.values() if d.rail in dead}
+        more = {n for n, r in build.rails.items() if r.source in off} - dead
+        dead |= more
+        grew = bool(more)
+    return fed, dead
 
 
 # ---- what the supply loses on its way to its rail --------------------------------------------

@@ -101,6 +101,8 @@ def fuse_size(build, ctx):
                    "supply rail states a quiescent current)", part.loc, level="note", stage="power")
         return
     ctx.publish("fuse", part.name, "normal current (budget at full output)", normal, "A")
+    if b.position:
+        ctx.publish("fuse", part.name, "worst switch position", b.position)
     if carries_rectifier_pulses(build, part):
         form = ctx.setting("pulse_form_factor", of="power.fuse-size")
         normal *= form  # the fuse heats on the RMS of the charging pulses
@@ -138,7 +140,8 @@ def fuse_size(build, ctx):
     fitted = part.current_rating.text
     if c["rerate"] < 1:
         fitted += f"; {fmt(carry, 'A')} at {fmt(c['ambient'], '°C')}"
-    assumed = f"the build's normal current of {fmt(normal, 'A')}, its budget at full output held continuously"
+    assumed = (f"the build's normal current of {fmt(normal, 'A')}{b.in_position}, its budget at full output "
+               "held continuously")
     if normal > FUSE_CARRY * carry:
         ctx.report(
             f"{part.name} ({fitted}) is far below {assumed}: that is {normal / carry:.0%} of its "

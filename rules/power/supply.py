@@ -42,6 +42,10 @@ def current_budget(build, ctx):
         ctx.publish("power", name, "full-output supply current", "not known (see power.heat)")
     if b.input is not None and b.totals:
         ctx.publish("power", "supply", "input current budget", b.input, "A")
+    if b.position:  # switch positions change what draws current: the budget is the worst one's
+        ctx.publish("power", "supply", "worst switch position", b.position)
+        for where, amps in b.by_position.items():
+            ctx.publish("power", "supply", f"input current budget with {where}", amps or 0.0, "A")
     for dev in b.no_rail:
         ctx.report(f"{dev.name} names no supply rail (devices.{dev.name}.rail); it is left out of the "
                    "current budget", dev.loc, level="note", stage="power")
@@ -73,7 +77,7 @@ def current_budget(build, ctx):
     values = [Value("input current budget", b.input, "A"), Value("supply max_current", limit, "A")]
     if b.input > limit:
         ctx.report(
-            f"the build draws {fmt(b.input, 'A')} at full output but the {supply.kind} supply "
+            f"the build draws {fmt(b.input, 'A')} at full output{b.in_position} but the {supply.kind} supply "
             f"delivers at most {supply.max_current.text}",
             supply.at("max_current"),
             values,
@@ -81,8 +85,9 @@ def current_budget(build, ctx):
         )
     elif b.input > share * limit:
         ctx.report(
-            f"the build draws {fmt(b.input, 'A')} at full output, {b.input / limit:.0%} of the "
-            f"{supply.max_current.text} the supply delivers (keep under {share:.0%})",
+            f"the build draws {fmt(b.input, 'A')} at full output{b.in_position}, "
+            f"{b.input / limit:.0%} of the {supply.max_current.text} the supply delivers "
+            f"(keep under {share:.0%})",
             supply.at("max_current"),
             values,
             level="warning",
