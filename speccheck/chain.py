@@ -46,6 +46,23 @@ class Band:
         return self.low <= f <= self.high
 
 
+@dataclass(frozen=True)
+class Passband:
+    """A path's passband with its centre and width both known (Hz): what a verdict that weighs
+    the signal against the edges reads, once `PathBand.passband()` has said there is one."""
+
+    center: float
+    width: float
+
+    @property
+    def low(self) -> float:
+        return self.center - self.width / 2
+
+    @property
+    def high(self) -> float:
+        return self.center + self.width / 2
+
+
 @dataclass
 class PathBand:
     name: str
@@ -62,13 +79,21 @@ class PathBand:
             return 0.0
         return self.shape.attenuation(f - self.center)
 
-    @property
-    def low(self):
-        return None if self.center is None or self.width is None else self.center - self.width / 2
+    def passband(self) -> Passband | None:
+        """The path's centre and width, when both are known; None for a path missing either."""
+        if self.center is None or self.width is None:
+            return None
+        return Passband(self.center, self.width)
 
     @property
-    def high(self):
-        return None if self.center is None or self.width is None else self.center + self.width / 2
+    def low(self) -> float | None:
+        band = self.passband()
+        return None if band is None else band.low
+
+    @property
+    def high(self) -> float | None:
+        band = self.passband()
+        return None if band is None else band.high
 
     def at(self):
         if self.part is not None and self.part.given("bandwidth"):

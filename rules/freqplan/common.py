@@ -57,15 +57,19 @@ def passed(sig, attenuation, offset: float = 0.0) -> float | None:
 
 def width_for(sig, make_shape, target: float, offset: float = 0.0) -> float | None:
     """The narrowest width of this class of response that passes `target` of the signal."""
-    need = necessary(sig)
-    if need is None or worst_tone(sig) is None:
+    need, tone = necessary(sig), worst_tone(sig)
+    if need is None or tone is None:
         return None
+
+    def share(width: float) -> float:
+        return fmspectrum.passed_share(tone[0], tone[1], make_shape(width).attenuation, offset)
+
     low, high = need[0] / 8, need[0] * 8
-    if passed(sig, make_shape(high).attenuation, offset) < target:
+    if share(high) < target:
         return None
     for _ in range(40):
         mid = math.sqrt(low * high)
-        if passed(sig, make_shape(mid).attenuation, offset) >= target:
+        if share(mid) >= target:
             high = mid
         else:
             low = mid
@@ -87,7 +91,9 @@ def share_text(share: float) -> str:
 
 
 def tone_text(sig) -> str:
-    dev, top = worst_tone(sig)
+    tone = worst_tone(sig)
+    assert tone is not None  # described only for a signal whose share was computed: an FM one
+    dev, top = tone
     return f"a {khz(top)} tone at the full ±{khz(dev)} deviation"
 
 

@@ -183,37 +183,40 @@ def filter_fit(build, ctx):
 
 def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels: dict) -> None:
     """filter-fit for one signal on one path (one configuration of the build)."""
+    band, f_if = pb.passband(), point.f
+    if band is None or f_if is None:  # filter_fit weighs only a path with a passband on a known IF
+        return
     owner_name = f"{pb.name} path"
-    sig_lo, sig_hi = point.f - point.unc - bn / 2, point.f + point.unc + bn / 2
-    margin = min(pb.high - sig_hi, sig_lo - pb.low)
+    sig_lo, sig_hi = f_if - point.unc - bn / 2, f_if + point.unc + bn / 2
+    margin = min(band.high - sig_hi, sig_lo - band.low)
     ctx.publish("if-filter", owner_name, f"margin for {sig.name} (worst case)", margin, "Hz")
     on_centre = passed(sig, pb.shape.attenuation, 0.0) if pb.shape else None
     conv = point.conversion
     cause = f"LO {hz(conv.lo)}" if conv is not None and conv.lo is not None else "the input"
-    spread = f"{hz(point.f)} ± {khz(point.unc)} ({cause}; {point.why})"
+    spread = f"{hz(f_if)} ± {khz(point.unc)} ({cause}; {point.why})"
     values = [
-        Value("IF (nominal)", point.f, "Hz"),
+        Value("IF (nominal)", f_if, "Hz"),
         Value("IF spread (±)", point.unc, "Hz"),
         Value("necessary bandwidth", bn, "Hz"),
-        Value("passband low", pb.low, "Hz"),
-        Value("passband high", pb.high, "Hz"),
+        Value("passband low", band.low, "Hz"),
+        Value("passband high", band.high, "Hz"),
         Value("margin", margin, "Hz"),
     ]
-    if on_centre is None:  # not FM: the necessary band against the passband edges
-        if bn > pb.width or margin >= 0:
+    if pb.shape is None or on_centre is None:  # not FM: the necessary band against the passband edges
+        if bn > band.width or margin >= 0:
             return
         level, what = (
             "error",
             (
                 f"the {khz(bn)} signal reaches {hz(sig_lo)} to {hz(sig_hi)}, {khz(-margin)} "
-                f"past the passband {hz(pb.low)} to {hz(pb.high)} ({pb.describe()})"
+                f"past the passband {hz(band.low)} to {hz(band.high)} ({pb.describe()})"
             ),
         )
-        fixable = bn + 2 * point.unc <= pb.width
+        fixable = bn + 2 * point.unc <= band.width
     else:
         worst = min(
-            passed(sig, pb.shape.attenuation, f - pb.center)
-            for f in (point.f - point.unc, point.f + point.unc)
+            passed(sig, pb.shape.attenuation, f - band.center)
+            for f in (f_if - point.unc, f_if + point.unc)
         )
         ctx.publish(
             "if-filter",

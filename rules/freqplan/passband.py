@@ -95,7 +95,9 @@ def image(build, ctx):
 
 
 def image_verdict(ctx, c: Conversion, img: float, band: Band, where, values: list) -> None:
-    rejection = band.attenuation(img) - band.attenuation(c.f_in)
+    f_in = c.f_in
+    assert f_in is not None  # image() weighs only a conversion whose input frequency is known
+    rejection = band.attenuation(img) - band.attenuation(f_in)
     ctx.publish("conversion", c.owner, "image rejection ahead of the mixer", round(rejection, 1), "dB")
     if not band.holds(img):
         outside = min(abs(img - band.low), abs(img - band.high))
@@ -114,7 +116,7 @@ def image_verdict(ctx, c: Conversion, img: float, band: Band, where, values: lis
     where_it = f"lies inside {band.what}" if band.holds(img) else f"lies outside {band.what}"
     ctx.report(
         f"{c.owner}: the image at {hz(img)} {where_it}, which rejects it by only {rejection:.1f} dB"
-        f"{assumed}: a signal there lands on the IF with the wanted {hz(c.f_in)}",
+        f"{assumed}: a signal there lands on the IF with the wanted {hz(f_in)}",
         where,
         values,
         level="warning" if rejection < warn else "note",
@@ -212,12 +214,14 @@ def path_width(build, ctx):
 
 def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
     """path-width for one signal on one path (one configuration of the build)."""
+    width = pb.width
+    assert width is not None  # path_width weighs only a path whose width is known
     bn, _, designator = need
     levels = share_settings(ctx)
     factor = setting(ctx, "wide_factor")
     des = f" ({designator})" if designator else ""
     where = sig.at("path")
-    values = [Value("necessary bandwidth", bn, "Hz"), Value("path bandwidth", pb.width, "Hz")]
+    values = [Value("necessary bandwidth", bn, "Hz"), Value("path bandwidth", width, "Hz")]
     offset = 0.0  # the width question, on the filter's centre; freqplan.filter-fit weighs the offset
     share = passed(sig, pb.shape.attenuation, offset) if pb.shape else None
     owner_name = f"{pb.name} path"
@@ -230,36 +234,36 @@ def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
             round(acr, 1),
             "dB",
         )
-    if share is None:  # not FM: the necessary bandwidth against the path's stated width
-        if pb.width < bn:
+    if pb.shape is None or share is None:  # not FM: the necessary bandwidth against the path's stated width
+        if width < bn:
             others = [p for p in point.paths.values() if p.width is not None and p.width >= bn]
             hint = f"; the {others[0].name} path ({khz(others[0].width)}) would pass it" if others else ""
             ctx.report(
-                f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(pb.width)} "
+                f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(width)} "
                 f"({pb.describe()}){hint}",
                 where,
                 values,
                 stage=point.stage.label,
                 fix=f"Set the signal's path to {others[0].name}." if others else None,
             )
-        elif pb.width > factor * bn:
+        elif width > factor * bn:
             _too_wide(ctx, sig, pb, bn, des, factor, where, values, point)
         return
     ctx.publish("if-filter", owner_name, f"share of {sig.name} passed", round(share * 100, 2), "%")
     level = share_level(share, levels)
     if level is None:
-        if pb.width > factor * bn:
+        if width > factor * bn:
             _too_wide(ctx, sig, pb, bn, des, factor, where, values, point)
         return
     values += [Value("share passed", share * 100, "%"), Value("loss", fmspectrum.loss_db(share), "dB")]
     shape = pb.shape.what
     head = (
-        f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(pb.width)} "
+        f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(width)} "
         f"({pb.describe()}; {shape}): {share_text(share)} of the power of {tone_text(sig)}"
     )
     if level == "note":
         ctx.report(
-            f"the {pb.name} path ({khz(pb.width)}, {shape}) passes {share_text(share)} of the power "
+            f"the {pb.name} path ({khz(width)}, {shape}) passes {share_text(share)} of the power "
             f"of {tone_text(sig)} for {sig.name} ({khz(bn)}{des}): only the outermost sidebands of "
             "the highest tones are trimmed; usual practice, no change needed",
             where,
@@ -367,7 +371,7 @@ def upstream_one(ctx, src, sig, need: tuple) -> None:
     values = [Value("upstream bandwidth", bw, "Hz"), Value("necessary bandwidth", bn, "Hz")]
     shape = source_shape(src)
     share = passed(sig, shape.attenuation) if shape is not None else None
-    if share is None:
+    if shape is None or share is None:
         if bw < bn:
             ctx.report(
                 f"the upstream bandwidth {khz(bw)} is narrower than the {khz(bn)}{des} that "

@@ -8,6 +8,7 @@ from speccheck import units
 from speccheck.chain import crystal_load, crystal_shift, frequency_plan, hz, khz, owner
 from speccheck.findings import Value
 from speccheck.formulas import resonators
+from speccheck.model import Part, Stage
 from speccheck.registry import rule
 from speccheck.rules.freqplan.common import pct, setting
 
@@ -28,10 +29,11 @@ def _range(part):
 
 @dataclass
 class TankFacts:
-    stage: object
-    coil: object
-    cap: object
-    damping: object
+    stage: Stage
+    coil: Part
+    cap: Part
+    damping: Part | None
+    inductance: float  # the coil's value (H): tank_facts returns facts only for a coil that has one
     f0: float
     f_low: float
     f_high: float
@@ -79,6 +81,7 @@ def tank_facts(build, stage, ctx=None):
         coil,
         cap,
         damping,
+        L,
         f0,
         resonators.resonance(l_hi, c_hi),
         resonators.resonance(l_lo, c_lo),
@@ -209,10 +212,10 @@ def tank_range(build, ctx):
         if not fm:
             continue
         for sig in fm:
-            range_one(ctx, t, who, sig, linear, named=len(fm) > 1)
+            range_one(ctx, t, who, sig, t.q, linear, named=len(fm) > 1)
 
 
-def range_one(ctx, t: TankFacts, who: str, sig, linear: float, named: bool) -> None:
+def range_one(ctx, t: TankFacts, who: str, sig, q: float, linear: float, named: bool) -> None:
     """tank-range for one signal (one configuration of the build). The tank is tuned to the nominal
     IF; the IF may sit anywhere within ±drift of it and swings ±deviation about that, so the
     linear range, centred on f0, must span 2·(deviation + drift)."""
@@ -225,15 +228,15 @@ def range_one(ctx, t: TankFacts, who: str, sig, linear: float, named: bool) -> N
     if linear >= need:
         return
     where = t.damping.at("value") if t.damping is not None else t.coil.at("value")
-    rp_max = q_max * resonators.TWO_PI * t.f0 * t.coil.value.si
+    rp_max = q_max * resonators.TWO_PI * t.f0 * t.inductance
     ctx.report(
-        f"the tank's loaded Q of {t.q:.3g} gives a linear range of {khz(linear)} (f0/Q), less than "
+        f"the tank's loaded Q of {q:.3g} gives a linear range of {khz(linear)} (f0/Q), less than "
         f"the {khz(need)} that {sig.name} swings (2 × ({khz(dev)} deviation + {khz(t.if_unc)} "
         f"drift)): peaks will distort; a Q of {q_max:.3g} or less would pass it, at less recovered "
         f"audio",
         where,
         [
-            Value("loaded Q", round(t.q, 3)),
+            Value("loaded Q", round(q, 3)),
             Value("linear range", linear, "Hz"),
             Value("needed", need, "Hz"),
             Value("highest Q", round(q_max, 3)),
