@@ -2,6 +2,7 @@
 
     nice .venv/bin/python tests/mutation.py formulas        # or power, freqplan, audio, mains, ...
     nice .venv/bin/python tests/mutation.py formulas --report-only
+    nice .venv/bin/python tests/mutation.py formulas:preferred     # one module of the area
 
 Copies the tree into .mutation/<area>/ with a [tool.mutmut] section scoped to that area (the
 modules to change and the tests that pin them), runs mutmut there (one change at a time: an
@@ -59,9 +60,19 @@ def _toml_list(items: list[str]) -> str:
     return "[" + ", ".join(json.dumps(i) for i in items) + "]"
 
 
+def scoped(area: str) -> tuple[list[str], list[str]]:
+    """`formulas:preferred` is the formulas area with only speccheck/formulas/preferred.py changed
+    (same tests): one module at a time, for a short run."""
+    base, _, module = area.partition(":")
+    mutate, tests = AREAS[base]
+    if module:
+        mutate = [m.replace("*", f"{module}.py") for m in mutate if m.endswith("/*")]
+    return mutate, tests
+
+
 def prepare(area: str) -> Path:
-    mutate, tests = AREAS[area]
-    work = ROOT / ".mutation" / area
+    mutate, tests = scoped(area)
+    work = ROOT / ".mutation" / area.replace(":", "-")
     if work.exists():
         shutil.rmtree(work)
     work.mkdir(parents=True)
@@ -108,10 +119,10 @@ def report(work: Path) -> dict[str, int]:
 
 def main(argv: list[str]) -> int:
     area = argv[0] if argv else "formulas"
-    if area not in AREAS:
-        print(f"areas: {', '.join(AREAS)}")
+    if area.partition(":")[0] not in AREAS:
+        print(f"areas: {', '.join(AREAS)} (AREA:module scopes to one module, e.g. formulas:preferred)")
         return 2
-    work = ROOT / ".mutation" / area
+    work = ROOT / ".mutation" / area.replace(":", "-")
     if "--report-only" not in argv:
         work = prepare(area)
         subprocess.run([sys.executable, "-m", "mutmut", "run", "--max-children", "2"], cwd=work)

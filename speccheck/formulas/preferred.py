@@ -71,9 +71,6 @@ def r10_up(amps: float) -> float:
     if not amps or amps <= 0 or not math.isfinite(amps):
         raise ValueError("a rating must be a positive number")
     decade = math.floor(math.log10(amps))
-    for d in (decade - 1, decade, decade + 1):
-        for step in R10:
-            value = float(f"{step * 10.0 ** d:.6g}")
-            if value >= amps * (1 - 1e-9):
-                return value
-    return float(f"{10.0 ** (decade + 1):.6g}")  # not reached
+    # amps lies below 10^(decade+1), the next decade's first step, so the search always ends there
+    steps = (value for d in (decade, decade + 1) for value in _decade(d, R10))
+    return next(value for value in steps if value >= amps * (1 - 1e-9))
