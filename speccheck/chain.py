@@ -142,7 +142,7 @@ class FilterPoint:
     stage: Any
     f: float | None
     unc: float
-    paths: dict
+    paths: dict[str, PathBand]
     conversion: Conversion | None
     why: str = ""
 
@@ -332,7 +332,7 @@ def crystal_shift(build, osc, x) -> float | None:
     )
 
 
-def _paths(build, stage, default_center) -> dict:
+def _paths(build, stage, default_center) -> dict[str, PathBand]:
     out = {}
     for name, path in stage.paths.items():
         part = build.part(path.filter)
@@ -351,7 +351,7 @@ def _paths(build, stage, default_center) -> dict:
     return out
 
 
-def path_for(signal, paths: dict):
+def path_for(signal, paths: dict[str, PathBand]) -> PathBand | None:
     """The path of one if-filter stage that carries a signal: the one it names, or the only one."""
     if signal.path and signal.path in paths:
         return paths[signal.path]
@@ -360,7 +360,7 @@ def path_for(signal, paths: dict):
     return None
 
 
-def used_paths(build, paths: dict) -> list:
+def used_paths(build, paths: dict[str, PathBand]) -> list[PathBand]:
     """The paths the declared signals travel; all of them when no signal is declared."""
     if not build.signals:
         return list(paths.values())
@@ -400,15 +400,15 @@ def frequency_plan(build) -> Plan:
             plan.filters.append(point)
             if last is not None and last.filter is None:
                 last.filter = point
-            bands = [p for p in used_paths(build, point.paths) if p.low is not None]
+            bands = [(p, band) for p in used_paths(build, point.paths) if (band := p.passband()) is not None]
             if bands:
-                names = ", ".join(p.name for p in bands)
-                widest = max(bands, key=lambda p: p.width)  # the path that lets most through
+                names = ", ".join(p.name for p, _ in bands)
+                widest, wide = max(bands, key=lambda pb: pb[1].width)  # the path that lets most through
                 ahead = Band(
-                    min(p.low for p in bands),
-                    max(p.high for p in bands),
+                    min(band.low for _, band in bands),
+                    max(band.high for _, band in bands),
                     f"the IF path ({names})",
-                    [(widest.center, widest.shape)] if widest.shape else [],
+                    [(wide.center, widest.shape)] if widest.shape else [],
                 )
     plan.at["final"] = (f, unc)
     _PLANS[build] = plan

@@ -236,15 +236,18 @@ def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
         )
     if pb.shape is None or share is None:  # not FM: the necessary bandwidth against the path's stated width
         if width < bn:
-            others = [p for p in point.paths.values() if p.width is not None and p.width >= bn]
-            hint = f"; the {others[0].name} path ({khz(others[0].width)}) would pass it" if others else ""
+            wider = [(p.name, w) for p in point.paths.values() if (w := p.width) is not None and w >= bn]
+            hint, fix = "", None
+            if wider:
+                name, w = wider[0]
+                hint, fix = f"; the {name} path ({khz(w)}) would pass it", f"Set the signal's path to {name}."
             ctx.report(
                 f"{sig.name} needs {khz(bn)}{des} but the {pb.name} path passes only {khz(width)} "
                 f"({pb.describe()}){hint}",
                 where,
                 values,
                 stage=point.stage.label,
-                fix=f"Set the signal's path to {others[0].name}." if others else None,
+                fix=fix,
             )
         elif width > factor * bn:
             _too_wide(ctx, sig, pb, bn, des, factor, where, values, point)
@@ -276,16 +279,17 @@ def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
     # A builder's fix: another path that passes it without being far too wide, else the width needed.
     better = []
     for p in point.paths.values():
-        if p is pb or p.shape is None or p.center is None:
+        band = p.passband()
+        if p is pb or p.shape is None or band is None:
             continue
-        s = passed(sig, p.shape.attenuation, (point.f or p.center) - p.center)
-        if share_level(s, levels) in (None, "note") and (level == "error" or p.width <= factor * bn):
-            better.append((p, s))
+        s = passed(sig, p.shape.attenuation, (point.f or band.center) - band.center)
+        if share_level(s, levels) in (None, "note") and (level == "error" or band.width <= factor * bn):
+            better.append((p.name, band.width, s))
     need_width = width_for(sig, lambda w: response_shape(w, pb.path, pb.part), levels["note_share"], offset)
     if better:
-        p, s = max(better, key=lambda t: t[1])
-        hint = f"; the {p.name} path ({khz(p.width)}) would pass {share_text(s)} of it"
-        fix = f"Set the signal's path to {p.name}."
+        name, w, s = max(better, key=lambda t: t[2])
+        hint = f"; the {name} path ({khz(w)}) would pass {share_text(s)} of it"
+        fix = f"Set the signal's path to {name}."
     else:
         hint = ""
         fix = (
