@@ -340,3 +340,14 @@ def test_inverse_resonance_and_range_position():
     assert math.isinf(picks.damping_for(10e3, 10e3))
     assert picks.damping_for(10e3, math.inf) == 10e3
     assert picks.damping_for(10e3, 30e3) == pytest.approx(15e3)  # 1/10k − 1/30k = 1/15k
+
+
+def test_second_run_survivors():
+    # a half-hertz tone is a tone: Δf = 1 Hz at f_m = 0.5 Hz is β = 2, all its power through a flat filter
+    # (A&S 9.1.76, Σ J_n² = 1)
+    assert fmspectrum.passed_share(1.0, 0.5, lambda f: 0.0) == pytest.approx(1.0, abs=1e-6)
+    # a passband quoted at 0.5 dB (a ripple-band edge) is a passband: Williams & Taylor's order equation
+    expected = _order(1.0, 0.5, 2.0, 40.0)
+    assert shapes.butterworth_order(1.0, 0.5, 2.0, 40.0) == pytest.approx(expected, rel=1e-12)
+    # two E12 neighbours each side by default (IEC 60063 E12: 22, 27 | 33, 39 pF around 30 pF)
+    assert picks.preferred_around(30e-12, "E12") == [22e-12, 27e-12, 33e-12, 39e-12]
