@@ -6,6 +6,7 @@ never from the function under test."""
 from __future__ import annotations
 
 import math
+import random
 
 import pytest
 
@@ -351,3 +352,16 @@ def test_second_run_survivors():
     assert shapes.butterworth_order(1.0, 0.5, 2.0, 40.0) == pytest.approx(expected, rel=1e-12)
     # two E12 neighbours each side by default (IEC 60063 E12: 22, 27 | 33, 39 pF around 30 pF)
     assert picks.preferred_around(30e-12, "E12") == [22e-12, 27e-12, 33e-12, 39e-12]
+
+
+def test_nearest_preferred_agrees_with_a_search_of_every_decade():
+    # the definition (IEC 60063 values, nearest on a log scale) searched by brute force over 26 decades
+    rng = random.Random(60063)
+    for _ in range(500):
+        value = 10 ** rng.uniform(-14, 7)
+        for series in (preferred.E12, preferred.E24, preferred.E96):
+            every = [float(f"{m * 10.0 ** d:.6g}") for d in range(-16, 10) for m in series]
+            best = min(abs(math.log(c / value)) for c in every)
+            pick, error = preferred.nearest_preferred(value, series)
+            assert abs(math.log(pick / value)) == pytest.approx(best, abs=1e-12)
+            assert error == pytest.approx(pick / value - 1.0)

@@ -38,7 +38,8 @@ def nearest_preferred(value: float, series: tuple[float, ...] = E24) -> tuple[fl
         raise ValueError("a preferred value needs a positive number")
     decade = math.floor(math.log10(value))
     best = (math.inf, value)
-    for d in (decade - 1, decade, decade + 1):
+    # 10^decade (every series starts at 1.0) is at or below value, so no lower decade can be nearer
+    for d in (decade, decade + 1):
         for cand in _decade(d, series):
             dist = abs(math.log(cand / value))
             if dist < best[0]:
