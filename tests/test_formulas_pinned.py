@@ -103,6 +103,9 @@ def test_limiter_harmonic_at_the_edges():
     assert harmonics.limiter_harmonic(2, 0.0) == 0.0
     assert harmonics.limiter_harmonic_db(2, 0.0) == harmonics.FLOOR_DB
     assert harmonics.limiter_harmonic_db(3, 0.0) == pytest.approx(-20 * math.log10(3))  # −9.54 dB
+    # without an asymmetry given the limiter is symmetric: the square wave's 1/n
+    assert harmonics.limiter_harmonic(3) == pytest.approx(1 / 3)
+    assert harmonics.limiter_harmonic_db(3) == pytest.approx(-20 * math.log10(3))
 
 
 def test_limiter_harmonic_db_just_above_its_floor():
