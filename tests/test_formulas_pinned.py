@@ -10,7 +10,7 @@ import random
 
 import pytest
 
-from speccheck.formulas import battery, fmspectrum, harmonics, picks, preferred, shapes
+from speccheck.formulas import battery, dividers, fmspectrum, harmonics, picks, preferred, shapes
 
 # ---- preferred values (IEC 60063, IEC 60127-1 Annex A) ----------------------------------------
 
@@ -368,3 +368,32 @@ def test_nearest_preferred_agrees_with_a_search_of_every_decade():
             pick, error = preferred.nearest_preferred(value, series)
             assert abs(math.log(pick / value)) == pytest.approx(best, abs=1e-12)
             assert error == pytest.approx(pick / value - 1.0)
+
+
+# ---- dividers (Millman's theorem / nodal analysis; Thevenin's theorem, Horowitz & Hill ch. 1) ----
+
+
+def test_dividers_edges():
+    with pytest.raises(ValueError, match=r"^a node needs at least one source$"):
+        dividers.node_voltage([])
+    # a wiper cannot leave its track: past either end it sits at that end (V_b behind 0 ohm, V_a behind 0 ohm)
+    assert dividers.wiper_source(0.0, 6.0, 10e3, 1.5) == (6.0, 0.0)
+    assert dividers.wiper_source(0.0, 6.0, 10e3, -0.5) == (0.0, 0.0)
+    # a 1 ohm drive still divides: 6 V · 1 / (1 + 1 Mohm) (Schmitt trigger hysteresis, Horowitz & Hill ch. 4)
+    assert dividers.feedback_width(1.0, None, 1e6, 6.0) == pytest.approx(6.0 / (1 + 1e6), rel=1e-12)
+
+
+def test_knob_at_the_ends_of_its_track():
+    # 1 ohm from the wiper, 4 ohm feedback to an output at 6 V, track 0 V .. 6 V (numbers chosen exact in
+    # binary). Wiper at the 0 V end: Millman (0/1 + 6/4) / (1/1 + 1/4) = 1.2 V; at the 6 V end 6 V.
+    assert dividers.wiper_fraction_for(1.2, 0.0, 6.0, 10e3, 1.0, None, 4.0, 6.0) == 0.0
+    assert dividers.wiper_fraction_for(6.0, 0.0, 6.0, 10e3, 1.0, None, 4.0, 6.0) == pytest.approx(1.0)
+
+
+def test_knob_on_a_track_that_falls():
+    # track from 6 V down to 0 V, 100 kohm from the wiper, 2.2 Mohm to an output at 0 V: find x for 5.5 V and
+    # check it by hand: Thevenin 6 (1 − x) behind x (1 − x) 10 kohm, then Millman at the node
+    x = dividers.wiper_fraction_for(5.5, 6.0, 0.0, 10e3, 100e3, None, 2.2e6, 0.0)
+    assert x is not None and 0.0 < x < 1.0
+    v_w, r = 6.0 * (1 - x), x * (1 - x) * 10e3 + 100e3
+    assert (v_w / r) / (1 / r + 1 / 2.2e6) == pytest.approx(5.5, abs=1e-9)
