@@ -10,7 +10,7 @@ import random
 
 import pytest
 
-from speccheck.formulas import battery, dividers, fmspectrum, harmonics, picks, preferred, shapes
+from speccheck.formulas import amplifiers, battery, dividers, fmspectrum, harmonics, picks, preferred, shapes
 
 # ---- preferred values (IEC 60063, IEC 60127-1 Annex A) ----------------------------------------
 
@@ -397,3 +397,34 @@ def test_knob_on_a_track_that_falls():
     assert x is not None and 0.0 < x < 1.0
     v_w, r = 6.0 * (1 - x), x * (1 - x) * 10e3 + 100e3
     assert (v_w / r) / (1 / r + 1 / 2.2e6) == pytest.approx(5.5, abs=1e-9)
+
+
+# ---- class-B full output per rail (Boylestad & Nashelsky §12; RMS of rectified sines) ----------
+
+
+def test_full_output_currents_of_each_rail():
+    # half-wave of peak I_p: average I_p/π, RMS I_p/2; full-wave: 2·I_p/π, I_p/√2 (circuit theory)
+    bridge = amplifiers.class_b_full_output("bridge", 12.0, 8.0, saturation=3.0)
+    ip = 9.0 / 8.0  # 12 V − 3 V across 8 ohm
+    assert bridge == pytest.approx({"v_peak": 9.0, "i_peak": ip, "i_pos": 2 * ip / math.pi, "i_neg": 0.0,
+                                    "rms_pos": ip / math.sqrt(2), "rms_neg": 0.0,
+                                    "p_in": 12.0 * 2 * ip / math.pi, "p_out": 81.0 / 16.0})
+    split = amplifiers.class_b_full_output("split-supply", 15.0, 8.0, -15.0, saturation=4.0)
+    ip = 13.0 / 8.0  # 15 V − 4 V / 2 to the peak
+    assert split == pytest.approx({"v_peak": 13.0, "i_peak": ip, "i_pos": ip / math.pi, "i_neg": ip / math.pi,
+                                   "rms_pos": ip / 2, "rms_neg": ip / 2, "p_in": 30.0 * ip / math.pi,
+                                   "p_out": 169.0 / 16.0})
+    single = amplifiers.class_b_full_output("single-ended", 12.0, 8.0, saturation=3.0)
+    ip = 4.5 / 8.0  # (12 V − 3 V) / 2 to the peak
+    assert single == pytest.approx({"v_peak": 4.5, "i_peak": ip, "i_pos": ip / math.pi, "i_neg": 0.0,
+                                    "rms_pos": ip / 2, "rms_neg": 0.0, "p_in": 12.0 * ip / math.pi,
+                                    "p_out": 4.5 ** 2 / 16.0})
+
+
+def test_full_output_when_saturation_eats_the_supply():
+    # more saturation than supply leaves no swing at all (peak = max(0, V − V_sat)), never a negative one
+    assert amplifiers.class_b_full_output("bridge", 2.0, 8.0, saturation=3.0)["v_peak"] == 0.0
+    assert amplifiers.class_b_full_output("single-ended", 2.0, 8.0, saturation=5.0)["v_peak"] == 0.0
+    # a rated output of 0 W is no rating: the clipping limit stands, (12 − 3)/2 = 4.5 V peak
+    assert amplifiers.class_b_full_output("single-ended", 12.0, 8.0, saturation=3.0,
+                                          rated_output=0.0)["v_peak"] == pytest.approx(4.5)
