@@ -10,7 +10,17 @@ import random
 
 import pytest
 
-from speccheck.formulas import amplifiers, battery, dividers, fmspectrum, harmonics, picks, preferred, shapes
+from speccheck.formulas import (
+    amplifiers,
+    bandwidth,
+    battery,
+    dividers,
+    fmspectrum,
+    harmonics,
+    picks,
+    preferred,
+    shapes,
+)
 
 # ---- preferred values (IEC 60063, IEC 60127-1 Annex A) ----------------------------------------
 
@@ -428,3 +438,13 @@ def test_full_output_when_saturation_eats_the_supply():
     # a rated output of 0 W is no rating: the clipping limit stands, (12 − 3)/2 = 4.5 V peak
     assert amplifiers.class_b_full_output("single-ended", 12.0, 8.0, saturation=3.0,
                                           rated_output=0.0)["v_peak"] == pytest.approx(4.5)
+
+
+def test_bandwidth_designator_refusals():
+    # Radio Regulations Appendix 1: four characters, three figures and H, K, M or G; nothing above 999 GHz
+    for bad in (0.0, -1.0, math.inf, math.nan):
+        with pytest.raises(ValueError, match=r"^a bandwidth must be a positive number$"):
+            bandwidth.bandwidth_code(bad)
+    with pytest.raises(ValueError, match=r"^a bandwidth above 999 GHz has no designator$"):
+        bandwidth.bandwidth_code(1e13)
+    assert bandwidth.bandwidth_code(999e9) == "999G"
