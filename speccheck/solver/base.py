@@ -140,6 +140,18 @@ class Situation:
                 return stage
         return None
 
+    def rc_stage_for(self, finding: Finding, kind: str):
+        """The RC stage of `kind` a finding is about: the stage it points into, else the one whose
+        resistor or capacitor is the part it points into."""
+        stage = self.stage_for(finding)
+        if stage is not None:
+            return stage
+        part = self.part_for(finding)
+        for st in self.build.stages(kind):
+            if part in (self.build.part(st.resistor), self.build.part(st.capacitor)):
+                return st
+        return None
+
     def device_for(self, finding: Finding):
         for dev in self.build.devices.values():
             if within(finding.location.path, schema.dotted(dev.doc_path)):

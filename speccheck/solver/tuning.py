@@ -310,14 +310,7 @@ def _rc_options(s: Situation, stage, tau: float, what: str) -> list:
 
 @remedy("freqplan.de-emphasis")
 def de_emphasis(s: Situation, f: Finding) -> Proposal | None:
-    stage = s.stage_for(f) or next(
-        (
-            st
-            for st in s.build.stages("de-emphasis")
-            if s.part_for(f) in (s.build.part(st.resistor), s.build.part(st.capacitor))
-        ),
-        None,
-    )
+    stage = s.rc_stage_for(f, "de-emphasis")
     want = number(f, "wanted")
     if stage is None or not want:
         return None
@@ -342,14 +335,7 @@ def de_emphasis(s: Situation, f: Finding) -> Proposal | None:
 
 @remedy("freqplan.audio-corner")
 def audio_corner(s: Situation, f: Finding) -> Proposal | None:
-    stage = s.stage_for(f) or next(
-        (
-            st
-            for st in s.build.stages("audio-filter")
-            if s.part_for(f) in (s.build.part(st.resistor), s.build.part(st.capacitor))
-        ),
-        None,
-    )
+    stage = s.rc_stage_for(f, "audio-filter")
     top = number(f, "highest audio")
     if stage is None or not top or stage.resistor is None:
         return None
