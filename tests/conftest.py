@@ -40,3 +40,33 @@ def edited(text: str, old: str, new: str) -> str:
 @pytest.fixture
 def clean_text() -> str:
     return CLEAN.read_text("utf-8")
+
+
+def facts(finding) -> dict:
+    """Everything a finding promises, in one comparable dict: a family test that asserts this whole
+    dict pins the rule's level, place, text and numbers at once (values as {name: (value, unit)})."""
+    return {
+        "rule": finding.rule,
+        "level": finding.level,
+        "line": finding.location.line,
+        "col": finding.location.col,
+        "path": finding.location.path,
+        "message": finding.message,
+        "values": {v.name: (v.value, v.unit) for v in finding.values},
+        "fix": finding.fix,
+        "stage": finding.stage,
+        "signal": finding.signal,
+        "position": finding.position,
+    }
+
+
+def sheet_of(result, rule: str) -> dict:
+    """The sheet entries a rule published, as {name: (value, unit)} (owner and section kept apart
+    by sheet_rows)."""
+    return {e.value.name: (e.value.value, e.value.unit) for e in result.sheet if e.rule == rule}
+
+
+def sheet_rows(result, rule: str) -> list[tuple]:
+    """Every sheet entry of a rule as (section, owner, name, value, unit, signal, position)."""
+    return [(e.section, e.owner, e.value.name, e.value.value, e.value.unit, e.signal, e.position)
+            for e in result.sheet if e.rule == rule]
