@@ -1,6 +1,7 @@
 """Mutation runs, one area at a time (DEVELOPERS.md, "Mutation runs").
 
-    nice .venv/bin/python tests/mutation.py formulas        # or power, freqplan, audio, mains, ...
+    nice .venv/bin/python tests/mutation.py formulas    # or power, freqplan, rfpath, audio, mains,
+    #                                                     wiring, battery, squelch, tap, connect
     nice .venv/bin/python tests/mutation.py formulas --report-only
     nice .venv/bin/python tests/mutation.py formulas:preferred     # one module of the area
 
@@ -23,15 +24,19 @@ ROOT = Path(__file__).resolve().parent.parent
 AREAS: dict[str, tuple[list[str], list[str]]] = {  # area -> (modules to mutate, tests that pin them)
     "formulas": (["speccheck/formulas/*"],
                  ["tests/test_formulas_*.py", "tests/test_chain.py", "tests/test_solver.py"]),
-    "power": (["rules/power/*"], ["tests/test_power.py", "tests/test_inrush_source.py"]),
+    # a rule family against its own test files (tests/test_<family>*.py), so the figure says how
+    # well those pin it
+    "power": (["rules/power/*"], ["tests/test_power*.py", "tests/test_inrush_source.py"]),
     "freqplan": (["rules/freqplan/*", "speccheck/loads.py"],
-                 ["tests/test_freqplan.py", "tests/test_chain.py"]),
-    "rfpath": (["rules/rfpath.py"], ["tests/test_rfpath.py"]),
-    "audio": (["rules/audio.py"], ["tests/test_audio.py"]),
-    "mains": (["rules/mains.py"], ["tests/test_mains.py"]),
-    "wiring": (["rules/wiring.py"], ["tests/test_wiring.py"]),
-    "v2": (["rules/battery.py", "rules/squelch.py", "rules/tap.py", "rules/connect.py"],
-           ["tests/test_v2_rules.py"]),
+                 ["tests/test_freqplan*.py", "tests/test_chain.py"]),
+    "rfpath": (["rules/rfpath.py"], ["tests/test_rfpath*.py"]),
+    "audio": (["rules/audio.py"], ["tests/test_audio*.py"]),
+    "mains": (["rules/mains.py"], ["tests/test_mains*.py"]),
+    "wiring": (["rules/wiring.py"], ["tests/test_wiring*.py"]),
+    "battery": (["rules/battery.py"], ["tests/test_v2_rules.py", "tests/test_battery*.py"]),
+    "squelch": (["rules/squelch.py"], ["tests/test_v2_rules.py", "tests/test_squelch*.py"]),
+    "tap": (["rules/tap.py"], ["tests/test_v2_rules.py", "tests/test_tap*.py"]),
+    "connect": (["rules/connect.py"], ["tests/test_v2_rules.py", "tests/test_connect*.py"]),
 }
 
 
