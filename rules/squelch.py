@@ -95,6 +95,7 @@ def network(build, stage):
     fb = feedback(build, stage)
     if fb is not None and fb.usable:
         # the hysteresis resistor loads the pin: lowest with the output low, highest with it high
+        assert fb.levels is not None  # usable: the levels are known
         r_f, (out_lo, out_hi) = _value(fb.part), fb.levels
         lo = feedback_thresholds(lo, r_se, r_sh, r_f, out_lo, out_hi)[0]
         hi = feedback_thresholds(hi, r_se, r_sh, r_f, out_lo, out_hi)[1]

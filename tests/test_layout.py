@@ -23,13 +23,24 @@ def _modules() -> dict[str, Path]:
     return mods
 
 
+def _absolute(node: ast.ImportFrom, path: Path, mods: dict) -> str:
+    """The module an import names, relative imports (`from .common import x`) resolved."""
+    if node.level == 0:
+        return node.module or ""
+    here = next(name for name, p in mods.items() if p == path).split(".")
+    package = here if path.name == "__init__.py" else here[:-1]
+    base = package[: len(package) - (node.level - 1)]
+    return ".".join(base + ([node.module] if node.module else []))
+
+
 def _imports(path: Path, mods: dict) -> set[str]:
     out = set()
     for node in ast.walk(ast.parse(path.read_text("utf-8"))):
-        if isinstance(node, ast.ImportFrom) and node.module and node.level == 0:
+        if isinstance(node, ast.ImportFrom):
+            module = _absolute(node, path, mods)
             for alias in node.names:
-                full = f"{node.module}.{alias.name}"
-                out.add(full if full in mods else node.module)
+                full = f"{module}.{alias.name}"
+                out.add(full if full in mods else module)
         elif isinstance(node, ast.Import):
             out.update(alias.name for alias in node.names)
     return out

@@ -7,7 +7,8 @@ from speccheck.chain import khz, owner, part_value
 from speccheck.findings import Value
 from speccheck.formulas import audio
 from speccheck.registry import rule
-from speccheck.rules.freqplan.common import setting
+
+from .common import setting
 
 
 def _rc(build, stage):

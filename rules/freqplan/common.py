@@ -55,6 +55,14 @@ def passed(sig, attenuation, offset: float = 0.0) -> float | None:
     return fmspectrum.passed_share(tone[0], tone[1], attenuation, offset)
 
 
+def passed_fm(sig, attenuation, offset: float = 0.0) -> float:
+    """passed() for a signal whose share is already known to be computable (an FM signal with its
+    deviation and highest tone): the same number, never None."""
+    share = passed(sig, attenuation, offset)
+    assert share is not None
+    return share
+
+
 def width_for(sig, make_shape, target: float, offset: float = 0.0) -> float | None:
     """The narrowest width of this class of response that passes `target` of the signal."""
     need, tone = necessary(sig), worst_tone(sig)

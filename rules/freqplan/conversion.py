@@ -15,10 +15,12 @@ from speccheck.chain import (
 from speccheck.findings import Value
 from speccheck.formulas import mixing
 from speccheck.registry import rule
-from speccheck.rules.freqplan.common import (
+
+from .common import (
     SHARE_LEVELS,
     missing_note,
     passed,
+    passed_fm,
     share_level,
     share_settings,
     share_text,
@@ -202,6 +204,7 @@ def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels
         Value("passband high", band.high, "Hz"),
         Value("margin", margin, "Hz"),
     ]
+    level: str | None  # None: no finding
     if pb.shape is None or on_centre is None:  # not FM: the necessary band against the passband edges
         if bn > band.width or margin >= 0:
             return
@@ -215,7 +218,7 @@ def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels
         fixable = bn + 2 * point.unc <= band.width
     else:
         worst = min(
-            passed(sig, pb.shape.attenuation, f - band.center)
+            passed_fm(sig, pb.shape.attenuation, f - band.center)
             for f in (f_if - point.unc, f_if + point.unc)
         )
         ctx.publish(
@@ -240,7 +243,7 @@ def fit_one(ctx, build, sig, bn: float, point: FilterPoint, pb: PathBand, levels
             f"the {pb.name} path ({pb.describe()}; {pb.shape.what}) passes {share_text(worst)} of the "
             f"power of {tone_text(sig)} there, against {share_text(on_centre)} on its centre"
         )
-        spread_only = min(passed(sig, pb.shape.attenuation, u) for u in (-point.unc, point.unc))
+        spread_only = min(passed_fm(sig, pb.shape.attenuation, u) for u in (-point.unc, point.unc))
         fixable = rank[share_level(spread_only, levels)] < 2  # centring the IF would clear it
     # The offset is the cause when the signal fits on the filter's centre: point at what sets
     # the frequency (the crystal, the LO); otherwise at the filter.

@@ -19,9 +19,11 @@ from speccheck.chain import (
 from speccheck.findings import Value
 from speccheck.formulas import fmspectrum, mixing, shapes
 from speccheck.registry import rule
-from speccheck.rules.freqplan.common import (
+
+from .common import (
     SHARE_LEVELS,
     passed,
+    passed_fm,
     setting,
     share_level,
     share_settings,
@@ -190,13 +192,14 @@ def path_width(build, ctx):
                 )
             continue
         bn, carson, designator = need
-        if carson is not None:
+        tone = worst_tone(sig)
+        if carson is not None and tone is not None:  # an FM signal: Carson's rule needs its tone
             ctx.publish("signals", sig.name, "Carson bandwidth", carson, "Hz")
             ctx.publish(
                 "signals",
                 sig.name,
                 "power inside Carson's band (worst tone)",
-                round(fmspectrum.carson_share(*worst_tone(sig)) * 100, 2),
+                round(fmspectrum.carson_share(*tone) * 100, 2),
                 "%",
             )
         ctx.publish("signals", sig.name, "necessary bandwidth (ITU-R SM.1138)", bn, "Hz")
@@ -282,7 +285,7 @@ def width_one(ctx, sig, need: tuple, point: FilterPoint, pb: PathBand) -> None:
         band = p.passband()
         if p is pb or p.shape is None or band is None:
             continue
-        s = passed(sig, p.shape.attenuation, (point.f or band.center) - band.center)
+        s = passed_fm(sig, p.shape.attenuation, (point.f or band.center) - band.center)
         if share_level(s, levels) in (None, "note") and (level == "error" or band.width <= factor * bn):
             better.append((p.name, band.width, s))
     need_width = width_for(sig, lambda w: response_shape(w, pb.path, pb.part), levels["note_share"], offset)

@@ -10,7 +10,8 @@ from speccheck.findings import Value
 from speccheck.formulas import resonators
 from speccheck.model import Part, Stage
 from speccheck.registry import rule
-from speccheck.rules.freqplan.common import pct, setting
+
+from .common import pct, setting
 
 
 def _range(part):

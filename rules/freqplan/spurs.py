@@ -9,7 +9,8 @@ from speccheck.chain import Band, Conversion, frequency_plan, hz, khz, used_path
 from speccheck.findings import Value
 from speccheck.formulas import harmonics, mixing
 from speccheck.registry import rule
-from speccheck.rules.freqplan.common import setting
+
+from .common import setting
 
 
 def _spur_name(m: int, k: int, s: int) -> str:

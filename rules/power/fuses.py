@@ -15,8 +15,9 @@ from speccheck.formulas.fuses import (
 )
 from speccheck.formulas.preferred import r10_up
 from speccheck.registry import rule
-from speccheck.rules.power.source import inrush_source, short_current
 from speccheck.units import fmt
+
+from .source import inrush_source, short_current
 
 
 def carries_rectifier_pulses(build, fuse) -> bool:
@@ -288,8 +289,9 @@ def fuse_inrush(build, ctx):
     if ohms <= 0 or volts <= 0:
         return
     peak, tau, i2t = inrush(volts, farads, ohms)
-    limited = source.limit is not None and source.limit < peak
-    if limited:
+    limited = False
+    if source.limit is not None and source.limit < peak:
+        limited = True
         peak, i2t = limited_inrush(volts, farads, source.limit, ohms)
     source_text = source.how + "".join(f" plus {p.name}" for p in series)
     owner = fuse.name if fuse is not None else "supply input"

@@ -6,8 +6,9 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from speccheck.rules.battery import cell_count, internal_resistance
 from speccheck.units import fmt
+
+from ..battery import cell_count, internal_resistance
 
 
 def short_current(build, volts: float, ohms: float) -> tuple:
