@@ -214,8 +214,9 @@ def end_of_life(build, ctx):
     ctx.publish("power", "battery", "end voltage under load", p.end_loaded, "V")
     for dev, what, need, loc in needs(build):
         if p.end_loaded < need <= p.fresh_loaded:
-            window = p.fresh_loaded - p.end_loaded
-            used = (p.fresh_loaded - need) / window if window > 0 else 0.0
+            # the share of the window between fresh and flat (under load) left unused; the test
+            # above makes the window positive
+            used = (p.fresh_loaded - need) / (p.fresh_loaded - p.end_loaded)
             ctx.publish("power", dev.name, "stops when the battery falls to (under load)", need, "V")
             ctx.report(
                 f"{dev.name} needs {fmt(need, 'V')} ({what}), so the build stops when the battery "
