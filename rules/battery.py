@@ -27,7 +27,7 @@ class Pack:
     resistance_typical: bool
     current: float  # A, the budget's supply input
     complete: bool  # False when the budget is only a lower bound
-    position: str = ""  # the switch positions that draw most, when positions change the budget
+    position: str  # the switch positions that draw most, when positions change the budget ("" if not)
 
     @property
     def fresh_loaded(self) -> float:
@@ -51,9 +51,10 @@ def internal_resistance(build) -> tuple[float, bool] | None:
     """(ohms, typical) of a described battery: its stated internal resistance, else the
     chemistry's typical figure per cell times the cells in series (from memory)."""
     count = cell_count(build)
-    if count is None:
-        return None
-    bat = build.supply.battery
+    return None if count is None else _resistance(build.supply.battery, count)
+
+
+def _resistance(bat, count: int) -> tuple[float, bool]:
     if bat.internal_resistance is not None:
         return bat.internal_resistance.si, False
     return cells.pack(cells.CHEMISTRY[bat.chemistry].resistance, count), True
@@ -61,16 +62,14 @@ def internal_resistance(build) -> tuple[float, bool] | None:
 
 def pack(build) -> Pack | None:
     count = cell_count(build)
-    found = internal_resistance(build)
-    if count is None or found is None:
+    if count is None:
         return None
-    supply = build.supply
-    bat = supply.battery
+    bat = build.supply.battery
     chem = cells.CHEMISTRY[bat.chemistry]
     b = budget(build)
     if b.input is None:
         return None
-    r, typical = found
+    r, typical = _resistance(bat, count)
     end = bat.end_voltage.si if bat.end_voltage is not None else cells.pack(chem.end, count)
     return Pack(bat.chemistry, count, cells.pack(chem.fresh, count), cells.pack(chem.nominal, count), end, r,
                 typical, b.input, b.complete, b.position)
@@ -103,11 +102,6 @@ def needs(build) -> list:
         elif prof.supply_min is not None:
             out.append((dev, f"its {prof.supply_min.text} least supply", prof.supply_min.si, dev.at("rail")))
     return out
-
-
-def _where(build):
-    bat = build.supply.battery
-    return bat.at("chemistry") if bat is not None else build.supply.at("kind")
 
 
 def _r_text(p: Pack) -> str:
@@ -180,7 +174,7 @@ def sag(build, ctx):
             f"the {p.chemistry} battery sags {fmt(drop, 'V')} ({drop / p.nominal:.0%} of its "
             f"{fmt(p.nominal, 'V')}) at the budget current of {fmt(p.current, 'A')} through "
             f"{_r_text(p)}{_lower_bound(p)}",
-            _where(build),
+            build.supply.battery.at("chemistry"),
             values,
             stage="power",
         )

@@ -440,3 +440,69 @@ def test_every_chip_on_the_battery_above_its_limit_is_named():
     found = [facts(f) for f in of(check(text, "portable.yaml"), "battery.end-of-life") if f.level == "error"]
     assert found == [over_max(text, "U1", 8, 8.0, at(text, "  U1: {profile", "V9", "devices.U1.rail")),
                      over_max(text, "U2", 8, 12.0, u2_rail(text))]
+
+
+# ---- what a device on the battery needs -----------------------------------------------------------
+
+REGULATORS = (
+    "profiles:\n"
+    "  reg-5v:\n"
+    "    class: linear-regulator\n"
+    "    description: a 5 V regulator\n"
+    "    output_voltage: 5 V\n"
+    "    dropout: 1 V\n"
+    "    quiescent_current: 2 mA\n"
+    "    pins:\n"
+    "      in: {role: input, dc: supply}\n"
+    "      gnd: {role: ground, dc: ground}\n"
+    "  reg-bare:\n"
+    "    class: linear-regulator\n"
+    "    description: a regulator stating no dropout\n"
+    "    output_voltage: 5 V\n"
+    "    quiescent_current: 1 mA\n"
+    "    pins:\n"
+    "      in: {role: input, dc: supply}\n"
+    "      gnd: {role: ground, dc: ground}\n"
+    "  reg-open:\n"
+    "    class: linear-regulator\n"
+    "    description: a regulator stating no output voltage\n"
+    "    dropout: 1 V\n"
+    "    quiescent_current: 1 mA\n"
+    "    pins:\n"
+    "      in: {role: input, dc: supply}\n"
+    "      gnd: {role: ground, dc: ground}\n\n"
+)
+
+
+def test_a_regulator_with_no_output_rail_needs_its_profiles_output_plus_dropout():
+    # U8 (5 V out, 1 V dropout) on the battery and feeding no rail needs 6 V; U7 states no dropout and
+    # U6 no output voltage, so neither is judged. Their 2 + 1 + 1 mA add to the budget current.
+    text = edited(portable(), "\nsignals:\n", "\n" + REGULATORS + "signals:\n")
+    text = edited(text, "\nparts:\n", "\n  U7: {profile: reg-bare, rail: V9}\n"
+                                      "  U8: {profile: reg-5v, rail: V9}\n"
+                                      "  U6: {profile: reg-open, rail: V9}\nparts:\n")
+    current = CURRENT + 0.002 + 0.001 + 0.001
+    fresh_loaded = FRESH - current * R_TYPICAL
+    end_loaded = END - current * R_TYPICAL
+    found = [facts(f) for f in of(check(text, "portable.yaml"), "battery.end-of-life")]
+    assert [f["message"].split()[0] for f in found] == ["U3", "U8"]
+    used = (fresh_loaded - 6.0) / (fresh_loaded - end_loaded)
+    assert found[1] == finding(
+        "battery.end-of-life", "warning", at(text, "  U8: {profile", "V9", "devices.U8.rail"),
+        f"U8 needs {fmt(6.0, 'V')} (5 V out plus its 1 V dropout), so the build stops when the battery falls "
+        f"to {fmt(6.0, 'V')} under load, long before it is flat at {fmt(END, 'V')} (6 × {fmt(0.9, 'V')}): only "
+        f"{used:.0%} of the battery's voltage range is used",
+        approx_values({"needed": (6.0, "V"), "end voltage": (END, "V"),
+                       "fresh under load": (fresh_loaded, "V")}),
+        EOL_FIX)
+
+
+def test_a_single_cell_counted_from_the_voltage():
+    # 3.7 V over lithium-ion's 3.6 V nominal (IEC 61960) rounds to one cell, fresh at 4.2 V (from memory)
+    text = edited(portable(), "chemistry: alkaline\n    cells: 6                  # a 9 V block is six small "
+                              "cells in series\n", "chemistry: lithium-ion\n")
+    text = edited(text, "  voltage: 9 V\n  rail: V9", "  voltage: 3.7 V\n  rail: V9")
+    rows = sheet_rows(check(text, "portable.yaml"), "battery.sag")
+    assert rows[:3] == [("power", "battery", "cells in series", 1, "", "", ""),
+                        ("power", "battery", "nominal voltage", pytest.approx(3.6), "V", "", ""),
+                        ("power", "battery", "fresh open-circuit voltage", pytest.approx(4.2), "V", "", "")]
