@@ -490,8 +490,8 @@ def test_a_regulator_with_no_output_rail_needs_its_profiles_output_plus_dropout(
     assert found[1] == finding(
         "battery.end-of-life", "warning", at(text, "  U8: {profile", "V9", "devices.U8.rail"),
         f"U8 needs {fmt(6.0, 'V')} (5 V out plus its 1 V dropout), so the build stops when the battery falls "
-        f"to {fmt(6.0, 'V')} under load, long before it is flat at {fmt(END, 'V')} (6 × {fmt(0.9, 'V')}): only "
-        f"{used:.0%} of the battery's voltage range is used",
+        f"to {fmt(6.0, 'V')} under load, long before it is flat at {fmt(END, 'V')} (6 × {fmt(0.9, 'V')}): "
+        f"only {used:.0%} of the battery's voltage range is used",
         approx_values({"needed": (6.0, "V"), "end voltage": (END, "V"),
                        "fresh under load": (fresh_loaded, "V")}),
         EOL_FIX)
