@@ -75,13 +75,17 @@ def pack(build) -> Pack | None:
                 typical, b.input, b.complete, b.position)
 
 
+def direct(build) -> list:
+    """The devices fed straight from the battery: on the supply's rail, or on a rail `from: supply`."""
+    supply_rail = build.supply.rail
+    return [d for d in build.devices.values() if d.profile is not None and d.rail and
+            (d.rail == supply_rail or getattr(build.rails.get(d.rail), "source", None) == "supply")]
+
+
 def needs(build) -> list:
     """(device, what, volts it needs at its input, Location) for everything fed straight from the battery."""
-    supply_rail = build.supply.rail
-    direct = [d for d in build.devices.values() if d.profile is not None and d.rail and
-              (d.rail == supply_rail or getattr(build.rails.get(d.rail), "source", None) == "supply")]
     out = []
-    for dev in direct:
+    for dev in direct(build):
         prof = dev.profile
         if prof.cls == REGULATOR:
             outs = regulator_outputs(build, dev)
@@ -225,12 +229,9 @@ def end_of_life(build, ctx):
                 ],
                 stage="power",
             )
-    supply_rail = build.supply.rail
-    for dev in build.devices.values():
+    for dev in direct(build):
         prof = dev.profile
-        if prof is None or prof.supply_max is None or dev.rail != supply_rail:
-            continue
-        if p.fresh > prof.supply_max.si:
+        if prof.supply_max is not None and p.fresh > prof.supply_max.si:
             ctx.report(
                 f"a fresh {p.chemistry} battery reads {fmt(p.fresh, 'V')} ({p.count} × "
                 f"{fmt(p.fresh / p.count, 'V')}), above the {prof.supply_max.text} that {dev.name} "

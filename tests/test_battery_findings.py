@@ -506,3 +506,14 @@ def test_a_single_cell_counted_from_the_voltage():
     assert rows[:3] == [("power", "battery", "cells in series", 1, "", "", ""),
                         ("power", "battery", "nominal voltage", pytest.approx(3.6), "V", "", ""),
                         ("power", "battery", "fresh open-circuit voltage", pytest.approx(4.2), "V", "", "")]
+
+
+def test_without_supply_rail_the_rail_from_the_supply_is_the_battery():
+    # supply.rail is optional: V9 (`from: supply`) is then the battery's rail, and both the regulator's need
+    # and the amplifier's 12 V limit are judged as before (8 x 1.6 V = 12.8 V fresh, from memory)
+    text = edited(portable(), "    cells: 6 ", "    cells: 8 ")
+    text = edited(text, "  voltage: 9 V\n  rail: V9\n", "  voltage: 9 V\n")
+    found = [facts(f) for f in of(check(text, "portable.yaml"), "battery.end-of-life")]
+    assert [(f["level"], f["path"]) for f in found] == [("error", "devices.U2.rail"),
+                                                        ("warning", "devices.U3.rail")]
+    assert found[0] == over_max(text, "U2", 8, 12.0, u2_rail(text))
