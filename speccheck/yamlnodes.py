@@ -129,7 +129,9 @@ def _yaml():
     from ruamel.yaml.resolver import BaseResolver
     from ruamel.yaml.tag import Tag
 
-    tags = {ScalarNode: Tag(suffix=STR), SequenceNode: Tag(suffix="tag:yaml.org,2002:seq")}
+    global _IMPLICIT
+    _IMPLICIT = Tag(suffix=STR)  # the one tag object the resolver gives every untagged scalar
+    tags = {ScalarNode: _IMPLICIT, SequenceNode: Tag(suffix="tag:yaml.org,2002:seq")}
     mapping_tag = Tag(suffix="tag:yaml.org,2002:map")
 
     class PlainResolver(BaseResolver):
@@ -160,6 +162,7 @@ def _yaml():
 
 
 _ENGINE = None
+_IMPLICIT: object = None  # set by _yaml(): an explicit `!!str` carries another tag object
 
 
 def _engine():
@@ -182,8 +185,9 @@ _QUOTED = ("'", '"', "|", ">")
 
 
 def _scalar(node, doc: Document, path: Path):
-    text, tag = node.value, node.ctag.suffix  # ctag.suffix: plain attribute, node.tag is slow
-    if tag != STR or node.style in _QUOTED:
+    ctag = node.ctag
+    text, tag = node.value, ctag.suffix  # ctag.suffix: plain attribute, node.tag is slow
+    if tag != STR or node.style in _QUOTED or ctag is not _IMPLICIT:  # quoted or `!!str 3`: text
         return _tagged(node, doc, path) if tag != STR else text
     if text in _NULL:
         return None

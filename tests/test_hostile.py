@@ -369,6 +369,16 @@ def test_a_tagged_document_root_is_refused():
     assert found and found[0].location.line == 1
 
 
+
+def test_an_explicit_core_tag_is_honoured_like_quotes():
+    # YAML 1.2.2, section 10.3: `!!str 3` is the string "3", as '"3"' is; `!!int "7"` the integer 7;
+    # an untagged plain 3 resolves by the core schema to the integer
+    from speccheck import yamlnodes
+
+    doc = yamlnodes.parse('a: !!str 3\nb: 3\nc: "3"\nd: !!int "7"\ne: !!str true\nf: [1, !!str 2.5]\n')
+    assert doc.problems == []
+    assert doc.data == {"a": "3", "b": 3, "c": "3", "d": 7, "e": "true", "f": [1, "2.5"]}
+
 # ---- 7. supplies that mean nothing ----------------------------------------------------------
 
 
