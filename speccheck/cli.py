@@ -84,6 +84,11 @@ def _write(output: str, text: str, force: bool, protected, what: str):
         _trouble(f"{plain(output)} {exc}")
 
 
+def _parts_read(results) -> list[str]:
+    """The parts files the checked builds read: protected from every write, as the builds are."""
+    return [path for r in results for path in r.reads]
+
+
 def _force_option(fn):
     return click.option("--force", is_flag=True, help="Replace the output file if it exists.")(fn)
 
@@ -186,7 +191,7 @@ def check(paths, fmt, fail_level, output, config, no_config, skip, baseline, bui
         run.baseline = baseline
         run.hidden = baseline_mod.hide(results, known)
     color = fmt == "text" and output is None and sys.stdout.isatty()
-    protected = [*files, settings.source, baseline]
+    protected = [*files, settings.source, baseline, *_parts_read(results)]
     if output and (output.endswith(("/", "\\")) or os.path.isdir(output)):  # a folder: one page per build
         if fmt != "html":
             _trouble(f"{_plain(output)} is a folder; only --format html writes a folder (one page per build)")
@@ -248,7 +253,7 @@ def baseline_cmd(paths, output, config, no_config, force, jobs):
     if not output:
         _trouble("name the baseline file with -o FILE (or 'baseline:' in the project file)")
     text = baseline_mod.dumps(results, settings)
-    _write(output, text, force, [*files, settings.source], "baseline")
+    _write(output, text, force, [*files, settings.source, *_parts_read(results)], "baseline")
     count = sum(len(r.findings) for r in results)
     click.echo(
         f"speccheck: wrote {count} finding{'' if count == 1 else 's'} from {len(results)} "
@@ -320,7 +325,7 @@ def sheet(path, fmt, output, config, no_config, force):
     result = engine.check_file(path, settings)
     text = sheet_reporter.render(result, fmt, settings)
     if output:
-        _write(output, text, force, [path, settings.source], "sheet")
+        _write(output, text, force, [path, settings.source, *result.reads], "sheet")
     else:
         click.echo(text, nl=False)
     blocking = [f for f in result.findings if f.rule.startswith("input.")]

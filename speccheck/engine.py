@@ -27,6 +27,7 @@ class FileResult:
     build_name: str = ""
     parts: dict[str, str] = field(default_factory=dict)  # reference designator -> kind (or "device")
     chain: list[tuple[str, str]] = field(default_factory=list)  # (label, stage kind) in signal order
+    reads: list[str] = field(default_factory=list)  # other files the check read: its parts files
 
     def counts(self, include_waived: bool = False) -> dict[str, int]:
         out = {"error": 0, "warning": 0, "note": 0}
@@ -234,7 +235,7 @@ def _describe(build: Any, result: FileResult) -> None:
 
 
 def check_loaded(loaded: loader.Loaded, settings: Settings) -> FileResult:
-    result = FileResult(loaded.path, list(loaded.findings))
+    result = FileResult(loaded.path, list(loaded.findings), reads=list(loaded.reads))
     result.build_name = loaded.name
     if loaded.can_check:
         _describe(loaded.build, result)

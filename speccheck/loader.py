@@ -42,6 +42,7 @@ class Loaded:
     findings: list = field(default_factory=list)
     doc: yamlnodes.Document | None = None
     text: str = ""
+    reads: list = field(default_factory=list)  # other files it reads (its parts files), as paths
 
     @property
     def can_check(self) -> bool:
@@ -361,7 +362,7 @@ def load_text(text: str, file: str, base_dir: Path | None = None, root: str | Pa
         return result
     ctx = _Context(file, doc, findings)
     build = _build_obj(model.Build, doc.data, (), ctx, file=file)
-    build.profiles = _all_profiles(build, doc, file, findings, base_dir, root)
+    build.profiles = _all_profiles(build, doc, file, findings, base_dir, root, result.reads)
     references.check(build, ctx)
     if build.build_spec == 2:
         from speccheck import configs
@@ -394,7 +395,7 @@ def parts_root(base_dir: Path | None, root: str | Path | None) -> Path:
     return repo_root(here) or here
 
 
-def _all_profiles(build, doc, file: str, findings: list, base_dir: Path | None, root) -> dict:
+def _all_profiles(build, doc, file: str, findings: list, base_dir: Path | None, root, reads: list) -> dict:
     profiles = dict(builtin_profiles())
     if build.parts_files:
         root = parts_root(base_dir, root)
@@ -417,6 +418,7 @@ def _all_profiles(build, doc, file: str, findings: list, base_dir: Path | None, 
             )
             findings.extend(more)
             continue
+        reads.append(str(target))  # no report may be written onto it
         text = _read(target, more, file, at, shown, _PARTS_MARKER)
         if text is not None:
             pdoc, ok = _parse_file(text, str(target), "parts", more)

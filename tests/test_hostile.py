@@ -343,6 +343,19 @@ def test_a_write_that_fails_part_way_leaves_the_old_file_and_no_litter(tmp_path,
     assert sorted(p.name for p in tmp_path.iterdir()) == ["base.json"]
 
 
+
+@pytest.mark.parametrize("command", [["check", "builds/plan.yaml"], ["check", "--format", "json", "builds"],
+                                     ["baseline", "builds"], ["sheet", "builds/plan.yaml"]])
+def test_no_write_lands_on_a_parts_file_the_check_read(project, command):
+    parts = project / "builds" / "mine.yaml"
+    parts.write_text("parts_spec: 1\nprofiles:\n  my-amp:\n    class: audio-power-amp\n    pins: {in: {}}\n")
+    with_parts_files(project, "mine.yaml")
+    before = parts.read_bytes()
+    for extra in ([], ["--force"]):
+        res = run(*command, "-o", "builds/mine.yaml", *extra)
+        assert res.exit_code == 2 and "mine.yaml, which this run reads" in res.output
+    assert parts.read_bytes() == before
+
 def test_starter_follows_no_link_to_create_a_file(tmp_path, monkeypatch):
     monkeypatch.chdir(tmp_path)
     (tmp_path / "away").mkdir()
