@@ -10,6 +10,7 @@ import subprocess
 import sys
 from html.parser import HTMLParser
 
+import pytest
 from click.testing import CliRunner
 from conftest import CLEAN, EXAMPLES, ROOT, check, edited
 
@@ -117,6 +118,23 @@ def test_pictures_say_in_words_what_they_show_from_the_sheet():
     assert figures.hz(f0) in tank and "linear range" in tank
     assert "The signal chain in order:" in figs["chain"].alt
 
+
+
+def test_chain_blocks_fit_their_text():
+    # a passband names its unit once when both ends share it; a line too long for its block is set
+    # smaller (about 0.6 em a character, common practice), never below 5.5 pt; 'de-emphasis' is one word
+    assert figures._span(445e3, 465e3) == "445–465 kHz"
+    assert figures._span(995e3, 1.005e6) == "995 kHz–1.005 MHz"
+    block = 0.8 * 8.4 / 6 * 72  # six blocks across 8.4 inches, each 0.8 of its slot: 80.64 pt
+    assert figures._fitted("IF 455 kHz", 7.2, block) == 7.2  # 10 chars × 0.6 × 7.2 pt = 43.2 pt
+    long = "narrow 445 kHz–465 kHz"  # 22 × 0.6 × 7.2 = 95.04 pt: set at 7.2 × 0.92 × 80.64 / 95.04
+    assert figures._fitted(long, 7.2, block) == pytest.approx(7.2 * 0.92 * 80.64 / 95.04)
+    assert figures._fitted("x" * 200, 7.2, block) == 5.5
+    assert figures.stage_words("de-emphasis") == "de-emphasis"
+    assert figures.stage_words("if-filter") == "IF filter"
+    chain = next(f for f in figures.figures(engine.check_file(EXAMPLES / "bench-demod-selector.yaml"))
+                 if f.key == "chain")
+    assert "narrow 445–465 kHz" in chain.alt and "de-emphasis" in chain.alt
 
 def test_switched_build_draws_a_tank_per_position_and_says_for_which():
     # Format v2: the damping of the tank depends on the selector; the sheet says which signal and

@@ -88,11 +88,12 @@ def chain_blocks(chain: list, sheet: Sheet, worst: dict, key: str) -> Figure | N
                 lines.append(f"{_short(name)} {' / '.join(shown)}")
         if kind == "if-filter":
             for p in paths(sheet):
-                lines.append(f"{p.name.replace(' path', '')} {hz(p.low)}–{hz(p.high)}")
+                lines.append(f"{p.name.replace(' path', '')} {_span(p.low, p.high)}")
         heading = label if label != kind else stage_words(kind)
         blocks.append((heading, lines[:3], worst.get(label)))
     per_row = len(blocks) if len(blocks) <= 6 else (len(blocks) + 1) // 2
     rows = (len(blocks) + per_row - 1) // per_row
+    box_pt = 0.8 * CHAIN_WIDTH_IN / per_row * 72  # a block's width in points, for fitting its text
 
     def draw(fig):
         from matplotlib.patches import FancyBboxPatch, Rectangle
@@ -137,7 +138,7 @@ def chain_blocks(chain: list, sheet: Sheet, worst: dict, key: str) -> Figure | N
                 label,
                 ha="center",
                 va="center",
-                fontsize=9,
+                fontsize=_fitted(label, 9, box_pt, bold=True),
                 weight="bold",
                 bbox={"facecolor": "white", "edgecolor": "none", "pad": 1},
             )
@@ -148,7 +149,7 @@ def chain_blocks(chain: list, sheet: Sheet, worst: dict, key: str) -> Figure | N
                     line,
                     ha="center",
                     va="center",
-                    fontsize=7.2,
+                    fontsize=_fitted(line, 7.2, box_pt),
                     bbox={"facecolor": "white", "edgecolor": "none", "pad": 0.5},
                 )
             if level:
@@ -170,7 +171,7 @@ def chain_blocks(chain: list, sheet: Sheet, worst: dict, key: str) -> Figure | N
                     arrowprops={"arrowstyle": "-|>", "color": BLACK},
                 )
 
-    svg = svg_of(draw, key, (8.4, 1.5 * rows + 0.2))
+    svg = svg_of(draw, key, (CHAIN_WIDTH_IN, 1.5 * rows + 0.2))
     said = []
     for label, lines, level in blocks:
         part = label + (f" ({', '.join(lines)})" if lines else "")
@@ -180,8 +181,29 @@ def chain_blocks(chain: list, sheet: Sheet, worst: dict, key: str) -> Figure | N
     return Figure(key, "The signal chain", svg, "The signal chain in order: " + "; then ".join(said) + ".")
 
 
+CHAIN_WIDTH_IN = 8.4  # the chain picture's width in inches
+
+
+def _span(low: float, high: float) -> str:
+    """A passband as '445–465 kHz': the unit once when both ends share it ('995 kHz–1.005 MHz' not)."""
+    a, b = hz(low), hz(high)
+    number, _, unit = a.rpartition(" ")
+    return f"{number}–{b}" if number and b.endswith(" " + unit) else f"{a}–{b}"
+
+
+def _fitted(text: str, size: float, width_pt: float, bold: bool = False) -> float:
+    """The font size (at most `size`, at least 5.5 pt) at which `text` fits `width_pt` across: a
+    sans-serif character is about 0.6 em wide on average, bold about 0.68 (common practice)."""
+    em = 0.68 if bold else 0.6
+    needed = len(text) * em * size
+    return max(5.5, min(size, size * 0.92 * width_pt / needed)) if needed else size
+
+
 def stage_words(kind: str) -> str:
-    """A stage kind as a heading: 'if-filter' -> 'IF filter', 'audio-amp' -> 'audio amp'."""
+    """A stage kind as a heading: 'if-filter' -> 'IF filter', 'audio-amp' -> 'audio amp';
+    'de-emphasis' keeps its hyphen (one word)."""
+    if kind == "de-emphasis":
+        return kind
     return " ".join(w.upper() if w in ("if", "rf", "lo") else w for w in kind.split("-"))
 
 
