@@ -215,7 +215,7 @@ def pin_voltage(build, ctx):
         if v_max is not None and hi > v_max:
             ctx.report(
                 f"{stage.pin} can be driven to {fmt(hi, 'V')} ({how}), above the {fmt(v_max, 'V')} "
-                f"it takes ({dev.name} runs on {dev.rail})",
+                f"it takes" + (f" ({dev.name} runs on {dev.rail})" if dev.rail else ""),
                 stage.at("control"),
                 [Value("pin highest", hi, "V"), Value("allowed", v_max, "V")],
                 stage=stage.label,
