@@ -24,9 +24,6 @@ from __future__ import annotations
 
 import pytest
 from conftest import check, facts, line_of, of, sheet_rows
-from scipy.optimize import brentq
-
-from speccheck.config import Settings
 
 HEAD = """build_spec: 2
 
@@ -111,8 +108,17 @@ def at(text: str, key: str, value: str) -> tuple[int, int, str]:
 def finding(rule, level, place, message, values=None, fix="", stage="squelch") -> dict:
     line, col, path = place
     return {
-        "rule": rule, "level": level, "line": line, "col": col, "path": path, "message": message,
-        "values": values or {}, "fix": fix, "stage": stage, "signal": "", "position": "",
+        "rule": rule,
+        "level": level,
+        "line": line,
+        "col": col,
+        "path": path,
+        "message": message,
+        "values": values or {},
+        "fix": fix,
+        "stage": stage,
+        "signal": "",
+        "position": "",
     }
 
 
@@ -120,7 +126,9 @@ def same(got: list, want: list) -> None:
     """Whole findings compared, numbers within 1e-9 relative (float arithmetic order only)."""
     assert len(got) == len(want), [f["message"] for f in got]
     for g, w in zip(got, want, strict=True):
-        w = dict(w, values={k: (pytest.approx(v, rel=1e-9, abs=1e-12), u) for k, (v, u) in w["values"].items()})
+        w = dict(
+            w, values={k: (pytest.approx(v, rel=1e-9, abs=1e-12), u) for k, (v, u) in w["values"].items()}
+        )
         assert g == w
 
 
@@ -184,37 +192,74 @@ def test_the_sweep_against_the_threshold_range_just_inside_and_outside(ends, vol
     # no divider: the pin sees the wiper, which spans the two ends exactly (0 V or 6 V and the node)
     lo, hi = sorted((volts, 0.0 if "GND" in ends else 6.0))
     how = f"RV1's wiper spans {shown(lo)} to {shown(hi)}"
-    values = {"pin lowest": (lo, "V"), "pin highest": (hi, "V"), "threshold_min": (1.0, "V"),
-              "threshold_max": (2.0, "V")}
+    values = {
+        "pin lowest": (lo, "V"),
+        "pin highest": (hi, "V"),
+        "threshold_min": (1.0, "V"),
+        "threshold_max": (2.0, "V"),
+    }
     if level is None:
         assert found == []
     elif level == "error":
-        message = (f"the squelch control never reaches the threshold of U1.sq: {how}, so the pin sees "
-                   f"{shown(lo)} to {shown(hi)}, outside the 1 V to 2 V the squelch switches over: it "
-                   "can never be set")
-        same(found, [finding("squelch.threshold-range", "error", at(text, "control", "RV1"), message,
-                             values, RANGE_FIX)])
+        message = (
+            f"the squelch control never reaches the threshold of U1.sq: {how}, so the pin sees "
+            f"{shown(lo)} to {shown(hi)}, outside the 1 V to 2 V the squelch switches over: it "
+            "can never be set"
+        )
+        same(
+            found,
+            [
+                finding(
+                    "squelch.threshold-range", "error", at(text, "control", "RV1"), message, values, RANGE_FIX
+                )
+            ],
+        )
     else:
-        message = (f"the squelch control covers only part of the threshold range of U1.sq: {how}, so the "
-                   f"pin sees {shown(lo)} to {shown(hi)} of the 1 V to 2 V needed")
-        same(found, [finding("squelch.threshold-range", "warning", at(text, "control", "RV1"), message,
-                             values, RANGE_FIX)])
+        message = (
+            f"the squelch control covers only part of the threshold range of U1.sq: {how}, so the "
+            f"pin sees {shown(lo)} to {shown(hi)} of the 1 V to 2 V needed"
+        )
+        same(
+            found,
+            [
+                finding(
+                    "squelch.threshold-range",
+                    "warning",
+                    at(text, "control", "RV1"),
+                    message,
+                    values,
+                    RANGE_FIX,
+                )
+            ],
+        )
 
 
 def test_a_series_and_shunt_divider_scales_the_sweep():
-    parts = pot("RV1", "V6, GND", "W1") + res("R1", "100 kohm", "W1", "U1.sq") + res("R2", "10 kohm", "U1.sq", "GND")
+    parts = (
+        pot("RV1", "V6, GND", "W1")
+        + res("R1", "100 kohm", "W1", "U1.sq")
+        + res("R2", "10 kohm", "U1.sq", "GND")
+    )
     text = plan(parts, [{"device": "U1", "control": "RV1", "pin": "U1.sq", "series": "R1", "shunt": "R2"}])
     result = check(text)
     # divider R2 / (R1 + R2) = 10k / 110k = 0.0909; 6 V x 0.0909 = 545.5 mV, under threshold_min 1 V
     v_top = divider(6.0, 100e3, 10e3)[0]
     assert v_top == pytest.approx(6 * 10 / 110)
-    message = (f"the squelch control never reaches the threshold of U1.sq: RV1's wiper spans 0 V to 6 V, "
-               f"divided by R1 and R2 to 0.0909, so the pin sees 0 V to {shown(v_top)}, outside the 1 V "
-               "to 2 V the squelch switches over: it can never be set")
-    values = {"pin lowest": (0.0, "V"), "pin highest": (v_top, "V"), "threshold_min": (1.0, "V"),
-              "threshold_max": (2.0, "V")}
-    same([facts(f) for f in of(result, "squelch.threshold-range")],
-         [finding("squelch.threshold-range", "error", at(text, "control", "RV1"), message, values, RANGE_FIX)])
+    message = (
+        f"the squelch control never reaches the threshold of U1.sq: RV1's wiper spans 0 V to 6 V, "
+        f"divided by R1 and R2 to 0.0909, so the pin sees 0 V to {shown(v_top)}, outside the 1 V "
+        "to 2 V the squelch switches over: it can never be set"
+    )
+    values = {
+        "pin lowest": (0.0, "V"),
+        "pin highest": (v_top, "V"),
+        "threshold_min": (1.0, "V"),
+        "threshold_max": (2.0, "V"),
+    }
+    same(
+        [facts(f) for f in of(result, "squelch.threshold-range")],
+        [finding("squelch.threshold-range", "error", at(text, "control", "RV1"), message, values, RANGE_FIX)],
+    )
     assert sheet_rows(result, "squelch.threshold-range") == [
         ("squelch", "U1.sq", "lowest voltage at the pin", 0.0, "V", "", ""),
         ("squelch", "U1.sq", "highest voltage at the pin", pytest.approx(v_top), "V", "", ""),
@@ -225,20 +270,39 @@ def test_a_shunt_without_a_series_resistor_leaves_the_wiper_undivided():
     # the wiper's own resistance is zero at the track's ends: R2 alone divides by R2 / (0 + R2) = 1
     parts = pot("RV1", "A, GND", "U1.sq") + res("R2", "10 kohm", "U1.sq", "GND")
     text = plan(parts, [{"device": "U1", "control": "RV1", "pin": "U1.sq", "shunt": "R2"}], {"A": 0.9})
-    message = ("the squelch control never reaches the threshold of U1.sq: RV1's wiper spans 0 V to 900 mV, "
-               "divided by the wiper and R2 to 1, so the pin sees 0 V to 900 mV, outside the 1 V to 2 V the "
-               "squelch switches over: it can never be set")
-    values = {"pin lowest": (0.0, "V"), "pin highest": (0.9, "V"), "threshold_min": (1.0, "V"),
-              "threshold_max": (2.0, "V")}
-    same([facts(f) for f in of(check(text), "squelch.threshold-range")],
-         [finding("squelch.threshold-range", "error", at(text, "control", "RV1"), message, values, RANGE_FIX)])
+    message = (
+        "the squelch control never reaches the threshold of U1.sq: RV1's wiper spans 0 V to 900 mV, "
+        "divided by the wiper and R2 to 1, so the pin sees 0 V to 900 mV, outside the 1 V to 2 V the "
+        "squelch switches over: it can never be set"
+    )
+    values = {
+        "pin lowest": (0.0, "V"),
+        "pin highest": (0.9, "V"),
+        "threshold_min": (1.0, "V"),
+        "threshold_max": (2.0, "V"),
+    }
+    same(
+        [facts(f) for f in of(check(text), "squelch.threshold-range")],
+        [finding("squelch.threshold-range", "error", at(text, "control", "RV1"), message, values, RANGE_FIX)],
+    )
 
 
 def test_the_hysteresis_resistor_loads_the_extremes():
     # lowest: wiper at 0 V with the output low (500 mV); highest: wiper at 6 V with it high (4.5 V)
-    parts = (pot("RV1", "V6, GND", "W1") + res("R1", "100 kohm", "W1", "U1.sq")
-             + res("R2", "47 kohm", "U1.sq", "GND") + res("R3", "1 Mohm", "U1.out", "U1.sq"))
-    stage = {"device": "U1", "control": "RV1", "pin": "U1.sq", "series": "R1", "shunt": "R2", "hysteresis": "R3"}
+    parts = (
+        pot("RV1", "V6, GND", "W1")
+        + res("R1", "100 kohm", "W1", "U1.sq")
+        + res("R2", "47 kohm", "U1.sq", "GND")
+        + res("R3", "1 Mohm", "U1.out", "U1.sq")
+    )
+    stage = {
+        "device": "U1",
+        "control": "RV1",
+        "pin": "U1.sq",
+        "series": "R1",
+        "shunt": "R2",
+        "hysteresis": "R3",
+    }
     text = plan(parts, [stage])
     result = check(text)
     lo = with_feedback(*divider(0.0, 100e3, 47e3), 1e6, 0.5)
@@ -247,13 +311,25 @@ def test_the_hysteresis_resistor_loads_the_extremes():
     # hi = 6 x 47/147 x 1M / 1031.97k + 4.5 x 31.97k / 1031.97k = 1.998 V, just under threshold_max
     assert lo == pytest.approx(0.5 * 31972.789 / 1031972.789, rel=1e-6)
     assert 1.99 < hi < 2.0
-    message = (f"the squelch control covers only part of the threshold range of U1.sq: RV1's wiper spans 0 V "
-               f"to 6 V through R1, R2 to ground and R3 to U1.out (500 mV / 4.5 V), so the pin sees "
-               f"{shown(lo)} to {shown(hi)} of the 1 V to 2 V needed")
-    values = {"pin lowest": (lo, "V"), "pin highest": (hi, "V"), "threshold_min": (1.0, "V"),
-              "threshold_max": (2.0, "V")}
-    same([facts(f) for f in of(result, "squelch.threshold-range")],
-         [finding("squelch.threshold-range", "warning", at(text, "control", "RV1"), message, values, RANGE_FIX)])
+    message = (
+        f"the squelch control covers only part of the threshold range of U1.sq: RV1's wiper spans 0 V "
+        f"to 6 V through R1, R2 to ground and R3 to U1.out (500 mV / 4.5 V), so the pin sees "
+        f"{shown(lo)} to {shown(hi)} of the 1 V to 2 V needed"
+    )
+    values = {
+        "pin lowest": (lo, "V"),
+        "pin highest": (hi, "V"),
+        "threshold_min": (1.0, "V"),
+        "threshold_max": (2.0, "V"),
+    }
+    same(
+        [facts(f) for f in of(result, "squelch.threshold-range")],
+        [
+            finding(
+                "squelch.threshold-range", "warning", at(text, "control", "RV1"), message, values, RANGE_FIX
+            )
+        ],
+    )
     assert sheet_rows(result, "squelch.threshold-range") == [
         ("squelch", "U1.sq", "lowest voltage at the pin", pytest.approx(lo), "V", "", ""),
         ("squelch", "U1.sq", "highest voltage at the pin", pytest.approx(hi), "V", "", ""),
@@ -264,27 +340,51 @@ def test_a_wiper_straight_on_the_pin_is_not_moved_by_the_hysteresis_resistor():
     # no series resistor: at the track's ends the wiper has no source resistance and pins the node
     parts = pot("RV1", "A, GND", "U1.sq") + res("R3", "1 Mohm", "U1.out", "U1.sq")
     text = plan(parts, [{"device": "U1", "control": "RV1", "pin": "U1.sq", "hysteresis": "R3"}], {"A": 0.9})
-    message = ("the squelch control never reaches the threshold of U1.sq: RV1's wiper spans 0 V to 900 mV and "
-               "R3 to U1.out (500 mV / 4.5 V), so the pin sees 0 V to 900 mV, outside the 1 V to 2 V the "
-               "squelch switches over: it can never be set")
-    values = {"pin lowest": (0.0, "V"), "pin highest": (0.9, "V"), "threshold_min": (1.0, "V"),
-              "threshold_max": (2.0, "V")}
-    same([facts(f) for f in of(check(text), "squelch.threshold-range")],
-         [finding("squelch.threshold-range", "error", at(text, "control", "RV1"), message, values, RANGE_FIX)])
+    message = (
+        "the squelch control never reaches the threshold of U1.sq: RV1's wiper spans 0 V to 900 mV and "
+        "R3 to U1.out (500 mV / 4.5 V), so the pin sees 0 V to 900 mV, outside the 1 V to 2 V the "
+        "squelch switches over: it can never be set"
+    )
+    values = {
+        "pin lowest": (0.0, "V"),
+        "pin highest": (0.9, "V"),
+        "threshold_min": (1.0, "V"),
+        "threshold_max": (2.0, "V"),
+    }
+    same(
+        [facts(f) for f in of(check(text), "squelch.threshold-range")],
+        [finding("squelch.threshold-range", "error", at(text, "control", "RV1"), message, values, RANGE_FIX)],
+    )
 
 
 def test_an_unusable_hysteresis_resistor_leaves_the_plain_divider():
     # R3 returns to a net whose levels are not known: the pin is the divider alone, 6 x 10/110
-    parts = (pot("RV1", "V6, GND", "W1") + res("R1", "100 kohm", "W1", "U1.sq")
-             + res("R2", "10 kohm", "U1.sq", "GND") + res("R3", "1 Mohm", "SQ_OUT", "U1.sq"))
-    stage = {"device": "U1", "control": "RV1", "pin": "U1.sq", "series": "R1", "shunt": "R2", "hysteresis": "R3"}
+    parts = (
+        pot("RV1", "V6, GND", "W1")
+        + res("R1", "100 kohm", "W1", "U1.sq")
+        + res("R2", "10 kohm", "U1.sq", "GND")
+        + res("R3", "1 Mohm", "SQ_OUT", "U1.sq")
+    )
+    stage = {
+        "device": "U1",
+        "control": "RV1",
+        "pin": "U1.sq",
+        "series": "R1",
+        "shunt": "R2",
+        "hysteresis": "R3",
+    }
     result = check(plan(parts, [stage]))
     assert sheet_rows(result, "squelch.threshold-range")[1][3] == pytest.approx(divider(6.0, 100e3, 10e3)[0])
 
 
 def test_what_cannot_be_checked_is_a_note_and_the_next_stage_is_still_checked():
-    parts = (pot("RV1", "X, Y", "W1") + pot("RV2", "V6, GND", "W2") + pot("RV3", "V6, GND", "W3")
-             + pot("RV4", "V6, GND", "W4") + pot("RV5", "A, GND", "W5"))
+    parts = (
+        pot("RV1", "X, Y", "W1")
+        + pot("RV2", "V6, GND", "W2")
+        + pot("RV3", "V6, GND", "W3")
+        + pot("RV4", "V6, GND", "W4")
+        + pot("RV5", "A, GND", "W5")
+    )
     stages = [
         {"device": "U1"},  # no control: nothing to check
         {"device": "U1", "control": "RV1", "pin": "U1.sq"},  # X and Y carry no known DC
@@ -297,36 +397,59 @@ def test_what_cannot_be_checked_is_a_note_and_the_next_stage_is_still_checked():
     result = check(text)
 
     def unknown(ctl):
-        return finding("squelch.threshold-range", "note", at(text, "control", ctl),
-                       f"squelch: the DC at the ends of {ctl}'s track is not known, or the pin is not named, "
-                       "so the squelch threshold range cannot be checked",
-                       fix="Put the pot's ends on rails or declared nodes and name the pin.")
+        return finding(
+            "squelch.threshold-range",
+            "note",
+            at(text, "control", ctl),
+            f"squelch: the DC at the ends of {ctl}'s track is not known, or the pin is not named, "
+            "so the squelch threshold range cannot be checked",
+            fix="Put the pot's ends on rails or declared nodes and name the pin.",
+        )
 
     def no_range(pin):
-        return finding("squelch.threshold-range", "note", at(text, "pin", pin),
-                       f"{pin} has no threshold range in its profile (threshold_min, threshold_max), so the "
-                       "squelch control's range (0 V to 6 V) cannot be checked against it",
-                       fix="Give the pin's threshold_min and threshold_max in the device profile.")
+        return finding(
+            "squelch.threshold-range",
+            "note",
+            at(text, "pin", pin),
+            f"{pin} has no threshold range in its profile (threshold_min, threshold_max), so the "
+            "squelch control's range (0 V to 6 V) cannot be checked against it",
+            fix="Give the pin's threshold_min and threshold_max in the device profile.",
+        )
 
     error = finding(
-        "squelch.threshold-range", "error", at(text, "control", "RV5"),
-        "the squelch control never reaches the threshold of U1.sq: RV5's wiper spans 0 V to 900 mV, so the pin "
-        "sees 0 V to 900 mV, outside the 1 V to 2 V the squelch switches over: it can never be set",
-        {"pin lowest": (0.0, "V"), "pin highest": (0.9, "V"), "threshold_min": (1.0, "V"),
-         "threshold_max": (2.0, "V")}, RANGE_FIX)
-    same([facts(f) for f in of(result, "squelch.threshold-range")],
-         [unknown("RV1"), unknown("RV2"), no_range("U1.sq_bare"), no_range("U1.sq_half"), error])
+        "squelch.threshold-range",
+        "error",
+        at(text, "control", "RV5"),
+        "the squelch control never reaches the threshold of U1.sq: RV5's wiper spans 0 V to 900 mV, so the "
+        "pin sees 0 V to 900 mV, outside the 1 V to 2 V the squelch switches over: it can never be set",
+        {
+            "pin lowest": (0.0, "V"),
+            "pin highest": (0.9, "V"),
+            "threshold_min": (1.0, "V"),
+            "threshold_max": (2.0, "V"),
+        },
+        RANGE_FIX,
+    )
+    same(
+        [facts(f) for f in of(result, "squelch.threshold-range")],
+        [unknown("RV1"), unknown("RV2"), no_range("U1.sq_bare"), no_range("U1.sq_half"), error],
+    )
     # the extremes are published for every stage whose network is known, with or without a range
     assert [(r[1], r[2], r[3]) for r in sheet_rows(result, "squelch.threshold-range")] == [
-        ("U1.sq_bare", "lowest voltage at the pin", 0.0), ("U1.sq_bare", "highest voltage at the pin", 6.0),
-        ("U1.sq_half", "lowest voltage at the pin", 0.0), ("U1.sq_half", "highest voltage at the pin", 6.0),
-        ("U1.sq", "lowest voltage at the pin", 0.0), ("U1.sq", "highest voltage at the pin", 0.9),
+        ("U1.sq_bare", "lowest voltage at the pin", 0.0),
+        ("U1.sq_bare", "highest voltage at the pin", 6.0),
+        ("U1.sq_half", "lowest voltage at the pin", 0.0),
+        ("U1.sq_half", "highest voltage at the pin", 6.0),
+        ("U1.sq", "lowest voltage at the pin", 0.0),
+        ("U1.sq", "highest voltage at the pin", 0.9),
     ]
 
 
 def test_a_pot_without_a_wiper_is_not_checked():
-    text = plan("  RV1: {kind: potentiometer, value: 10 kohm, ends: [V6, U1.sq]}\n",
-                [{"device": "U1", "control": "RV1", "pin": "U1.sq"}])
+    text = plan(
+        "  RV1: {kind: potentiometer, value: 10 kohm, ends: [V6, U1.sq]}\n",
+        [{"device": "U1", "control": "RV1", "pin": "U1.sq"}],
+    )
     found = [facts(f) for f in of(check(text), "squelch.threshold-range")]
     assert [f["level"] for f in found] == ["note"] and "RV1's track is not known" in found[0]["message"]
 
@@ -349,10 +472,23 @@ def test_the_pin_driven_above_what_it_takes(pin, volts, allowed):
     if allowed is None:
         assert found == []
         return
-    message = (f"{pin} can be driven to {shown(volts)} (RV1's wiper spans 0 V to {shown(volts)}), above the "
-               f"{shown(allowed)} it takes (U1 runs on V6)")
-    same(found, [finding("squelch.pin-voltage", "error", at(text, "control", "RV1"), message,
-                         {"pin highest": (volts, "V"), "allowed": (allowed, "V")}, PIN_FIX)])
+    message = (
+        f"{pin} can be driven to {shown(volts)} (RV1's wiper spans 0 V to {shown(volts)}), above the "
+        f"{shown(allowed)} it takes (U1 runs on V6)"
+    )
+    same(
+        found,
+        [
+            finding(
+                "squelch.pin-voltage",
+                "error",
+                at(text, "control", "RV1"),
+                message,
+                {"pin highest": (volts, "V"), "allowed": (allowed, "V")},
+                PIN_FIX,
+            )
+        ],
+    )
 
 
 @pytest.mark.parametrize(
@@ -370,15 +506,32 @@ def test_the_pin_driven_below_what_it_takes(pin, volts, allowed):
     if allowed is None:
         assert found == []
         return
-    message = (f"{pin} can be driven to {shown(volts)} (RV1's wiper spans {shown(volts)} to 0 V), below the "
-               f"{shown(allowed)} it takes")
-    same(found, [finding("squelch.pin-voltage", "error", at(text, "control", "RV1"), message,
-                         {"pin lowest": (volts, "V"), "allowed": (allowed, "V")}, PIN_FIX)])
+    message = (
+        f"{pin} can be driven to {shown(volts)} (RV1's wiper spans {shown(volts)} to 0 V), below the "
+        f"{shown(allowed)} it takes"
+    )
+    same(
+        found,
+        [
+            finding(
+                "squelch.pin-voltage",
+                "error",
+                at(text, "control", "RV1"),
+                message,
+                {"pin lowest": (volts, "V"), "allowed": (allowed, "V")},
+                PIN_FIX,
+            )
+        ],
+    )
 
 
 def test_both_ends_out_and_every_stage_checked():
-    parts = (pot("RV1", "X, Y", "W1") + pot("RV3", "V12, A", "W3")
-             + pot("RV4", "V12, GND", "W4") + pot("RV5", "V12, A", "W5"))
+    parts = (
+        pot("RV1", "X, Y", "W1")
+        + pot("RV3", "V12, A", "W3")
+        + pot("RV4", "V12, GND", "W4")
+        + pot("RV5", "V12, A", "W5")
+    )
     stages = [
         {"device": "U1"},  # no control
         {"device": "U1", "control": "RV1", "pin": "U1.sq"},  # network unknown
@@ -388,26 +541,55 @@ def test_both_ends_out_and_every_stage_checked():
     ]
     text = plan(parts, stages, {"A": -1.0})
     found = [facts(f) for f in of(check(text), "squelch.pin-voltage")]
-    same(found, [
-        # (the report lists a stage's findings in message order)
-        finding("squelch.pin-voltage", "error", at(text, "control", "RV3"),
+    same(
+        found,
+        [
+            # (the report lists a stage's findings in message order)
+            finding(
+                "squelch.pin-voltage",
+                "error",
+                at(text, "control", "RV3"),
                 "U1.sq can be driven to -1 V (RV3's wiper spans -1 V to 12 V), below the -300 mV it takes",
-                {"pin lowest": (-1.0, "V"), "allowed": (-0.3, "V")}, PIN_FIX),
-        finding("squelch.pin-voltage", "error", at(text, "control", "RV3"),
+                {"pin lowest": (-1.0, "V"), "allowed": (-0.3, "V")},
+                PIN_FIX,
+            ),
+            finding(
+                "squelch.pin-voltage",
+                "error",
+                at(text, "control", "RV3"),
                 "U1.sq can be driven to 12 V (RV3's wiper spans -1 V to 12 V), above the 6.3 V it takes "
-                "(U1 runs on V6)", {"pin highest": (12.0, "V"), "allowed": (6.0 + 0.3, "V")}, PIN_FIX),
-        finding("squelch.pin-voltage", "error", at(text, "control", "RV5"),
-                "U2.sq_lim can be driven to -1 V (RV5's wiper spans -1 V to 12 V), below the -500 mV it takes",
-                {"pin lowest": (-1.0, "V"), "allowed": (-0.5, "V")}, PIN_FIX),
-        finding("squelch.pin-voltage", "error", at(text, "control", "RV5"),
+                "(U1 runs on V6)",
+                {"pin highest": (12.0, "V"), "allowed": (6.0 + 0.3, "V")},
+                PIN_FIX,
+            ),
+            finding(
+                "squelch.pin-voltage",
+                "error",
+                at(text, "control", "RV5"),
+                "U2.sq_lim can be driven to -1 V (RV5's wiper spans -1 V to 12 V), "
+                "below the -500 mV it takes",
+                {"pin lowest": (-1.0, "V"), "allowed": (-0.5, "V")},
+                PIN_FIX,
+            ),
+            finding(
+                "squelch.pin-voltage",
+                "error",
+                at(text, "control", "RV5"),
                 "U2.sq_lim can be driven to 12 V (RV5's wiper spans -1 V to 12 V), above the 5 V it takes",
-                {"pin highest": (12.0, "V"), "allowed": (5.0, "V")}, PIN_FIX),
-    ])
+                {"pin highest": (12.0, "V"), "allowed": (5.0, "V")},
+                PIN_FIX,
+            ),
+        ],
+    )
 
 
 def test_a_divider_brings_the_pin_inside_the_supply():
     # 12 V x 10k / (10k + 10k) = 6 V, under 6.3 V: no finding; the same pot straight on the pin: 12 V
-    parts = pot("RV1", "V12, GND", "W1") + res("R1", "10 kohm", "W1", "U1.sq") + res("R2", "10 kohm", "U1.sq", "GND")
+    parts = (
+        pot("RV1", "V12, GND", "W1")
+        + res("R1", "10 kohm", "W1", "U1.sq")
+        + res("R2", "10 kohm", "U1.sq", "GND")
+    )
     text = plan(parts, [{"device": "U1", "control": "RV1", "pin": "U1.sq", "series": "R1", "shunt": "R2"}])
     assert divider(12.0, 10e3, 10e3)[0] == pytest.approx(6.0)
     assert of(check(text), "squelch.pin-voltage") == []
