@@ -574,3 +574,37 @@ def test_speaker_rating_at_the_full_output(rating, watts, warns):
     text = edited(TWO, "power_rating: 2 W", f"power_rating: {rating}")
     got = found(check(text), "audio.speaker-power")
     assert got == ([underrated(text, rating, watts, FULL_16)] if warns else [])
+
+
+# ---- a stage that names no device, a part with no ends --------------------------------------------
+
+
+def test_stage_without_a_device_checks_only_what_needs_none():
+    # the monitor stage names no amplifier: its network's wiring, its bypass's ends and its speaker's
+    # rating cannot be judged against one; the bypass value still can
+    text = edited(TWO, "    device: U4\n", "")
+    text = edited(text, R41, R41.replace("U4.out, ZOBEL_B", "U4.in_plus, ZOBEL_B"))
+    text = edited(text, C42, C42.replace("1 nF", "47 nF").replace("U4.in_plus, GND", "U4.out, GND"))
+    text = edited(text, "    input_bypass: C22\n", "")
+    text = edited(text, "power_rating: 2 W", "power_rating: 0.1 W")
+    result = check(text)
+    assert found(result, "audio.output-network") == []
+    assert found(result, "audio.speaker-power") == []
+    assert found(result, "audio.input-bypass") == in_order(
+        expect("audio.input-bypass", "warning", text, "- stage: audio-amp", "audio-amp", "chain[8].stage",
+               "the audio-amp stage names no input_bypass: nothing keeps RF out of U2's input"),
+        out_of_range(text, "47 nF", 47e-9, "large enough to cut the treble"),
+    )
+    no_bypass = edited(text, "    input_bypass: C42\n", "")
+    assert [f["message"] for f in found(check(no_bypass), "audio.input-bypass")][-1] == (
+        "the monitor stage names no input_bypass: nothing keeps RF out of the amplifier's input")
+
+
+def test_network_resistor_with_no_ends():
+    text = edited(TWO, R41, "R41: {kind: resistor, value: 4.7 ohm}")
+    assert found(check(text), "audio.output-network") == [
+        # with no ends given the finding points at the part itself: its mapping opens at "{"
+        expect("audio.output-network", "warning", text, "  R41: {kind: resistor", "{", "parts.R41",
+               "R41 and C41 do not form a series R–C from U4's output to ground (R41: no ends; C41: ZOBEL_B, "
+               "GND)", stage="monitor"),
+    ]
