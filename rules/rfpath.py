@@ -54,14 +54,13 @@ def _say_override(build, stage, ctx):
 
 
 def _load_resistance(build, stage):
-    """(resistance the network works into, where it came from) or (None, field path missing)."""
+    """(resistance the network works into, "") or (None, the field that would give it)."""
     given = stage.works_into or stage.load_impedance  # v2 name, v1 name
     if given is not None:
-        key = "works_into" if stage.works_into is not None else "load_impedance"
-        return given.si, f"chain[{stage.index}].{key}"
+        return given.si, ""
     dev = build.device(stage.device)
     if dev is not None and dev.profile is not None and dev.profile.input_impedance is not None:
-        return dev.profile.input_impedance.si, f"{dev.name} input ({dev.profile.name} profile)"
+        return dev.profile.input_impedance.si, ""
     return None, (
         f"profiles.{dev.profile.name}.input_impedance"
         if dev is not None and dev.profile is not None
@@ -166,7 +165,7 @@ def input_match(build, ctx):
             ctx.publish("input-match", who, "ideal shunt C", ideal["capacitance"], "F")
             picks_l = _publish_picks(ctx, who, "series L", ideal["inductance"], "H")
             picks_c = _publish_picks(ctx, who, "shunt C", ideal["capacitance"], "F")
-            if coil is not None and coil.core is not None and coil.core.al is not None:
+            if coil is not None and coil.core is not None:  # the schema requires a core's al
                 ctx.publish(
                     "input-match",
                     who,
@@ -180,7 +179,7 @@ def input_match(build, ctx):
             )
         else:
             suggestion = "no network: source and load are equal"
-        where = stage.at("topology") if stage.given("topology") else stage.loc
+        where = stage.at("topology")  # the stage itself when no topology is given
         min_rl = _setting(ctx, "min_return_loss")
         if topo in ("series-l-shunt-c", "shunt-c-series-l"):
             if coil is None or cap is None or coil.value is None or cap.value is None:
@@ -284,7 +283,7 @@ def input_match(build, ctx):
 )
 def coil_turns(build, ctx):
     for part in build.parts.values():
-        if part.kind != "inductor" or part.core is None or part.core.al is None:
+        if part.kind != "inductor" or part.core is None:  # the schema requires a core's al
             continue
         al = part.core.al.si
         stage = build.stage_of_part(part.name)

@@ -392,3 +392,21 @@ def test_direct_into_an_equal_load_is_a_perfect_match():
     assert rows == {"working frequency": approx(F), "source resistance": approx(50.0),
                     "load resistance": approx(50.0), "impedance seen by the source (real)": approx(50.0),
                     "impedance seen by the source (imaginary)": 0.0, "return loss": math.inf, "VSWR": 1.0}
+
+
+def without_source(text: str) -> str:
+    """The plan with no source block at all."""
+    start, end = text.index("source:\n"), text.index("supply:\n")
+    return text[:start] + text[end:]
+
+
+def test_plan_without_a_source_is_a_note_at_each_stage():
+    text = without_source(two_matches())
+    fix = "Give source.impedance (50 ohm for most receivers and instruments)."
+    assert by_place(found(check(text), "rfpath.input-match")) == by_place([
+        note(text, "  - stage: input-match", "stage", "chain[0]",
+             "input-match: source.impedance is not given, so the match cannot be computed", fix=fix),
+        note(text, "  - stage: input-match", "stage", "chain[1]",
+             "second: source.impedance is not given, so the match cannot be computed", stage="second", fix=fix,
+             nth=1),
+    ])

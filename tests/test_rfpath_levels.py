@@ -258,3 +258,12 @@ def test_where_a_device_first_sits_decides_whether_its_input_is_checked(stage_ol
     text = with_lna(text, "  U7: {profile: lna, rail: V6}\n")
     got = [f for f in found(check(text), "rfpath.max-input") if "U7" in f["message"]]
     assert got == ([over(text, 3.0, "3 dBm", dev="U7", limit="0 dBm", stage=kind)] if checked else [])
+
+
+def test_plan_without_a_source_is_a_note_at_the_device_first_stage():
+    text = CLEAN_TEXT[:CLEAN_TEXT.index("source:\n")] + CLEAN_TEXT[CLEAN_TEXT.index("supply:\n"):]
+    assert found(check(text), "rfpath.max-input") == [
+        expect("rfpath.max-input", "note", text, "  - stage: input-match", "stage", "chain[0]",
+               "U1: source.level_max is not given, so the highest level reaching it cannot be checked against "
+               "its -10 dBm", fix="Give source.level_max."),
+    ]
