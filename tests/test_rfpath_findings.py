@@ -407,6 +407,6 @@ def test_plan_without_a_source_is_a_note_at_each_stage():
         note(text, "  - stage: input-match", "stage", "chain[0]",
              "input-match: source.impedance is not given, so the match cannot be computed", fix=fix),
         note(text, "  - stage: input-match", "stage", "chain[1]",
-             "second: source.impedance is not given, so the match cannot be computed", stage="second", fix=fix,
-             nth=1),
+             "second: source.impedance is not given, so the match cannot be computed", stage="second",
+             fix=fix, nth=1),
     ])

@@ -264,6 +264,6 @@ def test_plan_without_a_source_is_a_note_at_the_device_first_stage():
     text = CLEAN_TEXT[:CLEAN_TEXT.index("source:\n")] + CLEAN_TEXT[CLEAN_TEXT.index("supply:\n"):]
     assert found(check(text), "rfpath.max-input") == [
         expect("rfpath.max-input", "note", text, "  - stage: input-match", "stage", "chain[0]",
-               "U1: source.level_max is not given, so the highest level reaching it cannot be checked against "
-               "its -10 dBm", fix="Give source.level_max."),
+               "U1: source.level_max is not given, so the highest level reaching it cannot be checked "
+               "against its -10 dBm", fix="Give source.level_max."),
     ]
