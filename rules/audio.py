@@ -17,8 +17,7 @@ DC_THRESHOLD = 0.1  # V; below this a speaker counts as having no DC across it
 
 
 def _output_nets(dev) -> list:
-    if dev is None or dev.profile is None:
-        return []
+    """The audio outputs of a device (every device has its profile: input.reference refuses an unknown one)."""
     return [f"{dev.name}.{pin.name}" for pin in dev.profile.pins.values() if pin.role == "audio-out"]
 
 
@@ -63,7 +62,7 @@ def _network_ok(build, dev, res, cap, extra_nets=()) -> bool:
 def output_network(build, ctx):
     for stage in build.stages("audio-amp"):
         dev = build.device(stage.device)
-        want = dev.profile.output_network if dev and dev.profile else None
+        want = dev.profile.output_network if dev else None
         net = stage.output_network
         if net is None:
             if want in ("required", "recommended"):
@@ -226,7 +225,8 @@ def speaker_dc(build, ctx):
 
 
 def _input_nets(dev) -> list:
-    if dev is None or dev.profile is None:
+    """The input pins of a device, none for a stage that names no device."""
+    if dev is None:
         return []
     return [f"{dev.name}.{pin.name}" for pin in dev.profile.pins.values() if pin.role == "input"]
 

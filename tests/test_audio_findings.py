@@ -358,8 +358,8 @@ def too_high(text: str, load: str = "SPK2", cap: str = "C40", r: float = 16.0, c
 def test_first_stage_unchecked_second_stage_corner_too_high(old, new):
     text = edited(edited(TWO, old, new), C40, SMALL_C40)
     result = check(text)
-    # 16 ohm with 22 µF: 452.1 Hz, above 300 Hz (first-order RC)
-    assert found(result, "audio.coupling-corner") == [too_high(text)]
+    # 16 ohm with 22 µF: 452.1 Hz, above 300 Hz (first-order RC); no other audio rule trips on the edit
+    assert [facts(f) for f in audio(result)] == [too_high(text)]
     assert [row[:3] for row in sheet_rows(result, "audio.coupling-corner")] == [
         ("audio", "monitor", "coupling C40 into SPK2 corner")]
 
@@ -559,6 +559,7 @@ FULL_16 = ((12.0 - 3.0) / 2) ** 2 / (2 * 16.0)
     ("value: 8 ohm, power_rating: 3 W,", "value: 8 ohm,"),              # SPK1 has no power rating
     ("U2: {profile: audio-power-amp-lv", "U2: {profile: amp-bare"),  # no topology: no full output known
     ("    load: SPK1\n", "    load: C21\n"),                          # the load is no speaker
+    ("    load: SPK1\n", ""),                                          # no load named
 ])
 def test_first_stage_unchecked_second_speaker_underrated(old, new):
     text = edited(edited(TWO, old, new), "power_rating: 2 W", "power_rating: 0.5 W")
@@ -608,3 +609,10 @@ def test_network_resistor_with_no_ends():
                "R41 and C41 do not form a series R–C from U4's output to ground (R41: no ends; C41: ZOBEL_B, "
                "GND)", stage="monitor"),
     ]
+
+
+def test_network_part_without_a_value_gives_no_turnover():
+    text = edited(TWO, R41, R41.replace("value: 4.7 ohm, ", ""))
+    result = check(text)
+    assert audio(result) == []
+    assert [row[1] for row in sheet_rows(result, "audio.output-network")] == ["audio-amp"]
