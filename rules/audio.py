@@ -17,7 +17,7 @@ DC_THRESHOLD = 0.1  # V; below this a speaker counts as having no DC across it
 
 
 def _output_nets(dev) -> list:
-    """The audio outputs of a device (every device has its profile: input.reference refuses an unknown one)."""
+    """The audio outputs of a device (a device always has its profile: input.reference refuses others)."""
     return [f"{dev.name}.{pin.name}" for pin in dev.profile.pins.values() if pin.role == "audio-out"]
 
 
