@@ -410,3 +410,23 @@ def test_plan_without_a_source_is_a_note_at_each_stage():
              "second: source.impedance is not given, so the match cannot be computed", stage="second",
              fix=fix, nth=1),
     ])
+
+
+def test_l_network_between_equal_resistances_suggests_none():
+    second = "  - stage: input-match\n    name: second\n    topology: series-l-shunt-c\n    parts: [L1, C1]\n" \
+             "    works_into: 50 ohm\n"
+    text = two_matches(second)
+    zin = 1j * W * 3.9e-6 + 1 / (1 / 50 + 1j * W * 56e-12)  # series L, then C across the 50 ohm load
+    assert found(check(text), "rfpath.input-match") == [
+        mismatch(text, 50.0, zin, "series-l-shunt-c", "second", "chain[1].topology", "    topology: series-l",
+                 suggestion="no network: source and load are equal", nth=1)]
+
+
+def test_works_into_on_a_device_whose_profile_states_no_input_is_not_compared():
+    text = edited(CLEAN_TEXT, "{profile: fm-if-subsystem, rail: V6}", "{profile: my-chip, rail: V6}")
+    text = edited(edited(text, "devices:\n", MY_CHIP), "    parts: [L1, C1]\n",
+                  "    parts: [L1, C1]\n    works_into: 1.5 kohm\n")
+    result = check(text)
+    assert found(result, "rfpath.input-match") == []
+    assert ("input-match", "input-match", "load resistance", approx(1500.0), "Ω", "", "") in sheet_rows(
+        result, "rfpath.input-match")
