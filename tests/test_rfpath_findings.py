@@ -413,8 +413,8 @@ def test_plan_without_a_source_is_a_note_at_each_stage():
 
 
 def test_l_network_between_equal_resistances_suggests_none():
-    second = "  - stage: input-match\n    name: second\n    topology: series-l-shunt-c\n    parts: [L1, C1]\n" \
-             "    works_into: 50 ohm\n"
+    second = ("  - stage: input-match\n    name: second\n    topology: series-l-shunt-c\n"
+              "    parts: [L1, C1]\n    works_into: 50 ohm\n")
     text = two_matches(second)
     zin = 1j * W * 3.9e-6 + 1 / (1 / 50 + 1j * W * 56e-12)  # series L, then C across the 50 ohm load
     assert found(check(text), "rfpath.input-match") == [

@@ -118,7 +118,8 @@ def too_much(text: str, total: float, limit: float, biggest: str, profile: str =
 def test_two_preamps_add_up_and_the_biggest_is_named():
     # and a third preamp that states no gain, which adds nothing
     text = preamps("4 dB", "7 dB")
-    text = edited(text, "  - stage: input-match\n", "  - stage: preamp\n    name: pre3\n  - stage: input-match\n")
+    text = edited(text, "  - stage: input-match\n",
+                  "  - stage: preamp\n    name: pre3\n  - stage: input-match\n")
     result = check(text)
     # 4 dB + 7 dB = 11 dB ahead of U1, over its profile's 10 dB (plain level arithmetic)
     assert found(result, "rfpath.gain-ahead") == [too_much(text, 11.0, 10.0, "pre2")]
@@ -247,7 +248,8 @@ def test_unstated_source_level_is_a_note_per_device():
 
 @pytest.mark.parametrize(("stage_old", "stage_new", "kind", "checked"), [
     ("", "", "no stage", False),
-    ("  - stage: conversion\n    device: U1\n", "  - stage: conversion\n    device: U7\n", "conversion", True),
+    ("  - stage: conversion\n    device: U1\n", "  - stage: conversion\n    device: U7\n", "conversion",
+     True),
     ("  - stage: limiter\n    device: U1\n", "  - stage: limiter\n    device: U7\n", "limiter", True),
     ("  - stage: discriminator\n    device: U1\n", "  - stage: discriminator\n    device: U7\n",
      "discriminator", False),
