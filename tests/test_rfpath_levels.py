@@ -272,3 +272,23 @@ def test_plan_without_a_source_is_a_note_at_the_device_first_stage():
                "U1: source.level_max is not given, so the highest level reaching it cannot be checked "
                "against its -10 dBm", fix="Give source.level_max."),
     ]
+
+
+# ---- per configuration: the switched plan --------------------------------------------------------
+
+
+def test_switched_plan_says_a_level_finding_once_for_every_configuration():
+    # the bench demodulator runs gain-ahead and max-input once per signal, selector position and upstream
+    # bandwidth; the gain and the level do not depend on any of them, so each is said once, unnamed
+    text = (EXAMPLES / "bench-demod-selector.yaml").read_text("utf-8")
+    text = edited(text, "level_max: -30 dBm", "level_max: -20 dBm")
+    text = edited(text, "chain:\n  - stage: input-match\n",
+                  "chain:\n  - stage: preamp\n    name: pre1\n    gain: 12 dB\n  - stage: input-match\n")
+    result = check(text)
+    # -20 dBm + 12 dB = -8 dBm, above the profile's -10 dBm; 12 dB over its 10 dB (level arithmetic)
+    assert found(result, "rfpath.gain-ahead") == [too_much(text, 12.0, 10.0, "pre1")]
+    assert found(result, "rfpath.max-input") == [over(text, -8.0, "-20 dBm", gain=12.0)]
+    assert sheet_rows(result, "rfpath.max-input") == [
+        ("rf-levels", "U1", "highest input level", approx(-8.0), "dBm", "", ""),
+        ("rf-levels", "U1", "maximum input (profile)", approx(-10.0), "dBm", "", ""),
+    ]
