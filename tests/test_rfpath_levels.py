@@ -14,7 +14,7 @@ from __future__ import annotations
 import math
 
 import pytest
-from conftest import check, edited, sheet_rows
+from conftest import EXAMPLES, check, edited, sheet_rows
 from test_rfpath_findings import AL, CLEAN_TEXT, approx, by_place, expect, found, si
 
 from speccheck.config import Settings
