@@ -194,8 +194,8 @@ def test_the_worst_end_of_the_spread_is_taken():
     got = _one(text)
     assert got["level"] == "warning"
     assert got["values"]["share passed (worst case)"] == (pytest.approx(worst * 100), "%")
-    assert got["message"].startswith(f"voice sits on the skirt of the only path at the worst-case IF: the IF is "
-                                     f"455 kHz ± 6.5 kHz (the input; ±6.5 kHz source drift), so")
+    assert got["message"].startswith("voice sits on the skirt of the only path at the worst-case IF: the IF is "
+                                     "455 kHz ± 6.5 kHz (the input; ±6.5 kHz source drift), so")
     assert {k: got[k] for k in ("line", "col", "path")} == where(text, "FL1:", "20 kHz", "parts.FL1.bandwidth")
 
 
