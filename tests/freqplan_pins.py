@@ -82,7 +82,7 @@ def butterworth(width: float, at_db: float, stop_width: float, stop_db: float):
 def ceramic(width: float, at_db: float = 6.0):
     """The typical ceramic filter of the shapes module: twice as wide at 40 dB as at 6 dB (from
     memory), its order kept when the width is quoted at another level."""
-    k6, k40 = 10 ** 0.6 - 1, 10 ** 4 - 1
+    k6, k40 = 10**0.6 - 1, 10**4 - 1
     n = math.log10(k40 / k6) / (2 * math.log10(2))
     k_p = 10 ** (at_db / 10) - 1
 

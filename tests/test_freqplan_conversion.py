@@ -49,11 +49,16 @@ def test_unpulled_crystal_and_no_intended_if_leave_their_rows_out():
 def test_missing_oscillator_is_a_note_at_the_stage():
     text = edited(clean(), "    " + OSC + "\n", "")
     assert _one(text) == {
-        "rule": RULE, "level": "note", **where(text, "- stage: conversion", "stage", "chain[1]"),
+        "rule": RULE,
+        "level": "note",
+        **where(text, "- stage: conversion", "stage", "chain[1]"),
         "message": "conversion: chain[1].oscillator is not given, so the LO and the IF it makes cannot be "
-                   "computed",
-        "values": {}, "fix": "Give chain[1].oscillator so the conversion can be checked.",
-        "stage": "conversion", "signal": "", "position": "",
+        "computed",
+        "values": {},
+        "fix": "Give chain[1].oscillator so the conversion can be checked.",
+        "stage": "conversion",
+        "signal": "",
+        "position": "",
     }
     assert sheet_rows(check(text), RULE) == []
 
@@ -61,11 +66,15 @@ def test_missing_oscillator_is_a_note_at_the_stage():
 def test_lo_equal_to_the_input_is_an_error_and_nothing_after_it():
     text = edited(clean(), OSC, "oscillator: {frequency: 10.7 MHz, injection: low}")
     assert _one(text) == {
-        "rule": RULE, "level": "error",
+        "rule": RULE,
+        "level": "error",
         **where(text, "oscillator: {frequency", "10.7 MHz", "chain[1].oscillator.frequency"),
         "message": "conversion: the LO (10.7 MHz) equals the input (10.7 MHz); the mixer makes no IF",
-        "values": {"LO": (10.7e6, "Hz"), "input": (10.7e6, "Hz")}, "fix": FIX,
-        "stage": "conversion", "signal": "", "position": "",
+        "values": {"LO": (10.7e6, "Hz"), "input": (10.7e6, "Hz")},
+        "fix": FIX,
+        "stage": "conversion",
+        "signal": "",
+        "position": "",
     }
     names = [r[2] for r in sheet_rows(check(text), RULE)]
     assert names[-1] == "injection" and "IF (nominal)" not in names
@@ -75,15 +84,22 @@ def test_high_side_declared_for_a_low_side_lo():
     text = edited(clean(), "injection: low, mode", "injection: high, mode")
     image = 2 * LO - 10.7e6  # f_image = 2 f_LO - f_in
     assert _one(text) == {
-        "rule": RULE, "level": "warning",
+        "rule": RULE,
+        "level": "warning",
         **where(text, "oscillator: {crystal: X1", "high,", "chain[1].oscillator.injection"),
         "message": f"conversion: injection is declared high side, but the LO ({hz6(LO)}) is below the input "
-                   f"(10.7 MHz): the IF is still {hz6(F_IF)}, but the spectrum is not inverted and the image "
-                   f"lies at {hz6(image)}",
-        "values": {"LO": (pytest.approx(LO), "Hz"), "input": (10.7e6, "Hz"), "image": (pytest.approx(image), "Hz")},
+        f"(10.7 MHz): the IF is still {hz6(F_IF)}, but the spectrum is not inverted and the image "
+        f"lies at {hz6(image)}",
+        "values": {
+            "LO": (pytest.approx(LO), "Hz"),
+            "input": (10.7e6, "Hz"),
+            "image": (pytest.approx(image), "Hz"),
+        },
         # the high-side LO for the intended 455 kHz: f_in + f_IF = 11.155 MHz
         "fix": f"Declare injection: low, or choose the LO on the high side ({hz6(10.7e6 + 455e3)}).",
-        "stage": "conversion", "signal": "", "position": "",
+        "stage": "conversion",
+        "signal": "",
+        "position": "",
     }
 
 
@@ -94,27 +110,42 @@ def test_low_side_declared_for_a_high_side_lo():
     lo = 11.155e6 * (1 + PULL)
     image = 2 * lo - 10.7e6
     assert _one(text) == {
-        "rule": RULE, "level": "warning",
+        "rule": RULE,
+        "level": "warning",
         **where(text, "oscillator: {crystal: X1", "low,", "chain[1].oscillator.injection"),
         "message": f"conversion: injection is declared low side, but the LO ({hz6(lo)}) is above the input "
-                   f"(10.7 MHz): the IF is still {hz6(lo - 10.7e6)}, but the spectrum is inverted and the "
-                   f"image lies at {hz6(image)}",
-        "values": {"LO": (pytest.approx(lo), "Hz"), "input": (10.7e6, "Hz"), "image": (pytest.approx(image), "Hz")},
+        f"(10.7 MHz): the IF is still {hz6(lo - 10.7e6)}, but the spectrum is inverted and the "
+        f"image lies at {hz6(image)}",
+        "values": {
+            "LO": (pytest.approx(lo), "Hz"),
+            "input": (10.7e6, "Hz"),
+            "image": (pytest.approx(image), "Hz"),
+        },
         "fix": f"Declare injection: high, or choose the LO on the low side ({hz6(10.7e6 - 455e3)}).",
-        "stage": "conversion", "signal": "", "position": "",
+        "stage": "conversion",
+        "signal": "",
+        "position": "",
     }
 
 
 def test_no_filter_after_the_conversion_is_a_note():
-    text = edited(clean(), "  - stage: if-filter\n    paths:\n      narrow: {filter: FL1}\n"
-                           "      wide: {bandwidth: 180 kHz, note: \"bypass link for wideband signals\"}\n", "")
+    text = edited(
+        clean(),
+        "  - stage: if-filter\n    paths:\n      narrow: {filter: FL1}\n"
+        "      wide: {bandwidth: 180 kHz, note: \"bypass link for wideband signals\"}\n",
+        "",
+    )
     assert _one(text) == {
-        "rule": RULE, "level": "note", **where(text, "- stage: conversion", "stage", "chain[1]"),
+        "rule": RULE,
+        "level": "note",
+        **where(text, "- stage: conversion", "stage", "chain[1]"),
         "message": f"conversion: no if-filter stage follows, so the IF of {hz6(F_IF)} is checked against no "
-                   "passband",
+        "passband",
         "values": {"IF": (pytest.approx(F_IF), "Hz")},
         "fix": "Add the if-filter stage (with its filter part or passband) after the conversion.",
-        "stage": "conversion", "signal": "", "position": "",
+        "stage": "conversion",
+        "signal": "",
+        "position": "",
     }
 
 
@@ -124,11 +155,16 @@ ASSUMED_FIX = "Give the crystal tolerance and the source drift so the worst case
 def test_no_tolerance_and_no_drift_note_points_at_the_crystal():
     text = edited(edited(clean(), "    tolerance: 20 ppm\n", ""), "  drift: 500 Hz\n", "")
     assert _one(text) == {
-        "rule": RULE, "level": "note",
+        "rule": RULE,
+        "level": "note",
         **where(text, "frequency: 10.245 MHz", "10.245", "parts.X1.frequency"),
         "message": "conversion: the worst-case IF leaves out what is not given: parts.X1.tolerance (counted "
-                   "as 0 ppm), source.drift (counted as 0 Hz)",
-        "values": {}, "fix": ASSUMED_FIX, "stage": "conversion", "signal": "", "position": "",
+        "as 0 ppm), source.drift (counted as 0 Hz)",
+        "values": {},
+        "fix": ASSUMED_FIX,
+        "stage": "conversion",
+        "signal": "",
+        "position": "",
     }
     rows = {r[2]: r[3] for r in sheet_rows(check(text), RULE)}
     assert rows["LO worst-case spread (±)"] == 0.0 and rows["IF lowest (worst case)"] == pytest.approx(F_IF)
@@ -136,16 +172,24 @@ def test_no_tolerance_and_no_drift_note_points_at_the_crystal():
 
 def test_no_tolerance_alone_names_only_the_crystal():
     text = edited(clean(), "    tolerance: 20 ppm\n", "")
-    assert _one(text)["message"] == ("conversion: the worst-case IF leaves out what is not given: "
-                                     "parts.X1.tolerance (counted as 0 ppm)")
+    assert _one(text)["message"] == (
+        "conversion: the worst-case IF leaves out what is not given: parts.X1.tolerance (counted as 0 ppm)"
+    )
 
 
 def test_no_source_drift_alone_points_at_the_source():
     text = edited(clean(), "  drift: 500 Hz\n", "")
     assert _one(text) == {
-        "rule": RULE, "level": "note", **where(text, "kind: receiver-if", "kind", "source"),
-        "message": "conversion: the worst-case IF leaves out what is not given: source.drift (counted as 0 Hz)",
-        "values": {}, "fix": ASSUMED_FIX, "stage": "conversion", "signal": "", "position": "",
+        "rule": RULE,
+        "level": "note",
+        **where(text, "kind: receiver-if", "kind", "source"),
+        "message": "conversion: the worst-case IF leaves out what is not given: source.drift (counted as 0 "
+        "Hz)",
+        "values": {},
+        "fix": ASSUMED_FIX,
+        "stage": "conversion",
+        "signal": "",
+        "position": "",
     }
 
 
@@ -153,7 +197,10 @@ def test_source_drift_is_named_by_the_first_conversion_only():
     text = _two_conversions("10.245 MHz").replace(", drift: 200 Hz", "")
     found = of(check(text), RULE)
     assert [(f.level, f.message) for f in found] == [
-        ("note", "conversion 1: the worst-case IF leaves out what is not given: source.drift (counted as 0 Hz)")
+        (
+            "note",
+            "conversion 1: the worst-case IF leaves out what is not given: source.drift (counted as 0 Hz)",
+        )
     ]
     # both conversions are worked out: the second takes the first's IF as its input
     rows = {(r[1], r[2]): r[3] for r in sheet_rows(check(text), RULE)}
@@ -164,10 +211,12 @@ def test_source_drift_is_named_by_the_first_conversion_only():
 
 def test_a_missing_first_oscillator_does_not_stop_the_second():
     text = _two_conversions("10.245 MHz").replace(
-        "    oscillator: {crystal: X1, injection: high, mode: overtone}\n", "")
+        "    oscillator: {crystal: X1, injection: high, mode: overtone}\n", ""
+    )
     found = of(check(text), RULE)
     assert [f.message for f in found] == [
-        "conversion 1: chain[0].oscillator is not given, so the LO and the IF it makes cannot be computed"]
+        "conversion 1: chain[0].oscillator is not given, so the LO and the IF it makes cannot be computed"
+    ]
     rows = {(r[1], r[2]): r[3] for r in sheet_rows(check(text), RULE)}
     # the second conversion runs from the first's intended 10.7 MHz: 10.7 MHz - 10.245 MHz
     assert rows[("conversion 2", "IF (nominal)")] == pytest.approx(455e3)

@@ -12,8 +12,10 @@ from freqplan_pins import F_IF, IF_UNC, LO, LO_UNC, PULL, ceramic, clean, hz6, k
 from speccheck.config import Settings
 
 RULE = "freqplan.filter-fit"
-FIX = ("Use the crystal (and load capacitors) that put the IF on the filter's centre, or a filter centred "
-       "on the IF the oscillator makes; reduce drift where the margin is thin.")
+FIX = (
+    "Use the crystal (and load capacitors) that put the IF on the filter's centre, or a filter centred "
+    "on the IF the oscillator makes; reduce drift where the margin is thin."
+)
 FL1 = ceramic(20e3)  # FL1: 20 kHz at 6 dB, no skirts stated: the typical ceramic shape
 FL1_TEXT = "FL1, 455 kHz ± 10 kHz; typical ceramic-filter skirts, twice as wide at 40 dB"
 TONE = "a 3 kHz tone at the full ±5 kHz deviation"
@@ -29,8 +31,10 @@ def _one(text: str, settings: Settings | None = None) -> dict:
 def _why(drift: float, xtal: float) -> str:
     """The words for the IF's spread, as the chain walk gives them: source drift, the crystal's
     20 ppm (its tolerance times its frequency) and its pulling D(20.5 pF) - D(20 pF) in ppm."""
-    return (f"±{khz4(drift)} source drift, ±20 ppm on X1 ({khz4(20e-6 * xtal)}), "
-            f"{PULL * 1e6:+.1f} ppm pulling of X1 by its load")
+    return (
+        f"±{khz4(drift)} source drift, ±20 ppm on X1 ({khz4(20e-6 * xtal)}), "
+        f"{PULL * 1e6:+.1f} ppm pulling of X1 by its load"
+    )
 
 
 def _margin(f_if: float, unc: float, bn: float) -> float:
@@ -39,9 +43,14 @@ def _margin(f_if: float, unc: float, bn: float) -> float:
 
 
 def _values(f_if: float, unc: float, bn: float) -> dict:
-    return {"IF (nominal)": (pytest.approx(f_if), "Hz"), "IF spread (±)": (pytest.approx(unc), "Hz"),
-            "necessary bandwidth": (bn, "Hz"), "passband low": (445e3, "Hz"), "passband high": (465e3, "Hz"),
-            "margin": (pytest.approx(_margin(f_if, unc, bn)), "Hz")}
+    return {
+        "IF (nominal)": (pytest.approx(f_if), "Hz"),
+        "IF spread (±)": (pytest.approx(unc), "Hz"),
+        "necessary bandwidth": (bn, "Hz"),
+        "passband low": (445e3, "Hz"),
+        "passband high": (465e3, "Hz"),
+        "margin": (pytest.approx(_margin(f_if, unc, bn)), "Hz"),
+    }
 
 
 def test_clean_plan_sheet_rows():
@@ -53,9 +62,22 @@ def test_clean_plan_sheet_rows():
         (*p, "response model", "equivalent Butterworth", "", "", ""),
         (*p, "width quoted at", 6.0, "dB", "", ""),
         (*p, "response order", pytest.approx(FL1.order), "", "", ""),
-        (*p, "margin for repeater voice (worst case)", pytest.approx(_margin(F_IF, IF_UNC, 16e3)), "Hz", "", ""),
-        (*p, "share of repeater voice passed at the worst-case IF", pytest.approx(worst * 100, abs=0.006), "%",
-         "", ""),
+        (
+            *p,
+            "margin for repeater voice (worst case)",
+            pytest.approx(_margin(F_IF, IF_UNC, 16e3)),
+            "Hz",
+            "",
+            "",
+        ),
+        (
+            *p,
+            "share of repeater voice passed at the worst-case IF",
+            pytest.approx(worst * 100, abs=0.006),
+            "%",
+            "",
+            "",
+        ),
     ]
 
 
@@ -69,13 +91,22 @@ def test_wrong_crystal_is_an_error_at_the_crystal():
     centre = share(5e3, 3e3, FL1)
     assert worst < 0.5 < 0.98 < centre  # an error against no finding on centre
     assert _one(text) == {
-        "rule": RULE, "level": "error", **where(text, "frequency: 10.235 MHz", "10.235", "parts.X1.frequency"),
-        "message": f"repeater voice does not fit the narrow path at the worst-case IF: the IF is {hz6(f_if)} ± "
-                   f"{khz4(unc)} (LO {hz6(lo)}; {_why(500, 10.235e6)}), so the narrow path ({FL1_TEXT}) passes "
-                   f"{share_text(worst)} of the power of {TONE} there, against {share_text(centre)} on its centre",
-        "values": {**_values(f_if, unc, 16e3), "share passed (worst case)": (pytest.approx(worst * 100), "%"),
-                   "share passed (on the filter's centre)": (pytest.approx(centre * 100), "%")},
-        "fix": FIX, "stage": "if-filter", "signal": "", "position": "",
+        "rule": RULE,
+        "level": "error",
+        **where(text, "frequency: 10.235 MHz", "10.235", "parts.X1.frequency"),
+        "message": f"repeater voice does not fit the narrow path at the worst-case IF: the IF is {hz6(f_if)} "
+        "± "
+        f"{khz4(unc)} (LO {hz6(lo)}; {_why(500, 10.235e6)}), so the narrow path ({FL1_TEXT}) passes "
+        f"{share_text(worst)} of the power of {TONE} there, against {share_text(centre)} on its centre",
+        "values": {
+            **_values(f_if, unc, 16e3),
+            "share passed (worst case)": (pytest.approx(worst * 100), "%"),
+            "share passed (on the filter's centre)": (pytest.approx(centre * 100), "%"),
+        },
+        "fix": FIX,
+        "stage": "if-filter",
+        "signal": "",
+        "position": "",
     }
 
 
@@ -87,14 +118,22 @@ def test_wide_drift_is_a_warning_at_the_filter():
     centre = share(5e3, 3e3, FL1)
     assert 0.5 < worst < 0.8
     assert _one(text) == {
-        "rule": RULE, "level": "warning", **where(text, "FL1: {kind: filter", "20 kHz", "parts.FL1.bandwidth"),
+        "rule": RULE,
+        "level": "warning",
+        **where(text, "FL1: {kind: filter", "20 kHz", "parts.FL1.bandwidth"),
         "message": f"repeater voice sits on the skirt of the narrow path at the worst-case IF: the IF is "
-                   f"{hz6(F_IF)} ± {khz4(unc)} (LO {hz6(LO)}; {_why(7e3, 10.245e6)}), so the narrow path "
-                   f"({FL1_TEXT}) passes {share_text(worst)} of the power of {TONE} there, against "
-                   f"{share_text(centre)} on its centre",
-        "values": {**_values(F_IF, unc, 16e3), "share passed (worst case)": (pytest.approx(worst * 100), "%"),
-                   "share passed (on the filter's centre)": (pytest.approx(centre * 100), "%")},
-        "fix": FIX, "stage": "if-filter", "signal": "", "position": "",
+        f"{hz6(F_IF)} ± {khz4(unc)} (LO {hz6(LO)}; {_why(7e3, 10.245e6)}), so the narrow path "
+        f"({FL1_TEXT}) passes {share_text(worst)} of the power of {TONE} there, against "
+        f"{share_text(centre)} on its centre",
+        "values": {
+            **_values(F_IF, unc, 16e3),
+            "share passed (worst case)": (pytest.approx(worst * 100), "%"),
+            "share passed (on the filter's centre)": (pytest.approx(centre * 100), "%"),
+        },
+        "fix": FIX,
+        "stage": "if-filter",
+        "signal": "",
+        "position": "",
     }
 
 
@@ -106,12 +145,19 @@ def test_am_signal_past_the_edge_is_an_error_at_the_crystal():
     f_if, unc = 10.7e6 - lo, 500 + 20e-6 * 10.235e6
     margin = _margin(f_if, unc, 6e3)
     assert _one(text) == {
-        "rule": RULE, "level": "error", **where(text, "frequency: 10.235 MHz", "10.235", "parts.X1.frequency"),
-        "message": f"repeater voice does not fit the narrow path at the worst-case IF: the IF is {hz6(f_if)} ± "
-                   f"{khz4(unc)} (LO {hz6(lo)}; {_why(500, 10.235e6)}), so the 6 kHz signal reaches "
-                   f"{hz6(f_if - unc - 3e3)} to {hz6(f_if + unc + 3e3)}, {khz4(-margin)} past the passband "
-                   "445 kHz to 465 kHz (FL1, 455 kHz ± 10 kHz)",
-        "values": _values(f_if, unc, 6e3), "fix": FIX, "stage": "if-filter", "signal": "", "position": "",
+        "rule": RULE,
+        "level": "error",
+        **where(text, "frequency: 10.235 MHz", "10.235", "parts.X1.frequency"),
+        "message": f"repeater voice does not fit the narrow path at the worst-case IF: the IF is {hz6(f_if)} "
+        "± "
+        f"{khz4(unc)} (LO {hz6(lo)}; {_why(500, 10.235e6)}), so the 6 kHz signal reaches "
+        f"{hz6(f_if - unc - 3e3)} to {hz6(f_if + unc + 3e3)}, {khz4(-margin)} past the passband "
+        "445 kHz to 465 kHz (FL1, 455 kHz ± 10 kHz)",
+        "values": _values(f_if, unc, 6e3),
+        "fix": FIX,
+        "stage": "if-filter",
+        "signal": "",
+        "position": "",
     }
 
 
@@ -124,10 +170,13 @@ def test_am_signal_with_wide_drift_is_an_error_at_the_filter():
     got = _one(text)
     assert got["level"] == "error" and got["values"] == _values(F_IF, unc, 6e3)
     assert {k: got[k] for k in ("line", "col", "path")} == where(
-        text, "FL1: {kind: filter", "20 kHz", "parts.FL1.bandwidth")
-    assert got["message"].endswith(f"so the 6 kHz signal reaches {hz6(F_IF - unc - 3e3)} to "
-                                   f"{hz6(F_IF + unc + 3e3)}, {khz4(-margin)} past the passband 445 kHz to "
-                                   "465 kHz (FL1, 455 kHz ± 10 kHz)")
+        text, "FL1: {kind: filter", "20 kHz", "parts.FL1.bandwidth"
+    )
+    assert got["message"].endswith(
+        f"so the 6 kHz signal reaches {hz6(F_IF - unc - 3e3)} to "
+        f"{hz6(F_IF + unc + 3e3)}, {khz4(-margin)} past the passband 445 kHz to "
+        "465 kHz (FL1, 455 kHz ± 10 kHz)"
+    )
 
 
 def test_am_signal_inside_or_wider_than_the_passband_is_left_alone():
@@ -135,8 +184,11 @@ def test_am_signal_inside_or_wider_than_the_passband_is_left_alone():
     # is path-width's question, not this rule's
     text = edited(clean(), *AM)
     assert of(check(text), RULE) == []
-    wide = edited(edited(text, "audio_max: 3 kHz", "audio_max: 12 kHz"), "frequency: 10.245 MHz",
-                  "frequency: 10.235 MHz")
+    wide = edited(
+        edited(text, "audio_max: 3 kHz", "audio_max: 12 kHz"),
+        "frequency: 10.245 MHz",
+        "frequency: 10.235 MHz",
+    )
     assert of(check(wide), RULE) == []
 
 
@@ -157,12 +209,18 @@ chain:
 """
 
 
-@pytest.mark.parametrize("f, level", [
-    # the warning_share 80 % trips between 5.5 kHz (82.0 %) and 6 kHz (76.6 %) off centre (shares below)
-    (460.5e3, None), (461e3, "warning"), (461.5e3, "warning"),
-    # the error_share 50 % between 9 kHz (51.7 %) and 9.5 kHz (48.1 %)
-    (464e3, "warning"), (464.5e3, "error"),
-])
+@pytest.mark.parametrize(
+    "f, level",
+    [
+        # the warning_share 80 % trips between 5.5 kHz (82.0 %) and 6 kHz (76.6 %) off centre (shares below)
+        (460.5e3, None),
+        (461e3, "warning"),
+        (461.5e3, "warning"),
+        # the error_share 50 % between 9 kHz (51.7 %) and 9.5 kHz (48.1 %)
+        (464e3, "warning"),
+        (464.5e3, "error"),
+    ],
+)
 def test_offset_without_a_conversion_points_at_the_source(f, level):
     text = _direct(f"{f / 1e3:g} kHz")
     worst, centre = share(5e3, 3e3, FL1, f - 455e3), share(5e3, 3e3, FL1)
@@ -172,17 +230,28 @@ def test_offset_without_a_conversion_points_at_the_source(f, level):
     if level is None:
         assert found == []
         return
-    head = ("voice does not fit the only path at the worst-case IF" if level == "error"
-            else "voice sits on the skirt of the only path at the worst-case IF")
+    head = (
+        "voice does not fit the only path at the worst-case IF"
+        if level == "error"
+        else "voice sits on the skirt of the only path at the worst-case IF"
+    )
     assert facts(found[0]) == {
-        "rule": RULE, "level": level, **where(text, "source:", f"{f / 1e3:g} kHz", "source.frequency"),
-        "message": f"{head}: the IF is {hz6(f)} ± 0 Hz (the input; ), so the only path (FL1, 455 kHz ± 10 kHz; "
-                   f"typical ceramic-filter skirts, twice as wide at 40 dB) passes {share_text(worst)} of the "
-                   f"power of {TONE} there, against {share_text(centre)} on its centre",
-        "values": {**{k: v for k, v in _values(f, 0.0, 16e3).items()},
-                   "share passed (worst case)": (pytest.approx(worst * 100), "%"),
-                   "share passed (on the filter's centre)": (pytest.approx(centre * 100), "%")},
-        "fix": FIX, "stage": "if-filter", "signal": "", "position": "",
+        "rule": RULE,
+        "level": level,
+        **where(text, "source:", f"{f / 1e3:g} kHz", "source.frequency"),
+        "message": f"{head}: the IF is {hz6(f)} ± 0 Hz (the input; ), so the only path (FL1, 455 kHz ± 10 "
+        "kHz; "
+        f"typical ceramic-filter skirts, twice as wide at 40 dB) passes {share_text(worst)} of the "
+        f"power of {TONE} there, against {share_text(centre)} on its centre",
+        "values": {
+            **_values(f, 0.0, 16e3),
+            "share passed (worst case)": (pytest.approx(worst * 100), "%"),
+            "share passed (on the filter's centre)": (pytest.approx(centre * 100), "%"),
+        },
+        "fix": FIX,
+        "stage": "if-filter",
+        "signal": "",
+        "position": "",
     }
 
 
@@ -194,9 +263,13 @@ def test_the_worst_end_of_the_spread_is_taken():
     got = _one(text)
     assert got["level"] == "warning"
     assert got["values"]["share passed (worst case)"] == (pytest.approx(worst * 100), "%")
-    assert got["message"].startswith("voice sits on the skirt of the only path at the worst-case IF: the IF is "
-                                     "455 kHz ± 6.5 kHz (the input; ±6.5 kHz source drift), so")
-    assert {k: got[k] for k in ("line", "col", "path")} == where(text, "FL1:", "20 kHz", "parts.FL1.bandwidth")
+    assert got["message"].startswith(
+        "voice sits on the skirt of the only path at the worst-case IF: the IF is "
+        "455 kHz ± 6.5 kHz (the input; ±6.5 kHz source drift), so"
+    )
+    assert {k: got[k] for k in ("line", "col", "path")} == where(
+        text, "FL1:", "20 kHz", "parts.FL1.bandwidth"
+    )
 
 
 def test_a_share_no_worse_than_on_centre_is_left_to_path_width():
@@ -211,14 +284,18 @@ def test_a_share_no_worse_than_on_centre_is_left_to_path_width():
 
 def test_a_signal_cut_even_on_centre_is_left_to_path_width():
     # broadcast FM (±75 kHz, 15 kHz) through a 20 kHz filter passes under 50 % even on centre
-    text = _direct("464.5 kHz").replace("deviation: 5 kHz, audio_max: 3 kHz", "deviation: 75 kHz, audio_max: 15 kHz")
+    text = _direct("464.5 kHz").replace(
+        "deviation: 5 kHz, audio_max: 3 kHz", "deviation: 75 kHz, audio_max: 15 kHz"
+    )
     assert share(75e3, 15e3, FL1) < 0.5
     assert of(check(text), RULE) == []
 
 
 def test_two_signals_on_one_path_publish_its_edges_once():
     text = _direct("455 kHz").replace(
-        "audio_max: 3 kHz}\n", "audio_max: 3 kHz}\n  - {name: data, modulation: fm, deviation: 2 kHz, audio_max: 1 kHz}\n")
+        "audio_max: 3 kHz}\n",
+        "audio_max: 3 kHz}\n  - {name: data, modulation: fm, deviation: 2 kHz, audio_max: 1 kHz}\n",
+    )
     names = [r[2] for r in sheet_rows(check(text), RULE)]
     assert names.count("passband low edge") == 1 and names.count("response order") == 1
     assert "margin for voice (worst case)" in names and "margin for data (worst case)" in names

@@ -17,8 +17,10 @@ from speccheck.config import Settings
 RULE = "freqplan.mixer-spurs"
 UPSTREAM = butterworth(1e6, 6.0, 2e6, 60.0)  # the clean plan's source band ahead of the mixer
 FL1 = ceramic(20e3)
-FIX = ("Move the LO (other injection side or another IF), narrow the passband ahead of the mixer, or shield "
-       "and decouple the limiter and oscillator from the input.")
+FIX = (
+    "Move the LO (other injection side or another IF), narrow the passband ahead of the mixer, or shield "
+    "and decouple the limiter and oscillator from the input."
+)
 
 
 def envelope_db(n: int, asym: float = 0.02) -> float:
@@ -49,8 +51,15 @@ def _spurs(lo: float, centre: float, width: float, low: float, high: float, orde
                     continue
                 ms = "fs" if m == 1 else f"{m}·fs"
                 ns = "fLO" if abs(k) == 1 else f"{abs(k)}·fLO"
-                name = (f"{ms} = IF" if k == 0 else f"{ms} + {ns} = IF" if k > 0
-                        else f"{ms} − {ns} = IF" if s > 0 else f"{ns} − {ms} = IF")
+                name = (
+                    f"{ms} = IF"
+                    if k == 0
+                    else f"{ms} + {ns} = IF"
+                    if k > 0
+                    else f"{ms} − {ns} = IF"
+                    if s > 0
+                    else f"{ns} − {ms} = IF"
+                )
                 out.append(("spur " + name, fs, m, k))
     return out
 
@@ -68,15 +77,21 @@ def _if_harmonic_level(n: int) -> float:
 def _clean_responses() -> list:
     """Every response of the clean plan, nearest the wanted 10.7 MHz first: (name, f, level)."""
     out = [(name, fs, _spur_level(fs, m, k)) for name, fs, m, k in _spurs(LO, 455e3, 20e3, 10.2e6, 11.2e6)]
-    out += [(f"IF harmonic {n}", n * F_IF, _if_harmonic_level(n)) for n in range(2, 25) if 10.2e6 <= n * F_IF <= 11.2e6]
+    out += [
+        (f"IF harmonic {n}", n * F_IF, _if_harmonic_level(n))
+        for n in range(2, 25)
+        if 10.2e6 <= n * F_IF <= 11.2e6
+    ]
     return sorted(out, key=lambda t: abs(t[1] - 10.7e6))
 
 
 def test_clean_plan_lists_every_response_with_its_level():
     expected = []
     for name, f, level in _clean_responses():
-        expected += [("spurs", "conversion", name, pytest.approx(f), "Hz", "", ""),
-                     ("spurs", "conversion", f"{name} estimated level", pytest.approx(round(level, 1)), "dBm", "", "")]
+        expected += [
+            ("spurs", "conversion", name, pytest.approx(f), "Hz", "", ""),
+            ("spurs", "conversion", f"{name} estimated level", pytest.approx(round(level, 1)), "dBm", "", ""),
+        ]
     assert sheet_rows(check(clean()), RULE) == expected
     assert len(expected) == 12 and of(check(clean()), RULE) == []
 
@@ -84,11 +99,17 @@ def test_clean_plan_lists_every_response_with_its_level():
 def test_max_listed_cuts_the_list_and_counts_the_rest():
     rows = sheet_rows(check(clean(), settings=_settings(max_listed=2)), RULE)
     first = _clean_responses()[:2]
-    assert [r[2] for r in rows] == [first[0][0], f"{first[0][0]} estimated level", first[1][0],
-                                    f"{first[1][0]} estimated level", "more responses not listed"]
+    assert [r[2] for r in rows] == [
+        first[0][0],
+        f"{first[0][0]} estimated level",
+        first[1][0],
+        f"{first[1][0]} estimated level",
+        "more responses not listed",
+    ]
     assert rows[-1][3] == len(_clean_responses()) - 2
     assert [r[2] for r in sheet_rows(check(clean(), settings=_settings(max_listed=-3)), RULE)] == [
-        "more responses not listed"]
+        "more responses not listed"
+    ]
 
 
 def _text(name: str, f: float, level: float | None, tag: str = "") -> str:
@@ -107,27 +128,50 @@ def test_wider_window_warns_of_the_half_if_spur_and_notes_the_harmonics():
     h23, h24 = 23 * F_IF, 24 * F_IF
     where_ = where(text, OSC, "low,", "chain[1].oscillator.injection")
     assert found == [
-        {"rule": RULE, "level": "warning", **where_,
-         "message": "conversion: 1 response within 250 kHz of the wanted 10.7 MHz (LO "
-                    f"{hz6(LO)}) strong enough to hear (within 10 dB of the weakest wanted -100 dBm): "
-                    f"{_text('spur 2·fs − 2·fLO = IF', half, spur_level)} (a -30 dBm signal there, "
-                    f"{UPSTREAM(half - 10.7e6):.0f} dB down ahead of the mixer, LO harmonic 2 at {envelope_db(2):.0f} "
-                    "dB, 20 dB for signal order 2)",
-         "values": {"LO": (pytest.approx(LO), "Hz"), "spur 2·fs − 2·fLO = IF": (pytest.approx(half), "Hz"),
-                    "offset": (pytest.approx(half - 10.7e6), "Hz"),
-                    "estimated level": (pytest.approx(spur_level), "dBm"), "weakest wanted": (-100.0, "dBm")},
-         "fix": FIX, "stage": "conversion", "signal": "", "position": ""},
-        {"rule": RULE, "level": "note", **where_,
-         "message": "conversion: 2 harmonics of the build's own IF or LO within 250 kHz of the wanted 10.7 MHz, "
-                    f"estimated too weak to hear: {_text('IF harmonic 24', h24, _if_harmonic_level(24))}; "
-                    f"{_text('IF harmonic 23', h23, _if_harmonic_level(23))} (limiter 0 dBm, harmonic 24 at "
-                    f"{envelope_db(24):.0f} dB, 60 dB isolation to the input, {FL1(abs(h24 - LO) - 455e3):.0f} dB "
-                    "down in the narrow path)",
-         "values": {"LO": (pytest.approx(LO), "Hz"), "IF harmonic 24": (pytest.approx(h24), "Hz"),
-                    "offset": (pytest.approx(h24 - 10.7e6), "Hz"),
-                    "estimated level": (pytest.approx(_if_harmonic_level(24)), "dBm"),
-                    "weakest wanted": (-100.0, "dBm")},
-         "fix": "", "stage": "conversion", "signal": "", "position": ""},
+        {
+            "rule": RULE,
+            "level": "warning",
+            **where_,
+            "message": "conversion: 1 response within 250 kHz of the wanted 10.7 MHz (LO "
+            f"{hz6(LO)}) strong enough to hear (within 10 dB of the weakest wanted -100 dBm): "
+            f"{_text('spur 2·fs − 2·fLO = IF', half, spur_level)} (a -30 dBm signal there, "
+            f"{UPSTREAM(half - 10.7e6):.0f} dB down ahead of the mixer, LO harmonic 2 at "
+            f"{envelope_db(2):.0f} "
+            "dB, 20 dB for signal order 2)",
+            "values": {
+                "LO": (pytest.approx(LO), "Hz"),
+                "spur 2·fs − 2·fLO = IF": (pytest.approx(half), "Hz"),
+                "offset": (pytest.approx(half - 10.7e6), "Hz"),
+                "estimated level": (pytest.approx(spur_level), "dBm"),
+                "weakest wanted": (-100.0, "dBm"),
+            },
+            "fix": FIX,
+            "stage": "conversion",
+            "signal": "",
+            "position": "",
+        },
+        {
+            "rule": RULE,
+            "level": "note",
+            **where_,
+            "message": "conversion: 2 harmonics of the build's own IF or LO within 250 kHz of the wanted "
+            "10.7 MHz, "
+            f"estimated too weak to hear: {_text('IF harmonic 24', h24, _if_harmonic_level(24))}; "
+            f"{_text('IF harmonic 23', h23, _if_harmonic_level(23))} (limiter 0 dBm, harmonic 24 at "
+            f"{envelope_db(24):.0f} dB, 60 dB isolation to the input, {FL1(abs(h24 - LO) - 455e3):.0f} dB "
+            "down in the narrow path)",
+            "values": {
+                "LO": (pytest.approx(LO), "Hz"),
+                "IF harmonic 24": (pytest.approx(h24), "Hz"),
+                "offset": (pytest.approx(h24 - 10.7e6), "Hz"),
+                "estimated level": (pytest.approx(_if_harmonic_level(24)), "dBm"),
+                "weakest wanted": (-100.0, "dBm"),
+            },
+            "fix": "",
+            "stage": "conversion",
+            "signal": "",
+            "position": "",
+        },
     ]
 
 
@@ -159,8 +203,10 @@ def test_many_heard_responses_are_cut_at_four():
     assert [f.level for f in found] == ["warning"]
     shown = "; ".join(_text(n, f, lv) for n, f, lv in resp[:4])
     assert found[0].message.startswith(
-        f"conversion: 6 responses within 1 MHz of the wanted 10.7 MHz (LO {hz6(LO)}) strong enough to hear (within "
-        f"300 dB of the weakest wanted -100 dBm): {shown} and 2 more (")
+        f"conversion: 6 responses within 1 MHz of the wanted 10.7 MHz (LO {hz6(LO)}) strong enough to hear "
+        "(within "
+        f"300 dB of the weakest wanted -100 dBm): {shown} and 2 more ("
+    )
 
 
 def test_without_a_strongest_level_spurs_have_no_level():
@@ -180,7 +226,7 @@ def test_weakest_falls_back_to_the_setting():
     found = of(check(text, settings=_settings(close=250e3, weakest=-60.0)), RULE)
     assert found == [] or all("2·fs" not in f.message for f in found)
     found = of(check(text, settings=_settings(close=250e3, weakest=-70.0)), RULE)
-    f = [x for x in found if x.level == "warning"][0]
+    f = next(x for x in found if x.level == "warning")
     assert "(within 10 dB of the weakest wanted -70 dBm)" in f.message
     assert {v.name: v.value for v in f.values}["weakest wanted"] == -70.0
 
@@ -190,8 +236,12 @@ def test_order_is_clamped_and_limits_the_search():
     # list holds the IF harmonics alone; order 0 counts as 1
     for order in (1, 0, -4):
         names = [r[2] for r in sheet_rows(check(clean(), settings=_settings(order=order)), RULE)]
-        assert names == ["IF harmonic 24", "IF harmonic 24 estimated level", "IF harmonic 23",
-                         "IF harmonic 23 estimated level"]
+        assert names == [
+            "IF harmonic 24",
+            "IF harmonic 24 estimated level",
+            "IF harmonic 23",
+            "IF harmonic 23 estimated level",
+        ]
     # order 2: the half-IF spur joins
     names = [r[2] for r in sheet_rows(check(clean(), settings=_settings(order=2)), RULE)]
     assert "spur 2·fs − 2·fLO = IF" in names and "spur 3·fs − 3·fLO = IF" not in names
@@ -215,16 +265,21 @@ def test_per_order_and_isolation_and_limiter_level_are_settings():
     rows = {r[2]: r[3] for r in sheet_rows(check(clean(), settings=settings), RULE)}
     f3 = (455e3 + 3 * LO) / 3
     assert rows["spur 3·fs − 3·fLO = IF estimated level"] == pytest.approx(
-        round(-30 - UPSTREAM(f3 - 10.7e6) + envelope_db(3) - 2 * 30.0, 1))
+        round(-30 - UPSTREAM(f3 - 10.7e6) + envelope_db(3) - 2 * 30.0, 1)
+    )
     h = 23 * F_IF
     assert rows["IF harmonic 23 estimated level"] == pytest.approx(
-        round(6.0 + envelope_db(23) - 40.0 - FL1(abs(h - LO) - 455e3), 1))
+        round(6.0 + envelope_db(23) - 40.0 - FL1(abs(h - LO) - 455e3), 1)
+    )
 
 
 def test_two_paths_in_use_tag_each_response():
-    text = edited(clean(), "    service: voice\n    path: narrow\n",
-                  "    service: voice\n    path: narrow\n  - {name: wide one, modulation: fm, deviation: 75 kHz, "
-                  "audio_max: 15 kHz, path: wide}\n")
+    text = edited(
+        clean(),
+        "    service: voice\n    path: narrow\n",
+        "    service: voice\n    path: narrow\n  - {name: wide one, modulation: fm, deviation: 75 kHz, "
+        "audio_max: 15 kHz, path: wide}\n",
+    )
     names = [r[2] for r in sheet_rows(check(text, settings=_settings(max_listed=999)), RULE)]
     assert "IF harmonic 23 (narrow)" in names and "IF harmonic 23 (wide)" in names
     assert "spur 2·fs − 2·fLO = IF (narrow)" in names
@@ -233,14 +288,24 @@ def test_two_paths_in_use_tag_each_response():
 def test_nothing_ahead_looks_around_the_wanted_input_only():
     # no band ahead: only what lies within the close window (50 kHz) of 10.7 MHz; a 250 kHz window
     # takes in the IF harmonics 23 and 24 and the half-IF spur, which is then taken 0 dB down
-    text = edited(clean(), "  bandwidth: 1 MHz          # the receiver's first IF bandwidth ahead of the tap\n", "")
+    text = edited(
+        clean(), "  bandwidth: 1 MHz          # the receiver's first IF bandwidth ahead of the tap\n", ""
+    )
     assert sheet_rows(check(text), RULE) == []
     rows = {r[2]: r[3] for r in sheet_rows(check(text, settings=_settings(close=250e3)), RULE)}
     half = LO + 455e3 / 2
-    assert rows["spur 2·fs − 2·fLO = IF estimated level"] == pytest.approx(round(-30 + envelope_db(2) - 20, 1))
+    assert rows["spur 2·fs − 2·fLO = IF estimated level"] == pytest.approx(
+        round(-30 + envelope_db(2) - 20, 1)
+    )
     assert rows["spur 2·fs − 2·fLO = IF"] == pytest.approx(half)
-    assert set(rows) == {"spur 2·fs − 2·fLO = IF", "spur 2·fs − 2·fLO = IF estimated level", "IF harmonic 23",
-                         "IF harmonic 23 estimated level", "IF harmonic 24", "IF harmonic 24 estimated level"}
+    assert set(rows) == {
+        "spur 2·fs − 2·fLO = IF",
+        "spur 2·fs − 2·fLO = IF estimated level",
+        "IF harmonic 23",
+        "IF harmonic 23 estimated level",
+        "IF harmonic 24",
+        "IF harmonic 24 estimated level",
+    }
 
 
 def test_spur_names_of_every_form():
@@ -254,7 +319,14 @@ def test_spur_names_of_every_form():
     expected = {n for n, *_ in _spurs(227.5e3, 455e3, 20e3, low, high)}
     expected |= {f"IF harmonic {n}" for n in range(2, 4) if low <= n * 455e3 <= high}
     expected |= {f"LO harmonic {n}" for n in range(2, 6) if low <= n * 227.5e3 <= high}
-    expected |= {f"LO harmonic {n} inside the IF passband" for n in range(1, 6) if 445e3 <= n * 227.5e3 <= 465e3}
+    expected |= {
+        f"LO harmonic {n} inside the IF passband" for n in range(1, 6) if 445e3 <= n * 227.5e3 <= 465e3
+    }
     assert names == expected
-    assert {"spur fs = IF", "spur fs + fLO = IF", "spur 3·fLO − fs = IF", "spur 2·fs − fLO = IF",
-            "LO harmonic 2 inside the IF passband"} <= names
+    assert {
+        "spur fs = IF",
+        "spur fs + fLO = IF",
+        "spur 3·fLO − fs = IF",
+        "spur 2·fs − fLO = IF",
+        "LO harmonic 2 inside the IF passband",
+    } <= names
