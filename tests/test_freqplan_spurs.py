@@ -33,7 +33,7 @@ def envelope_db(n: int, asym: float = 0.02) -> float:
     return max(-160.0, 20 * math.log10(a)) if a > 1e-8 else -160.0
 
 
-def _settings(**values: float) -> Settings:
+def _settings(**values: object) -> Settings:
     return Settings(rule_settings={RULE: values})
 
 
@@ -330,3 +330,13 @@ def test_spur_names_of_every_form():
         "spur 2·fs − fLO = IF",
         "LO harmonic 2 inside the IF passband",
     } <= names
+
+
+def test_a_setting_that_is_not_a_number_falls_back_to_the_default():
+    # close "wide" and order "many" cannot be read: the defaults (50 kHz, order 5) stand
+    settings = _settings(close="wide", order="many")
+    assert sheet_rows(check(clean(), settings=settings), RULE) == sheet_rows(check(clean()), RULE)
+    assert of(check(clean(), settings=settings), RULE) == []
+    # and a window given as text that reads as a number is taken
+    wide = _settings(close="250000")
+    assert [f.level for f in of(check(clean(), settings=wide), RULE)] == ["warning", "note"]
