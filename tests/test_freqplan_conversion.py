@@ -220,3 +220,21 @@ def test_a_missing_first_oscillator_does_not_stop_the_second():
     rows = {(r[1], r[2]): r[3] for r in sheet_rows(check(text), RULE)}
     # the second conversion runs from the first's intended 10.7 MHz: 10.7 MHz - 10.245 MHz
     assert rows[("conversion 2", "IF (nominal)")] == pytest.approx(455e3)
+
+
+def test_only_the_first_missing_input_of_a_conversion_is_named():
+    # conversion 1 has no oscillator and no intended IF, so conversion 2 has no input frequency; it has
+    # no oscillator either, but one note per conversion names the first thing missing
+    text = _two_conversions("10.245 MHz")
+    for line in (
+        "    oscillator: {crystal: X1, injection: high, mode: overtone}\n",
+        "    if_frequency: 10.7 MHz\n",
+        "    oscillator: {crystal: X2, injection: low, mode: fundamental}\n",
+    ):
+        text = edited(text, line, "")
+    assert [f.message for f in of(check(text), RULE)] == [
+        "conversion 1: chain[0].oscillator is not given, so the LO and the IF it makes cannot be computed",
+        "conversion 2: source.frequency (or chain[2].input_frequency) is not given, so the LO and the IF it "
+        "makes "
+        "cannot be computed",
+    ]
