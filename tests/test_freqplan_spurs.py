@@ -340,3 +340,66 @@ def test_a_setting_that_is_not_a_number_falls_back_to_the_default():
     # and a window given as text that reads as a number is taken
     wide = _settings(close="250000")
     assert [f.level for f in of(check(clean(), settings=wide), RULE)] == ["warning", "note"]
+
+
+def test_lo_harmonics_on_the_if_and_on_the_input_are_noted_and_spurs_there_warned():
+    # the same 682.5 kHz plan: 2 x 227.5 kHz lands in the IF passband and 3 x 227.5 kHz on the input
+    # (both birdies, no level estimated); the products 5 fLO - fs and 2 fs - 4 fLO answer at the input
+    # itself, each at -30 dBm less its LO harmonic's weight and 20 dB per signal order above the first
+    text = edited(clean(), OSC, "oscillator: {frequency: 227.5 kHz, injection: low}")
+    text = edited(text, "  frequency: 10.7 MHz\n", "  frequency: 682.5 kHz\n")
+    found = [facts(f) for f in of(check(text), RULE)]
+    at = where(text, "oscillator: {frequency", "low}", "chain[1].oscillator.injection")
+    l5, l4 = -30 + envelope_db(5), -30 + envelope_db(4) - 20
+    assert sorted(found, key=lambda f: f["level"]) == [
+        {
+            "rule": RULE,
+            "level": "note",
+            **at,
+            "message": "conversion: 2 harmonics of the build's own IF or LO within 50 kHz of the wanted "
+            "682.5 kHz, estimated too weak to hear: LO harmonic 2 inside the IF passband at 455 kHz (+0 Hz, "
+            "level not "
+            "estimated); LO harmonic 3 at 682.5 kHz (+0 Hz, level not estimated)",
+            "values": {
+                "LO": (227.5e3, "Hz"),
+                "LO harmonic 2 inside the IF passband": (455e3, "Hz"),
+                "offset": (0.0, "Hz"),
+            },
+            "fix": "",
+            "stage": "conversion",
+            "signal": "",
+            "position": "",
+        },
+        {
+            "rule": RULE,
+            "level": "warning",
+            **at,
+            "message": "conversion: 2 responses within 50 kHz of the wanted 682.5 kHz (LO 227.5 kHz) strong "
+            "enough to "
+            "hear (within 10 dB of the weakest wanted -100 dBm): spur 5·fLO − fs = IF at 682.5 kHz "
+            "(+0 Hz, "
+            f"about {l5:.0f} dBm); spur 2·fs − 4·fLO = IF at 682.5 kHz (+0 Hz, about {l4:.0f} dBm) "
+            "(a -30 "
+            f"dBm signal there, 0 dB down ahead of the mixer, LO harmonic 5 at {envelope_db(5):.0f} "
+            "dB, 0 dB "
+            "for signal order 1)",
+            "values": {
+                "LO": (227.5e3, "Hz"),
+                "spur 5·fLO − fs = IF": (pytest.approx(682.5e3), "Hz"),
+                "offset": (pytest.approx(0.0, abs=1e-6), "Hz"),
+                "estimated level": (pytest.approx(l5), "dBm"),
+                "weakest wanted": (-100.0, "dBm"),
+            },
+            "fix": FIX,
+            "stage": "conversion",
+            "signal": "",
+            "position": "",
+        },
+    ]
+
+
+def test_ordinal_words_past_the_schema():
+    from speccheck.rules.freqplan.resonators import _ordinal
+
+    # the schema stops at the 9th overtone; the word for any other n is "nth"
+    assert [_ordinal(n) for n in (3, 5, 7, 9, 11, 13)] == ["3rd", "5th", "7th", "9th", "11th", "13th"]
