@@ -299,3 +299,21 @@ def test_two_signals_on_one_path_publish_its_edges_once():
     names = [r[2] for r in sheet_rows(check(text), RULE)]
     assert names.count("passband low edge") == 1 and names.count("response order") == 1
     assert "margin for voice (worst case)" in names and "margin for data (worst case)" in names
+
+
+def test_am_fixable_means_the_spread_fits_the_passband():
+    # 6 kHz of source drift with a 10.244 MHz crystal: the 6 kHz AM signal spans 6 kHz + 2 x 6.2049 kHz
+    # = 18.41 kHz, inside the 20 kHz passband, so centring the IF would clear it: the crystal is named
+    text = edited(
+        edited(edited(clean(), *AM), "drift: 500 Hz", "drift: 6 kHz"),
+        "frequency: 10.245 MHz",
+        "frequency: 10.244 MHz",
+    )
+    unc = 6e3 + 20e-6 * 10.244e6
+    f_if = 10.7e6 - 10.244e6 * (1 + PULL)
+    assert 6e3 + 2 * unc <= 20e3 < 6e3 + 3 * unc and _margin(f_if, unc, 6e3) < 0
+    got = _one(text)
+    assert got["level"] == "error" and got["values"] == _values(f_if, unc, 6e3)
+    assert {k: got[k] for k in ("line", "col", "path")} == where(
+        text, "frequency: 10.244 MHz", "10.244", "parts.X1.frequency"
+    )
