@@ -12,7 +12,7 @@ with four significant digits and an SI prefix (our own display convention, writt
 from __future__ import annotations
 
 import pytest
-from conftest import check, edited, facts, line_of, of, sheet_of, sheet_rows
+from conftest import EXAMPLES, check, edited, facts, line_of, of, sheet_of, sheet_rows
 
 BASE = """\
 build_spec: 2
@@ -324,3 +324,46 @@ def test_series_diode_the_right_way_publishes_its_stated_drop():
     stated = edited(text, "D1: {kind: diode,", "D1: {kind: diode, forward_voltage: 0.35 V,")
     assert sheet_rows(check(stated), "power.reverse-diode") == rows(
         ("power", "D1", "series diode drop", 0.35, "V", "", ""))
+
+
+# ---- switch positions and an amplifier of unknown draw -------------------------------------------
+
+def switched_lamp() -> str:
+    """BASE with a 150 mA lamp driver U4 on V12_LAMP, which selector S2 feeds from V12 only when on."""
+    text = edited(BASE, "  GND: {voltage: 0 V}\n", "  V12_LAMP: {voltage: 12 V}\n  GND: {voltage: 0 V}\n")
+    text = edited(text, "  U1: {profile: load-chip, rail: V12}\n",
+                  "  U1: {profile: load-chip, rail: V12}\n  U4: {profile: lamp-chip, rail: V12_LAMP}\n")
+    text = edited(text, "devices:\n", "  lamp-chip:\n    class: other\n    quiescent_current: 150 "
+                                      "mA\ndevices:\n")
+    return edited(text, "parts:\n", "parts:\n  S2:\n    kind: switch\n    positions: [off, on]\n    poles:\n"
+                  "      a: {common: V12, throws: {on: V12_LAMP}}\n")
+
+
+def test_budget_in_the_switch_position_that_draws_most():
+    # off: U1's 100 mA; on: 100 + 150 = 250 mA (Kirchhoff's current law), and on is the worst
+    text = edited(switched_lamp(), "max_current: 1 A", "max_current: 240 mA")
+    result = check(text)
+    assert sheet_rows(result, "power.current-budget") == rows(
+        ("power", "V12_LAMP", "U4 quiescent", 0.150, "A", "", ""),
+        ("power", "V12_LAMP", "rail current budget", 0.150, "A", "", ""),
+        ("power", "V12", "U1 quiescent", 0.100, "A", "", ""),
+        ("power", "V12", "S2 switched to V12_LAMP", 0.150, "A", "", ""),
+        ("power", "V12", "rail current budget", 0.250, "A", "", ""),
+        ("power", "supply", "input current budget", 0.250, "A", "", ""),
+        ("power", "supply", "worst switch position", "S2 on", "", "", ""),
+        ("power", "supply", "input current budget with S2 off", 0.100, "A", "", ""),
+        ("power", "supply", "input current budget with S2 on", 0.250, "A", "", ""))
+    assert [facts(f) for f in of(result, "power.current-budget")] == [finding(
+        "power.current-budget", "error", at(text, "max_current", "240 mA"), "supply.max_current",
+        "the build draws 250 mA at full output with S2 on but the bench supply delivers at most 240 mA",
+        {"input current budget": (0.250, "A"), "supply max_current": (0.240, "A")}, BUDGET_FIX)]
+    # the fuse is sized in that position too: 0.25 / 0.75 = 0.333 A -> R10 400 mA (IEC 60127-1)
+    assert [r[2:4] for r in sheet_rows(result, "power.fuse-size")][:2] == [
+        ("normal current (budget at full output)", pytest.approx(0.250)), ("worst switch position", "S2 on")]
+
+
+def test_budget_of_an_amplifier_without_a_load_is_not_known():
+    hot = (EXAMPLES / "power-hot-amplifier.yaml").read_text("utf-8")
+    text = edited(hot, "    load: SPK1\n", "")
+    assert ("power", "U2", "full-output supply current", "not known (see power.heat)", "", "", "") in \
+        sheet_rows(check(text), "power.current-budget")
