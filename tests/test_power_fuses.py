@@ -450,3 +450,63 @@ def test_missing_fuse_variants():
     with_resistor = edited(edited(UNFUSED, "  wire_gauge: 22\n", "  wire_gauge: 22\n  series_resistor: R1\n"),
                            "  D1:", "  R1: {kind: resistor, value: 1 ohm, ends: [DC_IN, V12]}\n  D1:")
     assert whole(with_resistor, "power.fuse-missing") == []
+
+
+# ---- a fuse on the rectifier side of a capacitor-input supply --------------------------------------
+# the charging pulses' RMS is about 1.8 × the DC (1.5 to 2.5 by conduction angle: common practice)
+
+MAINS = """\
+build_spec: 2
+build:
+  name: rectified load
+  ambient_max: 25 degC
+supply:
+  kind: mains-transformer
+  voltage: 18 V
+  rail: V18
+  fuse: F1
+rails:
+  V18: {voltage: 18 V, from: supply}
+  GND: {voltage: 0 V}
+profiles:
+  load-chip:
+    class: other
+    quiescent_current: 0.3 A
+devices:
+  U1: {profile: load-chip, rail: V18}
+parts:
+  D1: {kind: diode, ends: [AC1, RECT], positive: AC1}
+  C39: {kind: capacitor, value: 9.9 uF, dielectric: film, ends: [RECT, GND]}
+  F1: {kind: fuse, current_rating: 1 A, speed: time-lag, ends: [RECT, V18]}
+  C40: {kind: capacitor, value: 2200 uF, dielectric: electrolytic, ends: [V18, GND], positive: V18}
+chain: []
+"""
+
+
+def test_fuse_between_rectifier_and_reservoir_carries_the_pulses():
+    # RECT has the diode and only 9.9 µF (below the 10 µF a reservoir needs): 1.8 × 0.3 = 0.54 A,
+    # least 0.54 / 0.75 = 0.72 A -> R10 800 mA
+    result = check(MAINS)
+    assert [r[2:4] for r in sheet_rows(result, "power.fuse-size")][:2] == [
+        ("normal current (budget at full output)", pytest.approx(NORMAL)),
+        ("RMS of the rectifier charging pulses", pytest.approx(1.8 * NORMAL))]
+    named = {r[2]: r[3] for r in sheet_rows(result, "power.fuse-size")}
+    assert named["least rating"] == pytest.approx(1.8 * NORMAL / 0.75)
+    assert named["preferred rating (R10)"] == pytest.approx(r10_up(1.8 * NORMAL / 0.75))
+
+
+@pytest.mark.parametrize("edit", [
+    ("value: 9.9 uF", "value: 10 uF"),  # 10 µF on RECT is a reservoir: smooth DC through F1
+    ("ends: [AC1, RECT], positive: AC1}", "ends: [AC1, RAW], positive: AC1}"),  # no diode at F1
+])
+def test_fuse_on_the_smooth_side_carries_dc(edit):
+    names = [r[2] for r in sheet_rows(check(edited(MAINS, *edit)), "power.fuse-size")]
+    assert "RMS of the rectifier charging pulses" not in names
+    assert names[0] == "normal current (budget at full output)"
+
+
+def test_fuse_behind_the_reservoir_on_the_other_end():
+    # F1 the other way round (V18 first): its RECT end still carries the pulses
+    text = edited(MAINS, "ends: [RECT, V18]}", "ends: [V18, RECT]}")
+    names = [r[2] for r in sheet_rows(check(text), "power.fuse-size")]
+    assert "RMS of the rectifier charging pulses" in names
