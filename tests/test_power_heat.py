@@ -405,3 +405,14 @@ def test_dropout_skips_regulators_it_cannot_judge():
     assert sheet_rows(result, "power.regulator-dropout") == rows(
         ("power", "U5", "input headroom V_in − V_out", 5.9 - 3, "V", "", ""),
         ("power", "U3", "input headroom V_in − V_out", 5.9 - 4, "V", "", ""))
+
+
+def test_regulator_asked_for_more_than_its_input_heats_nothing_and_has_no_headroom():
+    # V4 declared at 14 V from a 12 V input: (12 − 14)·0.25 = −0.5 W is no heat (no junction figures);
+    # the headroom 12 − 14 = −2 V is far below the 2 V dropout
+    text = edited(REG, "V4: {voltage: 4 V", "V4: {voltage: 14 V")
+    result = check(text)
+    assert of(result, "power.heat") == []
+    assert sheet_rows(result, "power.heat") == rows(("heat", "U3", "regulator dissipation", (12 - 14) * 0.25,
+                                                     "W", "", ""))
+    assert [f.level for f in of(result, "power.regulator-dropout")] == ["error"]

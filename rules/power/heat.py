@@ -25,7 +25,7 @@ def _thermal(build, ctx, dev, power: float, what: str, stage: str, values: list)
     ta = ambient(build)
     if ta is None:
         return "no-ambient"
-    if not power or power <= 0:
+    if power <= 0:
         return None
     if prof.tj_max is None:
         ctx.report(f"profile {prof.name} states no tj_max (profiles.{prof.name}.tj_max); the junction "
