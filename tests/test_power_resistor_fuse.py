@@ -48,6 +48,13 @@ LIMITED = "limited to 2 A by the dc-adapter supply"
 NORMAL = 0.3
 
 
+def si(value: float, unit: str) -> str:
+    """Four significant digits with an SI prefix, as the messages show numbers (our display convention)."""
+    scale, prefix = next(((s, p) for s, p in ((1e3, "k"), (1.0, ""), (1e-3, "m")) if abs(value) >= s),
+                         (1e-3, "m"))
+    return f"{value / scale:.4g} {prefix}{unit}"
+
+
 def at(text: str, needle: str, fragment: str) -> tuple[int, int]:
     line = line_of(text, needle)
     return line, text.splitlines()[line - 1].index(fragment) + 1
@@ -152,6 +159,9 @@ def test_plain_resistor_marked_not_fusible_is_pointed_at_there():
     # a battery good for 40 A into a short: 12/40 = 0.3 ohm inside, 12 / 1.3 A through R1
     ("  kind: battery\n  max_current: 40 A\n",
      "through the battery's 300 mΩ internal resistance from its 40 A short-circuit current", 12 / 1.3),
+    # a small battery good for only 800 mA into a short: 12/0.8 = 15 ohm inside, 12 / 16 A through R1
+    ("  kind: battery\n  max_current: 800 mA\n",
+     "through the battery's 15 Ω internal resistance from its 800 mA short-circuit current", 12 / 16.0),
     # eight fresh alkaline cells at 0.25 ohm each (from memory): 2 ohm, 12 / 3 A
     ("  kind: battery\n  battery: {chemistry: alkaline, cells: 8}\n",
      "through the typical 2 Ω of 8 fresh alkaline cells, from memory: state battery.internal_resistance for "
@@ -166,7 +176,8 @@ def test_short_circuit_current_by_source(supply, how, i_short):
     text = watts("1000 W", text)
     assert whole(text) == [finding(
         "note", at(text, "R1: {", "{"), "parts.R1",
-        f"R1 (1 ohm) is the only protection on the supply input: into a short it takes {i_short ** 2:.4g} W "
+        "R1 (1 ohm) is the only protection on the supply input: into a short it takes "
+        f"{si(i_short ** 2, 'W')} "
         f"({how}), inside its 1000 W rating, so the supply's own limit protects the build; a fuse would also "
         "disconnect a fault", values(i_short=i_short), fix="")]
 
