@@ -22,6 +22,8 @@ from __future__ import annotations
 import pytest
 from conftest import check, edited, facts, line_of, of, sheet_rows
 
+from speccheck.config import Settings
+
 FUSED = """\
 build_spec: 2
 build:
@@ -510,3 +512,10 @@ def test_fuse_behind_the_reservoir_on_the_other_end():
     text = edited(MAINS, "ends: [RECT, V18]}", "ends: [V18, RECT]}")
     names = [r[2] for r in sheet_rows(check(text), "power.fuse-size")]
     assert "RMS of the rectifier charging pulses" in names
+
+
+def test_inrush_with_no_loop_resistance_at_all_is_not_computed():
+    # a project that sets the assumed loop to 0 ohm: V/R has no finite value, so nothing is published
+    settings = Settings(rule_settings={"power.fuse-inrush": {"loop_resistance": 0.0}})
+    result = check(FUSED, settings=settings)
+    assert sheet_rows(result, "power.fuse-inrush") == [] and of(result, "power.fuse-inrush") == []

@@ -40,7 +40,7 @@ def current_budget(build, ctx):
         ctx.publish("power", rail, "rail current budget", b.totals[rail], "A")
     for name in b.unknown_amps:
         ctx.publish("power", name, "full-output supply current", "not known (see power.heat)")
-    if b.input is not None and b.totals:
+    if b.input is not None:  # an input current needs rails, so the totals are there too
         ctx.publish("power", "supply", "input current budget", b.input, "A")
     if b.position:  # switch positions change what draws current: the budget is the worst one's
         ctx.publish("power", "supply", "worst switch position", b.position)
