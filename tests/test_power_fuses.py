@@ -19,8 +19,10 @@ Sources, named again beside each check:
 
 from __future__ import annotations
 
+import math
+
 import pytest
-from conftest import check, edited, facts, line_of, of, sheet_rows
+from conftest import EXAMPLES, check, edited, facts, line_of, of, sheet_rows
 
 from speccheck.config import Settings
 
@@ -489,9 +491,9 @@ def test_fuse_between_rectifier_and_reservoir_carries_the_pulses():
     # RECT has the diode and only 9.9 µF (below the 10 µF a reservoir needs): 1.8 × 0.3 = 0.54 A,
     # least 0.54 / 0.75 = 0.72 A -> R10 800 mA
     result = check(MAINS)
-    assert [r[2:4] for r in sheet_rows(result, "power.fuse-size")][:2] == [
-        ("normal current (budget at full output)", pytest.approx(NORMAL)),
-        ("RMS of the rectifier charging pulses", pytest.approx(1.8 * NORMAL))]
+    assert sheet_rows(result, "power.fuse-size")[:2] == rows(
+        ("fuse", "F1", "normal current (budget at full output)", NORMAL, "A", "", ""),
+        ("fuse", "F1", "RMS of the rectifier charging pulses", 1.8 * NORMAL, "A", "", ""))
     named = {r[2]: r[3] for r in sheet_rows(result, "power.fuse-size")}
     assert named["least rating"] == pytest.approx(1.8 * NORMAL / 0.75)
     assert named["preferred rating (R10)"] == pytest.approx(r10_up(1.8 * NORMAL / 0.75))
@@ -519,3 +521,15 @@ def test_inrush_with_no_loop_resistance_at_all_is_not_computed():
     settings = Settings(rule_settings={"power.fuse-inrush": {"loop_resistance": 0.0}})
     result = check(FUSED, settings=settings)
     assert sheet_rows(result, "power.fuse-inrush") == [] and of(result, "power.fuse-inrush") == []
+
+
+def test_fuse_of_a_class_b_amplifier_heats_on_the_rms_of_its_half_waves():
+    # the example's U2 on 18 V into 4 ohm swings rail to rail: half-waves of I_p = 9 V / 4 ohm from the
+    # supply, over its steady 40 mA. A half-wave's mean is I_p/π and its mean square I_p²/4 (Boylestad &
+    # Nashelsky §12), so the RMS of DC plus half-wave is √(I_dc² + 2·I_dc·I_p/π + I_p²/4)
+    hot = (EXAMPLES / "power-hot-amplifier.yaml").read_text("utf-8")
+    i_dc, i_p = 0.040, 9.0 / 4.0
+    rms = math.sqrt(i_dc ** 2 + 2 * i_dc * i_p / math.pi + i_p ** 2 / 4)
+    assert sheet_rows(check(hot), "power.fuse-size")[:2] == rows(
+        ("fuse", "F1", "normal current (budget at full output)", i_dc + i_p / math.pi, "A", "", ""),
+        ("fuse", "F1", "RMS of the supply current (class-B half-wave draw)", rms, "A", "", ""))

@@ -170,14 +170,20 @@ def test_regulator_that_no_heat_sink_can_hold(jc, hopeless):
         HEAT_FIX)]
 
 
-def test_regulator_too_hot_without_theta_jc():
-    text = edited(edited(REG, "    theta_jc: 5 degC/W\n", ""), "theta_ja: 30 degC/W", "theta_ja: 45 degC/W")
+@pytest.mark.parametrize("theta, level, tj, limit", [
+    (45, "error", 130, "above its 125 °C limit"), (40, "warning", 120, "within 25 °C of its 125 °C limit")])
+def test_regulator_too_hot_without_theta_jc(theta, level, tj, limit):
+    # T_j = 40 + 2·θJA: 130 °C above tj_max, 120 °C inside the 25 °C margin
+    assert tj == 40 + P_REG * theta
+    text = edited(REG, "    theta_jc: 5 degC/W\n", "")
+    text = edited(text, "theta_ja: 30 degC/W", f"theta_ja: {theta} degC/W")
     assert whole(text, "power.heat") == [finding(
-        "power.heat", "error", at(text, "U3:", "{"), "devices.U3",
-        "U3 dissipates up to 2 W (8 V across it at 250 mA, plus its ground current); with θJA 45 °C/W from "
-        "profile reg-chip its junction reaches 130 °C at 40 °C ambient, above its 125 °C limit; state "
+        "power.heat", level, at(text, "U3:", "{"), "devices.U3",
+        f"U3 dissipates up to 2 W (8 V across it at 250 mA, plus its ground current); with θJA {theta} "
+        "°C/W from "
+        f"profile reg-chip its junction reaches {tj} °C at 40 °C ambient, {limit}; state "
         "theta_jc in profile reg-chip to size a heat sink",
-        reg_values(45.0), HEAT_FIX)]
+        reg_values(float(theta)), HEAT_FIX)]
 
 
 @pytest.mark.parametrize("sink, theta_sa, cs, cs_text", [
