@@ -302,14 +302,21 @@ def test_primary_fuse_that_is_no_fuse():
     )]
 
 
-def test_fuse_in_the_neutral():
-    text = with_fuse(ends="[N, N_F]")
-    text = edited(text, "primary: [L_SW, N]", "primary: [L_SW, N_F]")
+@pytest.mark.parametrize("neutral_stated", [True, False])
+def test_fuse_in_the_neutral(neutral_stated):
+    # behind a connector in the neutral: the conductor runs on through it; without neutral_net the rule
+    # can only say that the fuse is not in the line
+    text = with_fuse(ends="[N_J, N_F]")
+    text = edited(text, "primary: [L_SW, N]",
+                  "primary: [L_SW, N_F]}\n  J2: {kind: connector, ends: [N, N_J]")
     text = edited(text, "S1: {kind: switch, ends: [L_F, L_SW]", "S1: {kind: switch, ends: [L, L_SW]")
+    where = "in the neutral" if neutral_stated else "not in the line conductor"
+    if not neutral_stated:
+        text = edited(text, "    neutral_net: N\n", "")
     assert found(text, "mains.primary-fuse") == [finding(
-        "mains.primary-fuse", "error", text, "[N, N_F]", "parts.F2.ends",
-        "F2 (N, N_F) is in the neutral (L is the line): a blown fuse leaves the transformer connected to "
-        "the line",
+        "mains.primary-fuse", "error", text, "[N_J, N_F]", "parts.F2.ends",
+        f"F2 (N_J, N_F) is {where} (L is the line): a blown fuse leaves the transformer connected to the "
+        "line",
     )]
 
 

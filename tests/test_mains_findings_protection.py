@@ -18,13 +18,16 @@ from speccheck.config import Settings
 # ---- mains.switch-line ------------------------------------------------------------------------------
 
 
-def test_switch_in_the_neutral_only():
+@pytest.mark.parametrize("neutral_stated", [True, False])
+def test_switch_in_the_neutral_only(neutral_stated):
     text = edited(with_fuse(), "S1: {kind: switch, ends: [L_F, L_SW]", "S1: {kind: switch, ends: [N, N_SW]")
     text = edited(text, "primary: [L_SW, N]", "primary: [L_F, N_SW]")
+    where = "in the neutral only" if neutral_stated else "not in the line conductor"
+    if not neutral_stated:
+        text = edited(text, "    neutral_net: N\n", "")
     assert found(text, "mains.switch-line") == [finding(
         "mains.switch-line", "warning", text, "[N, N_SW]", "parts.S1.ends",
-        "mains switch S1 (N, N_SW) is in the neutral only: switched off, the primary stays connected to "
-        "the line L",
+        f"mains switch S1 (N, N_SW) is {where}: switched off, the primary stays connected to the line L",
     )]
 
 
