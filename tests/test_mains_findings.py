@@ -464,3 +464,14 @@ def test_fuse_rerating_follows_the_ambient_and_its_settings():
     least = 2 * PRIMARY / (1 - 0.01 * 15)
     assert sheet_of(check(MAINS, settings=settings), "mains.primary-fuse")[
         "least primary fuse rating (time-lag)"] == (pytest.approx(least), "A")
+
+
+def test_primary_fuse_sized_from_any_positive_mains_voltage():
+    # 1 V is no mains, but the arithmetic still holds: I_p = 12 VA / 1 V = 12 A, twice that over the 40 °C
+    # rerating, up to R10: 2 x 12 / 0.925 = 25.9 A -> 31.5 A
+    text = edited(MAINS, "    voltage: 230 V\n", "    voltage: 1 V\n")
+    least = max(12.0 / (0.75 * RERATE_40C), 2 * 12.0 / RERATE_40C)
+    preferred = r10_up(least)
+    assert preferred == pytest.approx(31.5)
+    assert [f["values"] for f in found(text, "mains.primary-fuse")] == [
+        {"preferred rating": (pytest.approx(preferred), "A")}]

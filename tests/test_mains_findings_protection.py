@@ -361,3 +361,15 @@ def test_bleeder_with_no_dc_limit_reports_only_the_missing_bleeders(clean_text):
     result = check(text, settings=settings)
     assert [f.location.path for f in of(result, "mains.bleeder")] == ["parts.C31", "parts.C20"]
     assert [f.rule for f in result.findings if f.rule.startswith("internal")] == []
+
+
+@pytest.mark.parametrize("volts", ["0 V", "-230 V"])
+def test_mains_voltage_that_is_no_mains_voltage(volts):
+    text = edited(MAINS, "    voltage: 230 V\n", f"    voltage: {volts}\n")
+    assert found(text, "mains.ratings-declared") == [finding(
+        "mains.ratings-declared", "warning", text, f"voltage: |{volts}", "supply.mains.voltage",
+        f"mains voltage {volts} is not a mains voltage (state the rms value, e.g. '230 V')")]
+    # neither the primary nor its fuse is sized from it
+    assert found(text, "mains.transformer-primary") == []
+    assert [f["values"] for f in found(text, "mains.primary-fuse")] == [{}]
+    assert sheet_of(check(text), "mains.primary-fuse") == {}
