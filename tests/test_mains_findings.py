@@ -196,6 +196,21 @@ def test_secondary_at_the_es1_ac_limit(volts, hazardous):
         f"HAZARDOUS VOLTAGE: this build runs from the mains (230 V){extra}. Touching it can kill.")
 
 
+def test_step_up_transformer_in_a_low_voltage_build(clean_text):
+    # no mains and no high rail: the secondary alone makes it hazardous, and the finding points at it
+    last = "  SPK1: {kind: speaker, value: 8 ohm, power_rating: 3 W, ends: [SPK, GND]}\n"
+    text = edited(clean_text, last, last + "  T9: {kind: transformer, rating: 5 VA, primary_voltage: 12 V, "
+                  "secondary_voltage: 36 V, primary: [V12, GND], secondary: [HV_A, HV_B]}\n")
+    reason = "transformer T9's secondary (36 V) is above the 30 V rms AC limit"  # ES1 (from memory)
+    result = check(text)
+    assert result.cautions == [f"HAZARDOUS VOLTAGE: {reason}. Touching it can kill.", *CAUTIONS_AFTER_FIRST]
+    assert [facts(f) for f in of(result, "mains.hazard")] == [finding(
+        "mains.hazard", "note", text, "secondary_voltage: |36 V", "parts.T9.secondary_voltage",
+        f"hazardous voltage: {reason}; read the safety cautions at the top of this report",
+        {"AC limit (rms)": (30.0, "V"), "DC limit": (60.0, "V")},
+    )]
+
+
 def test_selv_limits_by_setting(clean_text):
     # SELV, IEC 61140 / IEC 61558-1: 50 V rms AC, 120 V ripple-free DC; 121 V is above, 120 V is not
     settings = Settings(rule_settings={"mains.hazard": {"limit_dc": 120.0, "limit_ac_rms": 50.0}})
@@ -313,6 +328,9 @@ def test_fuse_in_the_neutral(neutral_stated):
     where = "in the neutral" if neutral_stated else "not in the line conductor"
     if not neutral_stated:
         text = edited(text, "    neutral_net: N\n", "")
+    # an X capacitor across the mains joins no conductors: only fuses, switches and connectors pass one on
+    text = edited(text, "  J2: {kind: connector", "  CX1: {kind: capacitor, value: 100 nF, dielectric: film, "
+                  "voltage_rating: 275 V, ends: [L, N]}\n  J2: {kind: connector")
     assert found(text, "mains.primary-fuse") == [finding(
         "mains.primary-fuse", "error", text, "[N_J, N_F]", "parts.F2.ends",
         f"F2 (N_J, N_F) is {where} (L is the line): a blown fuse leaves the transformer connected to the "

@@ -25,6 +25,9 @@ def test_switch_in_the_neutral_only(neutral_stated):
     where = "in the neutral only" if neutral_stated else "not in the line conductor"
     if not neutral_stated:
         text = edited(text, "    neutral_net: N\n", "")
+    # an X capacitor across the mains joins no conductors: only fuses, switches and connectors pass one on
+    text = edited(text, "  S1: {kind: switch", "  CX1: {kind: capacitor, value: 100 nF, dielectric: film, "
+                  "voltage_rating: 275 V, ends: [L_F, N]}\n  S1: {kind: switch")
     assert found(text, "mains.switch-line") == [finding(
         "mains.switch-line", "warning", text, "[N, N_SW]", "parts.S1.ends",
         f"mains switch S1 (N, N_SW) is {where}: switched off, the primary stays connected to the line L",
@@ -371,5 +374,7 @@ def test_mains_voltage_that_is_no_mains_voltage(volts):
         f"mains voltage {volts} is not a mains voltage (state the rms value, e.g. '230 V')")]
     # neither the primary nor its fuse is sized from it
     assert found(text, "mains.transformer-primary") == []
-    assert [f["values"] for f in found(text, "mains.primary-fuse")] == [{}]
+    assert [f["message"] for f in found(text, "mains.primary-fuse")] == [
+        "the mains primary has no fuse (supply.mains.primary_fuse): a fault in the transformer or its wiring "
+        "is then limited only by the building's circuit breaker"]
     assert sheet_of(check(text), "mains.primary-fuse") == {}
