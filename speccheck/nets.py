@@ -5,7 +5,9 @@ bias from its profile, a named node's declared voltage. It then spreads across p
 carry DC with (nearly) no drop: coils, fuses, switches, speaker voice coils, transformer
 windings. Resistors spread it too, one step later, on the usual assumption that the bias
 current through them is small; a net that two different potentials reach that way is left
-unknown rather than guessed.
+unknown rather than guessed. The ends of a potentiometer's track inside a resistor divider
+(a pot with fixed resistors above and below it, between a rail and ground) carry the divider's
+current, so they are solved by nodal analysis instead (formulas/dividers.network_voltages).
 """
 
 from __future__ import annotations
@@ -50,7 +52,9 @@ class NetGraph:
                 if cost is not None:
                     self.links.setdefault(a, []).append((part, b, cost))
                     self.links.setdefault(b, []).append((part, a, cost))
+        self.cost: dict[str, int] = {}  # net -> resistors between it and a stated potential
         self.potentials = self._solve()
+        self._divide_pot_tracks()
         self.spans = self._wipers()
 
     def _pairs(self, part):
@@ -168,7 +172,58 @@ class NetGraph:
                     and abs(best[other][1].volts - pot.volts) > 1e-9
                 ):
                     conflicted.add(other)
+        self.cost = {net: c for net, (c, p) in best.items() if net not in conflicted}
         return {net: p for net, (c, p) in best.items() if net not in conflicted}
+
+    def _divide_pot_tracks(self) -> None:
+        """A pot whose track ends are reached only through resistors from two or more different
+        stiff potentials sits in a divider: its ends are set by the divider's current, not by the
+        nearest rail."""
+        from speccheck.formulas.dividers import network_voltages
+
+        for part in self.build.parts.values():
+            if part.kind != "potentiometer" or not part.wiper or len(part.ends) != 2:
+                continue
+            if all(self.cost.get(end) == 0 for end in part.ends):
+                continue  # both ends stiff: nothing to divide
+            network = self._resistive_network(part.ends)
+            if network is None:
+                continue
+            resistors, held, names = network
+            if len({round(v, 9) for v in held.values()}) < 2:
+                continue  # one potential only: no current flows, the spread value is exact
+            volts = network_voltages(resistors, held)
+            edge = " to ".join(f"{net} ({held[net]:g} V)" for net in sorted(held, key=held.get, reverse=True))
+            for end in part.ends:
+                if end in volts:
+                    self.potentials[end] = Potential(
+                        volts[end], f"the divider {', '.join(names)} from {edge} sets {end} at "
+                        f"{volts[end]:.3g} V", end)
+
+    def _resistive_network(self, start) -> tuple | None:
+        """(resistors as (a, b, ohms), stiff nets held at their volts, part names) of the resistors
+        and pot tracks joined to `start`, up to the nets whose potential is stated or reached with
+        no drop; None when a part in it has no value or no stiff net bounds it."""
+        resistors, held, names = [], {}, []
+        seen, todo, parts = set(start), list(start), set()
+        while todo:
+            net = todo.pop()
+            if self.cost.get(net) == 0:
+                held[net] = self.potentials[net].volts
+                continue
+            for part, other, step in self.links.get(net, ()):
+                if step != 1 or part.name in parts:
+                    continue
+                if part.value is None or part.value.si <= 0:
+                    return None
+                parts.add(part.name)
+                names.append(part.name)
+                a, b = part.ends
+                resistors.append((a, b, part.value.si))
+                if other not in seen:
+                    seen.add(other)
+                    todo.append(other)
+        return (resistors, held, sorted(names)) if held else None
 
     def dc(self, net: str | None) -> Potential | None:
         return self.potentials.get(net) if net else None

@@ -88,3 +88,37 @@ def test_the_knob_setting_for_a_threshold_solves_the_network(target, v_out):
 def test_a_target_the_track_cannot_reach():
     # 0..6 V through 100 kohm into 10 kohm to ground reaches at most 6 x 10/110 = 0.545 V (divider)
     assert dividers.wiper_fraction_for(1.0, 0.0, 6.0, 10e3, 100e3, 10e3, 1e9, 0.0) is None
+
+
+# ---- network_voltages: nodal analysis with held nodes ------------------------------------------
+
+
+def test_network_series_divider_is_ohms_law():
+    # one current 6 V / (4.7k + 10k + 22k) through a series chain (Ohm's law, a series circuit)
+    volts = dividers.network_voltages([("V6", "A", 4.7e3), ("A", "B", 10e3), ("B", "GND", 22e3)],
+                                      {"V6": 6.0, "GND": 0.0})
+    amps = 6.0 / 36.7e3
+    assert volts == {"A": pytest.approx(6.0 - amps * 4.7e3), "B": pytest.approx(amps * 22e3)}
+
+
+def test_network_two_free_nodes_by_hand():
+    # 10 V -1k- A -2k- B -3k- ground, and 4k from A to ground. KCL at B: (A - B)/2k = B/3k, so
+    # B = 0.6 A; at A: (10 - A)/1k = A/4k + (A - B)/2k = 0.45 A/1k, so A = 10/1.45 (Hayt, ch. 4)
+    volts = dividers.network_voltages(
+        [("V", "A", 1e3), ("A", "B", 2e3), ("B", "G", 3e3), ("A", "G", 4e3)], {"V": 10.0, "G": 0.0})
+    assert volts["A"] == pytest.approx(10 / 1.45)
+    assert volts["B"] == pytest.approx(0.6 * 10 / 1.45)
+
+
+def test_network_one_node_is_millmans_theorem():
+    # three sources into one node: (12/1k + 5/2k + 0/4k) / (1/1k + 1/2k + 1/4k) = 14.5/1.75 V
+    volts = dividers.network_voltages([("P", "N", 1e3), ("Q", "N", 2e3), ("G", "N", 4e3)],
+                                      {"P": 12.0, "Q": 5.0, "G": 0.0})
+    assert volts == {"N": pytest.approx(14.5 / 1.75)}
+
+
+def test_network_refuses_a_floating_node_and_a_zero_resistor():
+    with pytest.raises(ValueError, match="floats"):
+        dividers.network_voltages([("V", "A", 1e3), ("X", "Y", 1e3)], {"V": 1.0})
+    with pytest.raises(ValueError, match="no positive resistance"):
+        dividers.network_voltages([("V", "A", 0.0)], {"V": 1.0})

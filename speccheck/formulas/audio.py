@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import math
 
+from speccheck.formulas.dividers import network_voltages
+
 TWO_PI = 2.0 * math.pi
 
 # FM broadcast de-emphasis time constants by ITU region: 50 us in Regions 1 and 3, 75 us in
@@ -66,30 +68,17 @@ def divider_loss_db(ohms: float, load_ohms: float) -> float:
 
 
 def node_resistance(resistors: list[tuple[str, str, float]], node: str, grounds: set[str]) -> float | None:
-    """The resistance between `node` and the grounds of a network of resistors (a, b, ohms):
-    inject 1 A at `node` and solve the nodal equations G·v = i (Kirchhoff's current law;
-    any circuits text) by Gaussian elimination. None when no resistor path reaches a ground."""
-    nodes = sorted({n for a, b, _ in resistors for n in (a, b) if n not in grounds} | {node})
+    """The resistance between `node` and the grounds of a network of resistors (a, b, ohms): hold
+    `node` at 1 V and the grounds at 0 V, solve the other nodes (dividers.network_voltages, nodal
+    analysis), and R = 1 V / the current leaving `node`. None when no resistor path reaches a
+    ground (or a part of the network floats)."""
     if node in grounds:
         return 0.0
-    index = {n: i for i, n in enumerate(nodes)}
-    size = len(nodes)
-    g = [[0.0] * (size + 1) for _ in range(size)]
-    for a, b, ohms in resistors:
-        ia, ib = index.get(a), index.get(b)
-        for i, j in ((ia, ib), (ib, ia)):
-            if i is not None:
-                g[i][i] += 1.0 / ohms
-                if j is not None:
-                    g[i][j] -= 1.0 / ohms
-    g[index[node]][size] = 1.0
-    for col in range(size):
-        pivot = max(range(col, size), key=lambda r: abs(g[r][col]))
-        if abs(g[pivot][col]) < 1e-15:
-            return None  # a node with no path to ground: the network floats
-        g[col], g[pivot] = g[pivot], g[col]
-        for row in range(size):
-            if row != col and g[row][col]:
-                factor = g[row][col] / g[col][col]
-                g[row] = [x - factor * y for x, y in zip(g[row], g[col], strict=True)]
-    return g[index[node]][size] / g[index[node]][index[node]]
+    held = dict.fromkeys(grounds, 0.0) | {node: 1.0}
+    try:
+        volts = held | network_voltages(resistors, held)
+    except ValueError:
+        return None
+    amps = sum((1.0 - volts[b if a == node else a]) / ohms
+               for a, b, ohms in resistors if node in (a, b) and a != b)
+    return 1.0 / amps if amps > 1e-15 else None

@@ -85,3 +85,39 @@ def wiper_fraction_for(target: float, v_a: float, v_b: float, track: float, r_se
         else:
             hi = mid
     return (lo + hi) / 2
+
+
+def network_voltages(resistors: Sequence[tuple[str, str, float]],
+                     fixed: dict[str, float]) -> dict[str, float]:
+    """The DC voltage of every node of a resistor network that is not held by a source: nodal
+    analysis with the held nodes as known voltages (Kirchhoff's current law at each free node,
+    sum_j (v_i - v_j) / R_ij = 0; Hayt, Kemmerly & Durbin, ch. 4), solved by Gaussian elimination
+    with partial pivoting. `resistors` are (node a, node b, ohms > 0); every free node must reach a
+    held one through resistors, else ValueError (the network floats)."""
+    free = sorted({n for a, b, _ in resistors for n in (a, b) if n not in fixed})
+    index = {n: i for i, n in enumerate(free)}
+    size = len(free)
+    g = [[0.0] * (size + 1) for _ in range(size)]  # G | i, the last column the injected currents
+    for a, b, ohms in resistors:
+        if ohms <= 0:
+            raise ValueError("a resistor of the network has no positive resistance")
+        for here, there in ((a, b), (b, a)):
+            i = index.get(here)
+            if i is None:
+                continue
+            g[i][i] += 1.0 / ohms
+            j = index.get(there)
+            if j is None:
+                g[i][size] += fixed[there] / ohms
+            else:
+                g[i][j] -= 1.0 / ohms
+    for col in range(size):
+        pivot = max(range(col, size), key=lambda r: abs(g[r][col]))
+        if abs(g[pivot][col]) < 1e-15:
+            raise ValueError("a node of the network reaches no held voltage: it floats")
+        g[col], g[pivot] = g[pivot], g[col]
+        for row in range(size):
+            if row != col and g[row][col]:
+                factor = g[row][col] / g[col][col]
+                g[row] = [x - factor * y for x, y in zip(g[row], g[col], strict=True)]
+    return {n: g[i][size] / g[i][i] for n, i in index.items()}
