@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from speccheck.budget import REGULATOR, budget, rail_volts, regulator_outputs
+from speccheck.budget import REGULATOR, budget, fused_rail, rail_volts, regulator_outputs, series_drops
 from speccheck.findings import Value
 from speccheck.formulas import battery as cells
 from speccheck.registry import rule
@@ -83,6 +83,20 @@ def direct(build) -> list:
 
 
 def needs(build) -> list:
+    """(device, what, volts the battery must give for it, Location) for everything fed straight from
+    the battery: what the device needs at its input, plus the series drops between the battery and
+    the supply's own rail (a series reverse-polarity diode, a series resistor) for a device on it."""
+    drops = series_drops(build)
+    lost = sum(volts for _, volts in drops)
+    if not drops:
+        return _input_needs(build)
+    rail = fused_rail(build)
+    said = ", ".join(f"{what} ({fmt(volts, 'V')})" for what, volts in drops)
+    return [(dev, f"{what}, plus {said} on the way", need + lost, loc) if dev.rail == rail
+            else (dev, what, need, loc) for dev, what, need, loc in _input_needs(build)]
+
+
+def _input_needs(build) -> list:
     """(device, what, volts it needs at its input, Location) for everything fed straight from the battery."""
     out = []
     for dev in direct(build):
