@@ -169,3 +169,13 @@ def test_a_potentiometer_on_the_net_is_main_path_too():
     found, sheet = loading(text)
     assert found == []
     assert sheet == tap_sheet(10e3, R15, par(R9, 47e3))
+
+
+def test_parts_with_no_value_are_left_out():
+    # a potentiometer on the net with no value given adds nothing to the main path; a series resistor
+    # with no value adds nothing to the tap's resistance
+    rv3 = "  RV3: {kind: potentiometer, ends: [U1.audio, GND]}\n"
+    text = edited(portable(), "  C15: {kind", rv3 + "  C15: {kind")
+    assert loading(text) == ([], tap_sheet(10e3, R15, R9))
+    text = edited(portable(), "R15: {kind: resistor, value: 1 kohm, ", "R15: {kind: resistor, ")
+    assert loading(text) == ([], tap_sheet(10e3, 0.0, R9))

@@ -123,6 +123,17 @@ def test_a_tank_node_returned_to_ground_through_a_resistor_is_an_error(clean_tex
     ]
 
 
+def test_a_grounded_tank_node_on_a_device_with_no_rail(clean_text):
+    text = edited(clean_text, R6, R6.replace("V6]", "GND]"))
+    text = edited(text, "U1: {profile: fm-if-subsystem, rail: V6}", "U1: {profile: fm-if-subsystem}")
+    assert [facts(f) for f in of(check(text), "wiring.tank-return")] == [
+        finding("wiring.tank-return", "error", at(text, "L2: {kind", "[U1.quad"), "parts.L2.ends",
+                "L2 returns U1.quad to node TANK_RET, which sits at 0 V through R6: the detector pin gets "
+                "no bias from the supply ",
+                {"pin": ("U1.quad", ""), "coil far end": ("TANK_RET", "")}, TANK_FIX, "discriminator"),
+    ]
+
+
 @pytest.mark.parametrize("declared, dead", [("0.09 V", True), ("-0.09 V", True), ("0.1 V", False),
                                             ("-0.5 V", False)])
 def test_a_tank_node_declared_near_0_v_is_an_error(clean_text, declared, dead):
