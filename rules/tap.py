@@ -34,8 +34,10 @@ def main_path_input(build, tap) -> tuple[float | None, list]:
 
 def source_resistance(build, net: str):
     pin_of = split_pin(net)
-    dev = build.device(pin_of[0]) if pin_of else None
-    pin = dev.pin(pin_of[1]) if dev is not None and pin_of else None
+    if pin_of is None:
+        return None
+    dev = build.device(pin_of[0])
+    pin = dev.pin(pin_of[1]) if dev is not None else None
     return pin.output_impedance if pin is not None else None
 
 

@@ -240,7 +240,7 @@ def polarity_unstated(build, ctx):
                 )
         ctx.report(
             f"{part.name} is {part.dielectric} (polarized) but no positive end is noted{hint}",
-            part.at("dielectric") if part.given("dielectric") else part.loc,
+            part.at("dielectric"),  # Located.at falls back to the part itself
             values,
             stage=_stage(build, part.name),
         )
@@ -318,7 +318,7 @@ def speaker_coupling(build, ctx):
                 f"sits at {pa.volts:g} V ({pa.why})"
                 if pa
                 else f"{ref} couples {amp_net} to the speaker with no polarity noted",
-                part.at("dielectric") if part.given("dielectric") else part.loc,
+                part.at("dielectric"),
                 values,
                 level="warning",
                 stage=stage,

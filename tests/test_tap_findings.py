@@ -47,31 +47,32 @@ def loading(text: str, settings: Settings | None = None):
 
 
 def tap_sheet(load: float, series: float, main: float | None, signal: str = "",
-              position: str = "") -> list:
+              position: str = "", owner: str = "data out") -> list:
     """What the rule publishes for one tap, computed here: the tap's resistance, the level at its load,
     and (when the net has a main path) the main path's input and what the tap costs it."""
     r_tap = load + series
     seen = par(r_tap, main) if main else r_tap
     # the tap's own resistance is the same in every configuration: no signal on it
-    rows = [("tap", "data out", "tap load (series + input)", pytest.approx(r_tap), "Ω", "", ""),
-            ("tap", "data out", "level at the tap's load, from the open source",
+    rows = [("tap", owner, "tap load (series + input)", pytest.approx(r_tap), "Ω", "", ""),
+            ("tap", owner, "level at the tap's load, from the open source",
              pytest.approx(db(seen, Z) + db(load, series)), "dB", signal, position)]
     if main:
-        rows += [("tap", "data out", "main path input at the net", pytest.approx(main), "Ω", signal,
+        rows += [("tap", owner, "main path input at the net", pytest.approx(main), "Ω", signal,
                   position),
-                 ("tap", "data out", "level the tap costs the main path",
+                 ("tap", owner, "level the tap costs the main path",
                   pytest.approx(db(main, Z) - db(par(r_tap, main), Z)), "dB", signal, position)]
     return rows
 
 
 def heavy(text: str, load: float, main: float, names: str, shown: tuple[str, str], signal: str = "",
-          position: str = "") -> dict:
+          position: str = "", index: int = 0) -> dict:
     r_tap = load + R15
     cost = db(main, Z) - db(par(r_tap, main), Z)
     suffix = f" [{signal}; {position}]" if signal else ""
     line = line_of(text, "    load: ", -1)  # the tap's, after the chain's `load: SPK1`
     return {"rule": "tap.loading", "level": "warning", "line": line,
-            "col": text.splitlines()[line - 1].index("load: ") + len("load: ") + 1, "path": "taps[0].load",
+            "col": text.splitlines()[line - 1].index("load: ") + len("load: ") + 1,
+            "path": f"taps[{index}].load",
             "message": f"tap data out loads U1.audio with {shown[0]} beside the main path's {shown[1]} "
                        f"({names}), through the pin's 1 kohm: the main path loses {cost:.2g} dB{suffix}",
             "values": {"tap load": (pytest.approx(r_tap), "Ω"), "main path input": (pytest.approx(main), "Ω"),
@@ -179,3 +180,25 @@ def test_parts_with_no_value_are_left_out():
     assert loading(text) == ([], tap_sheet(10e3, R15, R9))
     text = edited(portable(), "R15: {kind: resistor, value: 1 kohm, ", "R15: {kind: resistor, ")
     assert loading(text) == ([], tap_sheet(10e3, 0.0, R9))
+
+
+def test_a_tap_with_no_main_path_does_not_stop_the_next_one():
+    # a second IF chip U4 whose audio pin feeds nothing but a tap: that tap is only published; the
+    # heavy tap after it is still judged
+    text = edited(portable(), "  U3: {profile: regulator", "  U4: {profile: fm-if-subsystem, rail: V6}\n"
+                  "  U3: {profile: regulator")
+    text = edited(text, "taps:\n  - name: data out\n", "taps:\n  - name: side\n    net: U4.audio\n"
+                  "    load: 10 kohm\n  - name: data out\n")
+    text = edited(text, "    load: 10 kohm\n    needs", "    load: 200 ohm\n    needs")
+    found, sheet = loading(text)
+    assert found == [heavy(text, 200.0, R9, "R9", ("1.2 kΩ", "5.1 kΩ"), index=1)]
+    assert sheet == tap_sheet(10e3, 0.0, None, owner="side") + tap_sheet(200.0, R15, R9)
+
+
+def test_a_cost_equal_to_max_loss_passes():
+    # "more than max_loss" is the warning: the setting equal to the cost passes. The cost is worked
+    # out here in the rule's own order of operations (R9 alone "in parallel" is 1 / (1 / R9)), so
+    # the two floats agree to the last bit
+    main = par(R9)
+    cost = db(main, Z) - db(par(10e3 + R15, main), Z)
+    assert loading(portable(), Settings(rule_settings={"tap.loading": {"max_loss": cost}}))[0] == []

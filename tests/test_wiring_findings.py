@@ -163,6 +163,27 @@ def test_a_tank_node_tied_to_nothing_is_a_warning(clean_text):
     ]
 
 
+def test_a_coil_straight_to_the_rail_is_fine_whatever_else_is_on_the_rail(clean_text):
+    # a bleeder from V6 to ground is no return to ground for the coil: the coil sits on the rail
+    text = edited(clean_text, L2, L2.replace("TANK_RET]", "V6]"))
+    bleeder = "  R40: {kind: resistor, value: 10 kohm, ends: [V6, GND]}\n"
+    text = edited(text, "  C32: {kind", bleeder + "  C32: {kind")
+    assert of(check(text), "wiring.tank-return") == []
+
+
+L3 = "\n  L3: {kind: inductor, value: 1 mH, ends: [U1.quad, TANK_RET]}"
+
+
+@pytest.mark.parametrize("old, new, level", [(C10, "", "note"), (R6, R6.replace("V6]", "GND]"), "error"),
+                                             (R6, R6.replace("V6]", "NOWHERE]"), "warning")])
+def test_a_coil_named_by_no_stage_is_put_under_the_discriminator(clean_text, old, new, level):
+    # L3, beside L2 and named by no stage, gets the same verdict as L2 in each branch
+    text = edited(edited(clean_text, L2, L2 + L3), old, new)
+    found = wiring(text)
+    assert [(f["level"], f["message"].split()[0], f["stage"]) for f in found] == [
+        (level, "L2", "discriminator"), (level, "L3", "discriminator")]
+
+
 # ---- DC across a crystal -----------------------------------------------------------------------
 
 XTAL_ENDS = "ends: [U1.osc_base, V6]"
@@ -254,6 +275,19 @@ def test_the_positive_end_is_suggested_only_above_the_threshold(clean_text, decl
                 "parts.C31.dielectric",
                 f"C31 is electrolytic (polarized) but no positive end is noted{suggestion}",
                 {"V6": (V6, "V"), "NEAR": (near, "V")}, UNSTATED_FIX, "wiring"),
+    ]
+
+
+def test_a_difference_of_exactly_the_threshold_suggests_nothing(clean_text):
+    # NEAR at 0.1 V against ground: a difference of exactly DC_THRESHOLD (0.1 V) is not above it, so
+    # no positive end is suggested, and no voltage rating is asked for (working voltage 0.1 V)
+    text = edited(clean_text, C31, C31.replace("voltage_rating: 16 V, ends: [V6, GND], positive: V6",
+                                               "ends: [NEAR, GND]"))
+    text = with_nodes(text, "  NEAR: {dc: 0.1 V}\n")
+    assert wiring(text) == [
+        finding("wiring.polarity-unstated", "warning", at(text, "C31: {kind", "electrolytic"),
+                "parts.C31.dielectric", "C31 is electrolytic (polarized) but no positive end is noted",
+                {"NEAR": (0.1, "V"), "GND": (0.0, "V")}, UNSTATED_FIX, "wiring"),
     ]
 
 
@@ -390,6 +424,69 @@ def test_a_capacitor_from_another_pin_toward_the_speaker_is_not_a_coupling(clean
     assert found == [("wiring.polarity-unstated", "C19")]
 
 
+def test_an_electrolytic_from_the_amplifier_output_to_no_speaker_is_no_coupling(clean_text):
+    # C24 (a bootstrap-like part) from U2.out to a net without the speaker: the general polarity
+    # rule judges it, half of 12 V against nothing known
+    c24 = ("  C24: {kind: capacitor, value: 10 uF, dielectric: electrolytic, voltage_rating: 25 V, "
+           "ends: [U2.out, BOOT]}\n")
+    text = edited(clean_text, "  R21: {kind", c24 + "  R21: {kind")
+    found = wiring(text)
+    assert [(f["rule"], f["message"].split()[0]) for f in found] == [("wiring.polarity-unstated", "C24")]
+
+
+def test_an_unnamed_speaker_electrolytic_is_put_under_the_audio_amplifier(clean_text):
+    c19 = ("C19: {kind: capacitor, value: 470 uF, dielectric: electrolytic, voltage_rating: 25 V, "
+           "ends: [U2.out, SPK]}\n  ")
+    text = edited(clean_text, C20, c19 + C20)
+    assert [facts(f) for f in of(check(text), "wiring.speaker-coupling")] == [
+        finding("wiring.speaker-coupling", "warning", at(text, "C19: {kind", "electrolytic"),
+                "parts.C19.dielectric",
+                f"C19 couples U2.out to the speaker with no polarity noted: the amplifier side sits at "
+                f"{AMP_OUT:g} V (pin out of U2 sits at half its supply ({AMP_OUT:g} V of {V12:g} V))",
+                {"U2.out": (AMP_OUT, "V"), "SPK": (0.0, "V")}, SPEAKER_FIX, "audio-amp"),
+    ]
+
+
+UNBIASED = """profiles:
+  amp-unbiased:
+    class: audio-power-amplifier
+    description: an amplifier whose output bias the plan does not state
+    supply_min: 4 V
+    supply_max: 12 V
+    quiescent_current: 6 mA
+    input_impedance: 50 kohm
+    theta_ja: 100 degC/W
+    tj_max: 150 degC
+    output_topology: single-ended
+    source: test values
+    pins:
+      in_plus: {role: input, dc: ground}
+      out: {role: audio-out}
+      vs: {role: supply, dc: supply}
+      gnd: {role: ground, dc: ground}
+
+devices:
+"""
+
+
+@pytest.mark.parametrize("positive, level, message, fix, key", [
+    ("", "warning", "C20 couples U2.out to the speaker with no polarity noted", SPEAKER_FIX, "dielectric"),
+    (", positive: SPK", "error", "C20 is reversed: positive toward the speaker", SPEAKER_SWAP_FIX,
+     "positive"),
+])
+def test_an_amplifier_output_of_unknown_dc_is_not_quoted(clean_text, positive, level, message, fix, key):
+    # a profile whose output pin states no DC bias: the messages say what is known, the speaker
+    # side's 0 V (through the voice coil to ground) stays among the values
+    text = edited(edited(clean_text, "devices:\n", UNBIASED), "U2: {profile: audio-power-amp-lv,",
+                  "U2: {profile: amp-unbiased,")
+    text = edited(text, C20, C20.replace(", positive: U2.out", positive))
+    token = "electrolytic" if key == "dielectric" else "SPK}"
+    assert [facts(f) for f in of(check(text), "wiring.speaker-coupling")] == [
+        finding("wiring.speaker-coupling", level, at(text, "C20: {kind", token), f"parts.C20.{key}", message,
+                {"SPK": (0.0, "V")}, fix, "audio-amp"),
+    ]
+
+
 # ---- voltage rating (derating shares 80 % and 50 %: common practice) -----------------------------
 
 
@@ -492,3 +589,9 @@ def test_an_unrated_film_capacitor_is_not_asked_for_a_rating(clean_text):
     # VOL_TOP potentials through a node declaration and check nothing is said
     text = with_nodes(clean_text, "  VOL_TOP: {dc: 3 V}\n")
     assert [f for f in wiring(text) if f["rule"] == "wiring.cap-voltage"] == []
+
+
+def test_a_voltage_rating_on_another_kind_of_part_is_not_this_rule(clean_text):
+    # D1 (from GND to V12) rated 10 V has 12 V across it; the capacitor rule leaves diodes alone
+    text = edited(clean_text, "D1: {kind: diode, ends:", "D1: {kind: diode, voltage_rating: 10 V, ends:")
+    assert of(check(text), "wiring.cap-voltage") == []
