@@ -369,10 +369,18 @@ def crystal_load_rule(build, ctx):
       near a third of the marked frequency, and the IF comes out nowhere near the filter. The
       reverse mistake, a fundamental crystal in an overtone oscillator, leaves the tuned circuit
       looking for a response the crystal hardly has: it fails to start or runs on the tank.
+
+      A crystal declared fundamental above about 30 MHz (setting fundamental_max) is a warning:
+      AT-cut crystals are seldom made in fundamental mode above it, because the quartz blank gets
+      too thin to grind (common practice; the figure from memory), so what a supplier sends for
+      that frequency is usually a 3rd-overtone unit, which a fundamental-mode oscillator starts
+      near a third of the marked frequency.
       """,
     fix="Use an oscillator with a tuned circuit at the overtone (declare mode: overtone), or a "
     "fundamental-mode crystal for the frequency.",
-    source="common practice (crystal oscillator design)",
+    source="common practice (crystal oscillator design); the 30 MHz top of ordinary AT-cut fundamental "
+    "crystals from memory",
+    settings={"fundamental_max": 30e6},
 )
 def crystal_overtone(build, ctx):
     for c in frequency_plan(build).conversions:
@@ -407,6 +415,20 @@ def crystal_overtone(build, ctx):
                 level="warning",
                 stage=c.stage.label,
                 fix="Declare the crystal's overtone (parts.X.overtone) or use a fundamental-mode oscillator.",
+            )
+        elif n == 1 and x.frequency.si > setting(ctx, "fundamental_max"):
+            top = setting(ctx, "fundamental_max")
+            ctx.report(
+                f"{x.name} is declared a fundamental-mode crystal at {hz(x.frequency.si)}, above the "
+                f"{hz(top)} or so where ordinary AT-cut fundamental crystals stop: the part supplied for "
+                f"that frequency is usually a 3rd-overtone unit, which an oscillator without a tuned "
+                f"circuit at the overtone starts near {khz(x.frequency.si / 3)}",
+                x.at("frequency"),
+                [Value("marked", x.frequency.si, "Hz"), Value("fundamental_max", top, "Hz")],
+                level="warning",
+                stage=c.stage.label,
+                fix="Check the crystal's mode with its maker; for a 3rd-overtone part declare overtone: 3 "
+                "and an oscillator with a tuned circuit at the overtone (mode: overtone).",
             )
 
 
