@@ -77,9 +77,8 @@ def pack(build) -> Pack | None:
 
 def direct(build) -> list:
     """The devices fed straight from the battery: on the supply's rail, or on a rail `from: supply`."""
-    supply_rail = build.supply.rail
-    return [d for d in build.devices.values() if d.profile is not None and d.rail and
-            (d.rail == supply_rail or getattr(build.rails.get(d.rail), "source", None) == "supply")]
+    fed = {name for name, r in build.rails.items() if r.source == "supply" or name == build.supply.rail}
+    return [d for d in build.devices.values() if d.profile is not None and d.rail in fed]
 
 
 def needs(build) -> list:

@@ -517,3 +517,40 @@ def test_without_supply_rail_the_rail_from_the_supply_is_the_battery():
     assert [(f["level"], f["path"]) for f in found] == [("error", "devices.U2.rail"),
                                                         ("warning", "devices.U3.rail")]
     assert found[0] == over_max(text, "U2", 8, 12.0, u2_rail(text))
+
+
+def test_the_pack_figures_other_families_read():
+    # power.source reads the pack's resistance through these: six alkaline cells x 0.25 ohm (from memory),
+    # typical; a stated resistance as given; none without a described battery
+    from speccheck import loader
+    from speccheck.rules.battery import cell_count, internal_resistance
+
+    build = loader.load_text(portable(), "portable.yaml").build
+    assert cell_count(build) == CELLS
+    assert internal_resistance(build) == (pytest.approx(R_TYPICAL), True)
+    stated = loader.load_text(with_battery("    internal_resistance: 2.5 ohm\n"), "portable.yaml").build
+    assert internal_resistance(stated) == (pytest.approx(2.5), False)
+    bench_text = edited(portable(), "  kind: battery\n", "  kind: bench\n")
+    bench = loader.load_text(bench_text, "portable.yaml").build
+    assert cell_count(bench) is None and internal_resistance(bench) is None
+
+
+def test_the_supply_rail_is_the_battery_even_when_not_marked_from_supply():
+    # V9 without `from: supply` is still supply.rail: the regulator on it is judged as before
+    text = edited(portable(), "  V9: {voltage: 9 V, from: supply}", "  V9: {voltage: 9 V}")
+    found = [facts(f) for f in of(check(text, "portable.yaml"), "battery.end-of-life")]
+    assert [f["path"] for f in found] == ["devices.U3.rail"]
+
+
+def test_a_chip_rated_for_exactly_the_fresh_voltage_is_fine():
+    # U9 takes up to 12.8 V, exactly 8 x 1.6 V (8 = 2^3, so the product is exact in binary): only a voltage
+    # above the limit is an error, so U2 (12 V) is named and U9 is not
+    profile = ("profiles:\n  panel-meter:\n    class: other\n    description: a panel meter driver\n"
+               "    supply_max: 12.8 V\n    quiescent_current: 1 mA\n    pins:\n"
+               "      vs: {role: supply, dc: supply}\n\n")
+    assert 8 * 1.6 == 12.8
+    text = edited(portable(), "\nsignals:\n", "\n" + profile + "signals:\n")
+    text = edited(text, "\nparts:\n", "\n  U9: {profile: panel-meter, rail: V9}\nparts:\n")
+    text = edited(text, "    cells: 6 ", "    cells: 8 ")
+    found = [facts(f) for f in of(check(text, "portable.yaml"), "battery.end-of-life") if f.level == "error"]
+    assert found == [over_max(text, "U2", 8, 12.0, u2_rail(text))]
