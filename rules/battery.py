@@ -42,7 +42,7 @@ def cell_count(build) -> int | None:
     """The cells in series of a described battery: as stated, else the voltage over the nominal."""
     supply = build.supply
     bat = supply.battery if supply is not None and supply.kind == "battery" else None
-    if bat is None or bat.chemistry not in cells.CHEMISTRY or supply.voltage is None:
+    if bat is None:  # the schema requires supply.voltage and names only chemistries in the table
         return None
     return bat.cells or max(1, round(supply.voltage.si / cells.CHEMISTRY[bat.chemistry].nominal))
 
