@@ -408,3 +408,40 @@ def test_without_a_selector_the_note_points_at_the_upstream_settings(monkeypatch
 def test_a_plan_that_is_not_switched_has_no_count(monkeypatch):
     monkeypatch.setattr(configs, "MAX_CONFIGURATIONS", 0)
     assert of(check(CLEAN.read_text("utf-8"), "clean.yaml"), "connect.configurations-capped") == []
+
+
+# ---- where the source's signal enters, when source.net is not given ----------------------------------
+
+def test_the_first_stages_parts_hold_the_input():
+    # R1 and R2 ahead of L1 in the first stage: IF_IN is two parts away from U1's input pin, so only the
+    # first stage's own parts make it an input
+    text = edited(portable(), "    ends: [IF_IN, U1.mixer_in]", "    ends: [IF_A, U1.mixer_in]")
+    text = edited(text, "  C1: {kind", "  R1: {kind: resistor, value: 10 ohm, ends: [IF_IN, IF_B]}\n"
+                                       "  R2: {kind: resistor, value: 10 ohm, ends: [IF_B, IF_A]}\n"
+                                       "  C1: {kind")
+    text = edited(text, "    parts: [L1, C1]\n", "    parts: [R1, R2, L1, C1]\n")
+    assert singles(text) == []
+
+
+def test_the_first_devices_input_pin_holds_the_input():
+    # no input-match stage: the first stage is the conversion, with no parts; L1 on U1's input pin
+    # (mixer_in, its only pin of role input) brings IF_IN in
+    text = edited(portable(), "  - stage: input-match\n    topology: series-l-shunt-c\n    parts: [L1, C1]\n"
+                              "    device: U1\n", "")
+    assert singles(text) == []
+
+
+def test_only_the_first_stage_holds_the_input():
+    # a part listed in the second stage with a net of its own is single like any other
+    text = edited(portable(), "    if_frequency: 455 kHz\n", "    if_frequency: 455 kHz\n    parts: [R98]\n")
+    text = with_parts(text, "  R98: {kind: resistor, value: 1 kohm, ends: [U1.osc_emitter, DANGLE]}\n")
+    assert singles(text) == [one(text, "DANGLE", "R98", "end2", "conversion")]
+
+
+def test_a_rail_or_a_declared_node_with_one_part_is_not_single():
+    text = edited(portable(), "  GND: {voltage: 0 V}\n", "  V9B: {voltage: 9 V, from: supply}\n"
+                                                         "  GND: {voltage: 0 V}\n\nnodes:\n  SQ_REF: {dc: 0.3 V}\n")
+    text = with_parts(text, "  C98: {kind: capacitor, value: 100 nF, ends: [V9B, DANGLE1]}\n"
+                            "  C99: {kind: capacitor, value: 100 nF, ends: [SQ_REF, DANGLE2]}\n")
+    assert singles(text) == [one(text, "DANGLE1", "C98", "end2", "parts"),
+                             one(text, "DANGLE2", "C99", "end2", "parts")]
