@@ -439,8 +439,8 @@ def test_only_the_first_stage_holds_the_input():
 
 
 def test_a_rail_or_a_declared_node_with_one_part_is_not_single():
-    text = edited(portable(), "  GND: {voltage: 0 V}\n", "  V9B: {voltage: 9 V, from: supply}\n"
-                                                         "  GND: {voltage: 0 V}\n\nnodes:\n  SQ_REF: {dc: 0.3 V}\n")
+    rails = "  V9B: {voltage: 9 V, from: supply}\n  GND: {voltage: 0 V}\n\nnodes:\n  SQ_REF: {dc: 0.3 V}\n"
+    text = edited(portable(), "  GND: {voltage: 0 V}\n", rails)
     text = with_parts(text, "  C98: {kind: capacitor, value: 100 nF, ends: [V9B, DANGLE1]}\n"
                             "  C99: {kind: capacitor, value: 100 nF, ends: [SQ_REF, DANGLE2]}\n")
     assert singles(text) == [one(text, "DANGLE1", "C98", "end2", "parts"),
