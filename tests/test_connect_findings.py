@@ -83,16 +83,21 @@ def test_a_part_in_no_stage_is_under_parts_and_each_terminal_is_named():
                              one(text, "TRIM2", "RV9", "wiper", "parts")]
 
 
+DANGLE = "  R98: {kind: resistor, value: 1 kohm, ends: [V6, DANGLE]}\n"  # a single net, listed late
+
+
 def test_a_net_two_terminals_of_one_part_share_is_not_single():
-    # a pot wired as a variable resistor: its end and its wiper on the same net TRIM
-    text = with_parts(portable(), RHEOSTAT)
-    assert singles(text) == []
+    # a pot wired as a variable resistor: its end and its wiper on the same net TRIM; the nets after it
+    # are still looked at
+    text = with_parts(portable(), RHEOSTAT + DANGLE)
+    assert singles(text) == [one(text, "DANGLE", "R98", "end2", "parts")]
 
 
 def test_an_unused_throw_of_a_selector_is_left_open_on_purpose():
     text = edited(portable(), "b: {common: DAMP, throws: {wide: U1.quad}}",
                   "b: {common: DAMP, throws: {wide: U1.quad, narrow: NC_B}}")
-    assert singles(text) == []
+    text = with_parts(text, DANGLE)  # after S1 in the plan: still looked at
+    assert singles(text) == [one(text, "DANGLE", "R98", "end2", "parts")]
 
 
 def test_a_v1_plan_keeps_its_old_results():
@@ -292,11 +297,19 @@ def test_a_pot_between_two_outputs_names_the_higher(ends):
 
 
 def test_a_pot_with_an_end_of_unknown_dc_is_passed_over():
-    # RV8 (listed before RV1) has an end on a net of no known DC; RV1 after it is still judged
+    # RV8 and RV7 (listed before RV1) each have an end on a net of no known DC; RV1 after them is still judged
     text = edited(volume_fed(), "  RV1: {kind",
                   "  RV8: {kind: potentiometer, value: 10 kohm, ends: [NOWHERE, GND], wiper: NOWHERE2}\n"
+                  "  RV7: {kind: potentiometer, value: 10 kohm, ends: [GND, NOWHERE3], wiper: NOWHERE4}\n"
                   "  RV1: {kind")
     assert dc_found(text) == [track(text, "RV1", HALF, "U2.out", HALF_WHY, "volume")]
+
+
+def test_a_pot_with_the_same_dc_at_both_ends_carries_none_across_its_track():
+    # U2's output and its bypass pin both sit at half the supply (profile): 4.5 V - 4.5 V = 0 V
+    text = with_parts(portable(), "  RV9: {kind: potentiometer, value: 10 kohm, ends: [U2.out, U2.bypass], "
+                                  "wiper: W9}\n")
+    assert dc_found(text) == []
 
 
 def test_a_pot_in_no_stage_is_under_parts():
