@@ -21,6 +21,7 @@ from .common import (
     missing_note,
     passed,
     passed_fm,
+    setting,
     share_level,
     share_settings,
     share_text,
@@ -48,11 +49,15 @@ from .common import (
 
       An LO on the other side of the input from what the plan says still gives the same IF, but
       the spectrum comes out inverted and the image moves to the other side; the plan should say
-      which it is. An LO equal to the input gives no IF at all.
+      which it is. An LO equal to the input gives no IF at all. An if_frequency that differs from
+      the IF the LO and the input give by more than a share of it (setting intended_share,
+      default 1 %) is a warning: one of the plan's numbers is wrong, and whatever was designed
+      from the stated IF (a filter, a tank) is designed for a frequency the mixer does not make.
       """,
       fix="Choose the LO as f_in - f_IF (low side) or f_in + f_IF (high side) and declare the side.",
       source="textbook mixer arithmetic (e.g. Tooley, Electronic Circuits); common practice: a 21.4 MHz IF "
-             "to 455 kHz low side needs a 20.945 MHz LO")
+             "to 455 kHz low side needs a 20.945 MHz LO",
+      settings={"intended_share": 0.01})
 def conversion(build, ctx):
     plan = frequency_plan(build)
     for c in plan.conversions:
@@ -88,6 +93,20 @@ def conversion(build, ctx):
         ctx.publish("conversion", c.owner, "IF highest (worst case)", c.f_if + c.if_unc, "Hz")
         if c.intended is not None:
             ctx.publish("conversion", c.owner, "IF offset from intended", round(c.f_if - c.intended, 3), "Hz")
+            share = setting(ctx, "intended_share")
+            off = abs(c.f_if - c.intended) / c.intended
+            if off > share:
+                ctx.report(
+                    f"{c.owner}: the plan states an IF of {hz(c.intended)}, but the LO ({hz(c.lo)}) and "
+                    f"the input ({hz(c.f_in)}) give {hz(c.f_if)}, {off:.1%} away: one of these numbers "
+                    "is wrong",
+                    c.stage.at("if_frequency"),
+                    [Value("IF stated", c.intended, "Hz"), Value("IF computed", c.f_if, "Hz"),
+                     Value("LO", c.lo, "Hz"), Value("input", c.f_in, "Hz")],
+                    level="warning",
+                    stage=stage.label,
+                    fix="Correct if_frequency, or the crystal or oscillator frequency, so the two agree.",
+                )
         if c.assumed or (
             c is plan.conversions[0] and build.source is not None and build.source.drift is None
         ):
