@@ -533,3 +533,23 @@ def test_fuse_of_a_class_b_amplifier_heats_on_the_rms_of_its_half_waves():
     assert sheet_rows(check(hot), "power.fuse-size")[:2] == rows(
         ("fuse", "F1", "normal current (budget at full output)", i_dc + i_p / math.pi, "A", "", ""),
         ("fuse", "F1", "RMS of the supply current (class-B half-wave draw)", rms, "A", "", ""))
+
+
+POWER_RULES = ["power.current-budget", "power.device-supply", "power.heat", "power.regulator-dropout",
+               "power.fuse-size", "power.fuse-wire", "power.fuse-inrush", "power.fuse-voltage",
+               "power.fuse-missing", "power.resistor-fuse", "power.reverse-polarity", "power.reverse-diode"]
+
+
+def test_a_plan_without_a_supply_section_gives_no_power_finding():
+    # nothing to fuse, wire or protect: each rule stands back (and none fails on the missing supply)
+    text = FUSED[:FUSED.index("supply:\n")] + FUSED[FUSED.index("rails:\n"):]
+    result = check(text)
+    found = {rule: [f.message for f in of(result, rule)] for rule in POWER_RULES}
+    assert found == {rule: [] for rule in POWER_RULES}
+    fuse_rules = [r for r in POWER_RULES if r.startswith("power.fuse") or r == "power.resistor-fuse"]
+    assert [e for e in result.sheet if e.rule in fuse_rules] == []
+
+
+def test_no_wire_gauge_no_wire_check():
+    result = check(edited(FUSED, "  wire_gauge: 22\n", ""))
+    assert of(result, "power.fuse-wire") == [] and sheet_rows(result, "power.fuse-wire") == []
