@@ -367,3 +367,35 @@ def test_budget_of_an_amplifier_without_a_load_is_not_known():
     text = edited(hot, "    load: SPK1\n", "")
     assert ("power", "U2", "full-output supply current", "not known (see power.heat)", "", "", "") in \
         sheet_rows(check(text), "power.current-budget")
+
+
+def test_shunt_diode_on_another_net_behind_the_fuse_is_not_ahead_of_it():
+    # D1 across V5 (a second rail): not on a fuse end at all; D1 across DC_F between the fuse and a
+    # series resistor: on a fuse end, but the fuse does not touch the supply rail V12; neither is
+    # "ahead of the fuse"
+    other = edited(edited(BASE, "  GND: {voltage: 0 V}\n", "  V5: {voltage: 5 V, from: supply}\n  GND: "
+                                                           "{voltage: 0 V}\n"),
+                   "ends: [GND, V12], positive: GND}", "ends: [GND, V5], positive: GND}")
+    result = check(other)
+    assert of(result, "power.reverse-diode") == []
+    assert sheet_rows(result, "power.reverse-diode") == [
+        ("power", "D1", "reverse protection", "shunt diode across V5", "", "", "")]
+    behind = edited(SERIES, "ends: [GND, V12], positive: GND}", "ends: [GND, DC_F], positive: GND}")
+    behind = edited(behind, "  C30:", "  R1: {kind: resistor, value: 1 ohm, ends: [DC_F, V12]}\n  C30:")
+    assert of(check(behind), "power.reverse-diode") == []
+
+
+def test_series_diode_ahead_of_the_fuse_publishes_its_drop():
+    # D1 from DC_IN (anode) to DC_F, F1 from DC_F to V12: the diode does not touch the rail
+    text = edited(BASE, "ends: [DC_IN, V12]}", "ends: [DC_F, V12]}")
+    text = edited(text, "D1: {kind: diode, ends: [GND, V12], positive: GND}",
+                  "D1: {kind: diode, forward_voltage: 0.4 V, ends: [DC_IN, DC_F], positive: DC_IN}")
+    result = check(text)
+    assert of(result, "power.reverse-diode") == []
+    assert sheet_rows(result, "power.reverse-diode") == rows(
+        ("power", "D1", "series diode drop", 0.4, "V", "", ""))
+
+
+def test_no_reverse_polarity_check_on_a_mains_supply():
+    text = edited(edited(BASE, "kind: bench", "kind: mains-transformer"), "  reverse_protection: D1\n", "")
+    assert of(check(text), "power.reverse-polarity") == []
