@@ -228,7 +228,8 @@ def test_heat_notes_for_what_the_profile_does_not_state():
 
 
 def test_regulators_skipped_and_one_without_load():
-    # U2 names no rail (skipped); U5 makes V9 from V12 with nothing on it and no load_current: 0 A out,
+    # U0 is no regulator, U2 names no rail (both skipped); U5 makes V9 from V12 with nothing on it
+    # and no load_current: 0 A out,
     # P = 0 W, nothing to heat; U6 has no output rail and takes its 4 V from its profile's
     # output_voltage, with its stated 0.25 A load: (12 − 4)·0.25 = 2 W like U3
     text = edited(REG, "  V4: {voltage: 4 V, from: U3}\n",
@@ -237,6 +238,7 @@ def test_regulators_skipped_and_one_without_load():
                                           "output_voltage: 4 V\n"
                   "    theta_ja: 30 degC/W\n    tj_max: 125 degC\n  load-chip:\n")
     text = edited(text, "  U3: {profile: reg-chip, rail: V12, output_rail: V4}\n",
+                  "  U0: {profile: load-chip, rail: V12}\n"
                   "  U2: {profile: reg-chip}\n  U5: {profile: reg-chip, rail: V12, output_rail: V9}\n"
                   "  U6: {profile: fixed-chip, rail: V12, load_current: 0.25 A}\n"
                   "  U3: {profile: reg-chip, rail: V12, output_rail: V4}\n")
@@ -328,9 +330,10 @@ def test_bridge_amplifier_per_device_share():
 
 
 def test_amplifier_without_load_is_a_note_and_the_next_one_still_checked():
-    # U1 (same profile, no audio-amp stage of its own) comes first: its dissipation is not computed;
-    # U2 is still judged
+    # U0 (not an amplifier) and U1 (same profile, no audio-amp stage of its own) come first: U1's
+    # dissipation is not computed; U2 is still judged
     text = edited(HOT, "  U2: {profile: audio-power-amp-tab,",
+                  "  U0: {profile: rf-amplifier-small-signal, rail: V18}\n"
                   "  U1: {profile: audio-power-amp-tab, rail: V18}\n  U2: {profile: audio-power-amp-tab,")
     found = whole(text, "power.heat")
     assert found[0] == finding(
@@ -399,11 +402,13 @@ def test_regulator_headroom_after_a_series_diode_and_resistor():
 
 
 def test_dropout_skips_regulators_it_cannot_judge():
-    # U2 names no rail (no input), U5's profile states no dropout (headroom shown, not judged): both
+    # U0 is no regulator, U2 names no rail (no input), U5's profile states no dropout (headroom shown,
+    # not judged): all
     # come before U3, which is still judged (5.9 V in, 1.9 V of headroom: an error)
     text = edited(on_rail("5.9 V"), "  load-chip:\n",
                   "  open-chip:\n    class: linear-regulator\n    output_voltage: 3 V\n  load-chip:\n")
     text = edited(text, "  U3: {profile: reg-chip, rail: V12, output_rail: V4}\n",
+                  "  U0: {profile: load-chip, rail: V12}\n"
                   "  U2: {profile: reg-chip}\n  U5: {profile: open-chip, rail: V12}\n"
                   "  U3: {profile: reg-chip, rail: V12, output_rail: V4}\n")
     result = check(text)
