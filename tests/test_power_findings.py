@@ -399,3 +399,12 @@ def test_series_diode_ahead_of_the_fuse_publishes_its_drop():
 def test_no_reverse_polarity_check_on_a_mains_supply():
     text = edited(edited(BASE, "kind: bench", "kind: mains-transformer"), "  reverse_protection: D1\n", "")
     assert of(check(text), "power.reverse-polarity") == []
+
+
+def test_a_position_that_draws_nothing_is_budgeted_at_zero():
+    # U1 taken out: with S2 off nothing draws (0 A), with S2 on the lamp driver's 150 mA
+    text = edited(switched_lamp(), "  U1: {profile: load-chip, rail: V12}\n", "")
+    rows_ = sheet_rows(check(text), "power.current-budget")
+    assert rows_[-3:] == rows(("power", "supply", "worst switch position", "S2 on", "", "", ""),
+                              ("power", "supply", "input current budget with S2 off", 0.0, "A", "", ""),
+                              ("power", "supply", "input current budget with S2 on", 0.150, "A", "", ""))

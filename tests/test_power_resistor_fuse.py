@@ -245,3 +245,11 @@ def test_series_resistor_with_no_fuse_is_the_protection_and_a_resistor_fuse_wins
 def test_resistor_without_a_value_is_left_alone():
     text = edited(PLAN, "value: 1 ohm, ", "")
     assert whole(text) == [] and sheet_rows(check(text), "power.resistor-fuse") == []
+
+
+def test_a_build_that_draws_nothing_heats_its_resistor_not_at_all():
+    # no quiescent current stated: a 0 A budget, so 0 V dropped and 0 W in normal use
+    text = edited(PLAN, "    quiescent_current: 0.3 A\n", "")
+    assert sheet_rows(check(text), "power.resistor-fuse")[:2] == [
+        ("power", "R1", "drop in normal use", 0.0, "V", "", ""),
+        ("power", "R1", "dissipation in normal use", 0.0, "W", "", "")]
