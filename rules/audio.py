@@ -70,9 +70,7 @@ def output_network(build, ctx):
                            "lead's inductance the amplifier may oscillate at RF", stage.at("kind"),
                            level="error" if want == "required" else "warning", stage=stage.label)
             continue
-        res, cap = build.part(net.resistor), build.part(net.capacitor)
-        if res is None or cap is None:
-            continue  # input.reference names it
+        res, cap = build.part(net.resistor), build.part(net.capacitor)  # input.reference checked both
         if res.kind != "resistor" or cap.kind != "capacitor":
             ctx.report(f"output_network of {stage.label} names {res.name} ({res.kind}) and {cap.name} "
                        f"({cap.kind}); expected a resistor and a capacitor",
@@ -261,9 +259,7 @@ def input_bypass(build, ctx):
                 stage=stage.label,
             )
             continue
-        cap = build.part(stage.input_bypass)
-        if cap is None:
-            continue  # input.reference names it
+        cap = build.part(stage.input_bypass)  # input.reference checked that it is declared
         if cap.kind != "capacitor" or cap.value is None:
             ctx.report(
                 f"input_bypass {cap.name} is a {cap.kind}{'' if cap.value else ' with no value'}; an "
