@@ -37,9 +37,10 @@ def _pick(kind: str, parts: list):
 def _say_override(build, stage, ctx):
     """Format 2: a works_into that differs from the device's input impedance is said, not silent."""
     dev = build.device(stage.device)
-    given, prof = stage.works_into, dev.profile if dev is not None else None
-    if given is None or prof is None or prof.input_impedance is None:
+    given = stage.works_into
+    if given is None or dev is None or dev.profile.input_impedance is None:
         return
+    prof = dev.profile  # a device always has its profile (input.reference refuses an unknown one)
     own = prof.input_impedance.si
     if abs(given.si / own - 1) > 0.1:
         ctx.report(
@@ -49,23 +50,26 @@ def _say_override(build, stage, ctx):
             [Value("works_into", given.si, "Ω"), Value("device input", own, "Ω")],
             level="note",
             stage=stage.label,
-            fix="",
         )
 
 
-def _load_resistance(build, stage):
-    """(resistance the network works into, "") or (None, the field that would give it)."""
+def _load_resistance(build, stage) -> float | None:
+    """The resistance the network works into: the stage's own figure, else its device's input."""
     given = stage.works_into or stage.load_impedance  # v2 name, v1 name
     if given is not None:
-        return given.si, ""
+        return given.si
     dev = build.device(stage.device)
-    if dev is not None and dev.profile is not None and dev.profile.input_impedance is not None:
-        return dev.profile.input_impedance.si, ""
-    return None, (
-        f"profiles.{dev.profile.name}.input_impedance"
-        if dev is not None and dev.profile is not None
-        else f"chain[{stage.index}].works_into or .device"
-    )
+    if dev is not None and dev.profile.input_impedance is not None:
+        return dev.profile.input_impedance.si
+    return None
+
+
+def _load_field(build, stage) -> str:
+    """The field that would give a stage's load resistance when _load_resistance found none."""
+    dev = build.device(stage.device)
+    if dev is not None:
+        return f"profiles.{dev.profile.name}.input_impedance"
+    return f"chain[{stage.index}].works_into or .device"
 
 
 def _publish_picks(ctx, who: str, what: str, ideal: float, unit: str) -> str:
@@ -121,9 +125,10 @@ def input_match(build, ctx):
             )
             continue
         rs = src.impedance.si
-        rl, from_where = _load_resistance(build, stage)
+        rl = _load_resistance(build, stage)
         _say_override(build, stage, ctx)
         if rl is None:
+            from_where = _load_field(build, stage)
             ctx.report(
                 f"{stage.label}: {from_where} is not given, so the match cannot be computed",
                 stage.loc,
