@@ -138,10 +138,10 @@ def input_match(build, ctx):
             )
             continue
         f, _ = plan.at.get(id(stage), (None, 0.0))
-        if f is None:
+        if f is None:  # the schema requires source.frequency: a conversion ahead left the IF unknown
             ctx.report(
-                f"{stage.label}: source.frequency is not given, so the match cannot be computed at "
-                "its working frequency",
+                f"{stage.label}: the IF of a conversion ahead of it is not known, so the match cannot be "
+                "computed at its working frequency",
                 stage.loc,
                 level="note",
                 stage=stage.label,

@@ -430,3 +430,17 @@ def test_works_into_on_a_device_whose_profile_states_no_input_is_not_compared():
     assert found(result, "rfpath.input-match") == []
     assert ("input-match", "input-match", "load resistance", approx(1500.0), "Ω", "", "") in sheet_rows(
         result, "rfpath.input-match")
+
+
+def test_stage_after_a_conversion_of_unknown_if_is_a_note():
+    # a second conversion that states neither its oscillator nor its IF: the frequency reaching the
+    # stage after it is unknown (the note used to blame source.frequency, which the schema requires)
+    third = SECOND.replace("name: second", "name: third")
+    text = edited(CLEAN_TEXT, "  - stage: limiter\n",
+                  "  - stage: conversion\n    name: conv2\n" + SECOND + third + "  - stage: limiter\n")
+    assert found(check(text), "rfpath.input-match") == [
+        note(text, "  - stage: input-match", "stage", f"chain[{4 + n}]",
+             f"{name}: the IF of a conversion ahead of it is not known, so the match cannot be computed at "
+             "its working frequency", stage=name, nth=1 + n)
+        for n, name in enumerate(("second", "third"))
+    ]
