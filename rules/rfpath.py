@@ -247,9 +247,9 @@ def input_match(build, ctx):
         ctx.publish("input-match", who, "impedance seen by the source (real)", zin.real, "Ω")
         ctx.publish("input-match", who, "impedance seen by the source (imaginary)", zin.imag, "Ω")
         ctx.publish(
-            "input-match", who, "return loss", round(rloss, 2) if math.isfinite(rloss) else rloss, "dB"
+            "input-match", who, "return loss", round(rloss, 2), "dB"  # round(inf, 2) is inf
         )
-        ctx.publish("input-match", who, "VSWR", round(ratio, 3) if math.isfinite(ratio) else ratio)
+        ctx.publish("input-match", who, "VSWR", round(ratio, 3))
         if rloss < min_rl:
             sign = "+" if zin.imag >= 0 else "−"
             ctx.report(
@@ -403,7 +403,7 @@ def gain_ahead(build, ctx):
 def max_input(build, ctx):
     src = build.source
     for dev in build.devices.values():
-        if dev.profile is None or dev.profile.max_input is None:
+        if dev.profile.max_input is None:  # a device always has its profile (input.reference)
             continue
         index, first = _first_stage_of(build, dev.name)
         if first is None or first.kind not in ("input-match", "preamp", "conversion", "if-filter", "limiter"):

@@ -444,3 +444,31 @@ def test_stage_after_a_conversion_of_unknown_if_is_a_note():
              "its working frequency", stage=name, nth=1 + n)
         for n, name in enumerate(("second", "third"))
     ]
+
+
+def test_l_network_part_without_a_value_is_a_note():
+    text = two_matches(text=edited(CLEAN_TEXT, "C1: {kind: capacitor, value: 56 pF, ",
+                                   "C1: {kind: capacitor, "))
+    assert by_place(found(check(text), "rfpath.input-match")) == by_place([
+        note(text, *FIRST_TOPO,
+             "input-match: a series-l-shunt-c network needs an inductor and a capacitor with values in "
+             "chain[0].parts"),
+        second_warning(text),
+    ])
+
+
+def test_poorly_matched_termination_counts_the_reflection():
+    text = edited(CLEAN_TEXT, "  - stage: input-match\n    topology: series-l-shunt-c\n    parts: [L1, C1]\n",
+                  TERMINATED)
+    text = edited(text, "  C1: {kind: capacitor, value: 56 pF",
+                  "  R1: {kind: resistor, value: 100 ohm, ends: [IF_IN, GND]}\n"
+                  "  C1: {kind: capacitor, value: 56 pF")
+    # 100 ohm || 1.5 kohm = 93.75 ohm: Γ = 43.75/143.75 = 0.304, so the chip's share of the available
+    # power is Re(Z)/R_L·(1 - |Γ|²) (power division and reflection)
+    zin = 1 / (1 / 100 + 1 / 1500)
+    g = gamma(complex(zin))
+    assert -20 * math.log10(g) > 10  # no mismatch warning, only the termination note
+    lost = -10 * math.log10(zin / 1500 * (1 - g**2))
+    result = check(text)
+    assert [(f["level"], f["values"]["lost"]) for f in found(result, "rfpath.input-match")] == [
+        ("note", (approx(round(lost, 2)), "dB"))]

@@ -261,8 +261,12 @@ def test_where_a_device_first_sits_decides_whether_its_input_is_checked(stage_ol
     if stage_old:
         text = edited(text, stage_old, stage_new)
     text = with_lna(text, "  U7: {profile: lna, rail: V6}\n")
-    got = [f for f in found(check(text), "rfpath.max-input") if "U7" in f["message"]]
-    assert got == ([over(text, 3.0, "3 dBm", dev="U7", limit="0 dBm", stage=kind)] if checked else [])
+    text = edited(text, U1, "")  # U1 listed after U7, so that a loop that stops at U7 misses it
+    text = edited(text, "\nparts:\n", U1 + "\nparts:\n")
+    expected = [over(text, 3.0, "3 dBm")]  # +3 dBm reaches U1 too, above its -10 dBm
+    if checked:
+        expected.append(over(text, 3.0, "3 dBm", dev="U7", limit="0 dBm", stage=kind))
+    assert by_place(found(check(text), "rfpath.max-input")) == by_place(expected)
 
 
 def test_plan_without_a_source_is_a_note_at_the_device_first_stage():
