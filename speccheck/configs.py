@@ -393,6 +393,11 @@ def check_references(build, findings: list):
             ref = getattr(tap, name)
             if ref and ref not in build.parts:
                 bad(f"tap {tap.name}: part '{ref}' is not declared", tap.at(name))
+        series = build.parts.get(tap.series) if tap.series else None
+        if series is not None and series.kind not in ("resistor", "potentiometer"):
+            # tap.loading adds the series part's value to the load in ohms
+            bad(f"tap {tap.name}: series part '{tap.series}' is a {series.kind}, not a resistor",
+                tap.at("series"))
         if tap.after and tap.after not in kinds:
             bad(
                 f"tap {tap.name} is taken after '{tap.after}', which is no stage of the chain",

@@ -202,3 +202,16 @@ def test_a_cost_equal_to_max_loss_passes():
     main = par(R9)
     cost = db(main, Z) - db(par(10e3 + R15, main), Z)
     assert loading(portable(), Settings(rule_settings={"tap.loading": {"max_loss": cost}}))[0] == []
+
+
+def test_a_series_part_that_is_no_resistor_is_refused():
+    # a capacitor's value (in farads) cannot be added to the tap's load in ohms
+    text = edited(portable(), "    series: R15\n", "    series: C15\n")
+    result = check(text, "portable.yaml")
+    line = line_of(text, "    series: C15")
+    col = text.splitlines()[line - 1].index("C15") + 1
+    assert [facts(f) for f in result.findings] == [
+        {"rule": "input.reference", "level": "error", "line": line, "col": col, "path": "taps[0].series",
+         "message": "tap data out: series part 'C15' is a capacitor, not a resistor", "values": {},
+         "fix": "Declare the switch, position or setting, or correct the name.", "stage": "input",
+         "signal": "", "position": ""}]
