@@ -31,8 +31,7 @@ def _source_nets(build) -> set:
     device = next((build.devices.get(st.device) for st in build.chain if st.device), None)
     if device is not None and device.profile is not None:
         for pin in device.profile.pins.values():
-            if pin.role == "input":
-                region.add(f"{device.name}.{pin.name}")
+            if pin.role == "input":  # the pin itself is a device pin: never single, never floating
                 for part in build.nets.parts_on(f"{device.name}.{pin.name}"):
                     region |= set(part.terminals.values())
     out = set(region)
@@ -60,7 +59,7 @@ def _outside(build) -> set:
                 out |= set(part.terminals.values())
     for stage in build.chain:  # the speaker, or the jack a speaker plugs into
         for ref in (stage.load, stage.coupling) if stage.kind == "audio-amp" else ():
-            part = build.part(ref) if isinstance(ref, str) else None
+            part = build.part(ref)
             if part is not None:
                 out |= set(part.terminals.values())
     return out

@@ -458,3 +458,43 @@ def test_a_rail_or_a_declared_node_with_one_part_is_not_single():
                             "  C99: {kind: capacitor, value: 100 nF, ends: [SQ_REF, DANGLE2]}\n")
     assert singles(text) == [one(text, "DANGLE1", "C98", "end2", "parts"),
                              one(text, "DANGLE2", "C99", "end2", "parts")]
+
+
+def test_the_parts_on_the_input_pin_reach_one_part_further():
+    # no input-match stage; the connector's IF_IN reaches U1's input through C2 and L1: two parts away
+    # from the pin, but one past L1, a part on the pin
+    text = edited(portable(), "  - stage: input-match\n    topology: series-l-shunt-c\n    parts: [L1, C1]\n"
+                              "    device: U1\n", "")
+    text = edited(text, "ends: [IF_IN, U1.mixer_in]", "ends: [LIN, U1.mixer_in]")
+    text = with_parts(text, "  C2: {kind: capacitor, value: 10 nF, ends: [IF_IN, LIN]}\n")
+    assert singles(text) == []
+
+
+def test_a_load_named_on_another_stage_is_no_speaker_line():
+    # only the audio-amp stage's load and coupling meet the speaker; a load on the volume stage does not
+    text = edited(portable(), "    parts: [RV1]\n", "    parts: [RV1]\n    load: R98\n")
+    text = with_parts(text, DANGLE)
+    assert singles(text) == [one(text, "DANGLE", "R98", "end2", "volume")]
+
+
+BARE = """build_spec: 2
+build:
+  name: a bare board
+  purpose: two resistors and a loose one
+rails:
+  V5: {voltage: 5 V}
+  GND: {voltage: 0 V}
+parts:
+  R1: {kind: resistor, value: 1 kohm, ends: [V5, MID]}
+  R2: {kind: resistor, value: 1 kohm, ends: [MID, GND]}
+  R3: {kind: resistor, value: 1 kohm, ends: [MID, LOOSE]}
+"""
+
+
+def test_a_plan_with_no_supply_no_source_and_no_chain():
+    # nothing meets the outside: only LOOSE is single, and no rule trips over the missing sections
+    result = check(BARE, "bare.yaml")
+    assert [f for f in result.findings if f.stage == "internal"] == []
+    found = [facts(f) for f in of(result, "connect.single-connection")]
+    assert found == [one(BARE, "LOOSE", "R3", "end2", "parts")]
+    assert of(result, "connect.unreachable") == []
