@@ -95,12 +95,12 @@ def single_connection(build, ctx):
         if len(parts) != 1 or _anchored(build, net) or net in outside:
             continue
         part = parts[0]
-        if sum(1 for n in part.terminals.values() if n == net) > 1:
-            continue
         names = [name for name, n in part.terminals.items() if n == net]
+        if len(names) > 1:
+            continue  # two terminals of one part share the net (a pot wired as a variable resistor)
         if part.selector:
             continue  # an unused throw of a selector is a throw left open
-        ctx.report(f"Net {net} reaches only {part.name} ({', '.join(names)}): nothing else connects to it",
+        ctx.report(f"Net {net} reaches only {part.name} ({names[0]}): nothing else connects to it",
                    part.loc, [Value("net", net)], stage=build.stage_of_part(part.name).label
                    if build.stage_of_part(part.name) else "parts")
 

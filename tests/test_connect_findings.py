@@ -498,3 +498,10 @@ def test_a_plan_with_no_supply_no_source_and_no_chain():
     found = [facts(f) for f in of(result, "connect.single-connection")]
     assert found == [one(BARE, "LOOSE", "R3", "end2", "parts")]
     assert of(result, "connect.unreachable") == []
+
+
+def test_a_part_between_two_device_pins_does_not_float():
+    # U1's filter pins hold nothing else: R98 reaches device pins, nothing outside the plan, and no rail
+    text = with_parts(portable(), "  R98: {kind: resistor, value: 1 kohm, "
+                                  "ends: [U1.filter_in, U1.filter_out]}\n")
+    assert islands(text) == []
