@@ -505,3 +505,13 @@ def test_a_part_between_two_device_pins_does_not_float():
     text = with_parts(portable(), "  R98: {kind: resistor, value: 1 kohm, "
                                   "ends: [U1.filter_in, U1.filter_out]}\n")
     assert islands(text) == []
+
+
+def test_a_pot_across_a_declared_node_is_on_purpose():
+    # a threshold control across a declared 0.3 V node: no output feeds the track
+    rails = "  GND: {voltage: 0 V}\n\nnodes:\n  SQ_REF: {dc: 0.3 V}\n"
+    text = edited(portable(), "  GND: {voltage: 0 V}\n", rails)
+    text = with_parts(text, "  RV9: {kind: potentiometer, value: 10 kohm, ends: [SQ_REF, GND], wiper: W9}\n")
+    result = check(text, "portable.yaml")
+    assert [f for f in result.findings if f.rule.startswith("input.")] == []  # so the rules ran
+    assert of(result, "connect.dc-unblocked") == []
