@@ -10,7 +10,7 @@ import math
 
 import pytest
 from conftest import check, edited, facts, of, sheet_rows
-from freqplan_pins import ceramic, clean, gaussian, khz4, share, share_text, where
+from freqplan_pins import butterworth, ceramic, clean, gaussian, khz4, share, share_text, where
 from scipy.optimize import brentq
 from scipy.special import jv
 
@@ -464,3 +464,17 @@ def test_upstream_against_an_am_signal(bandwidth, cut):
         }
     ]
     assert _found(text, UP) == (expected if cut else [])
+
+
+def test_upstream_fix_keeps_the_stated_shape_factor():
+    # 8 kHz at 6 dB with a shape factor of 4 (32 kHz at the class's 40 dB): gentler skirts than the typical
+    # ceramic's, so both the share and the width that passes 98 % come from that stated shape
+    text = edited(_upstream("8 kHz"), "  drift: 500 Hz\n", "  drift: 500 Hz\n  shape_factor: 4\n")
+    s = share(5e3, 3e3, butterworth(8e3, 6.0, 32e3, 40.0))
+    level = "error" if s < 0.5 else "warning"
+    need = brentq(lambda w: share(5e3, 3e3, butterworth(w, 6.0, 4 * w, 40.0)) - 0.98, 2e3, 1e6, xtol=1e-3)
+    f = _found(text, UP)[0]
+    assert f["level"] == level and s < 0.8
+    assert f["values"]["share passed"] == (pytest.approx(s * 100), "%")
+    assert "(8 kHz at 6 dB, 32 kHz at 40 dB)" in f["message"]
+    assert f["fix"] == f"Set the upstream receiver or instrument to about {khz4(need)} or more."
