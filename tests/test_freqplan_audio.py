@@ -382,3 +382,32 @@ def test_a_switched_capacitor_not_listed_is_a_note():
         }
     ]
     assert EXAMPLES.is_dir()
+
+
+def test_a_figure_given_with_parts_is_not_loaded():
+    # time_constant: 50 us stated beside R1 and C1 (with a 10 kohm load on their node): the figure stands,
+    # nothing is loaded, no as-wired rows
+    text = plan(
+        de_parts("5.6 kohm", extra="  RL: {kind: resistor, value: 10 kohm, ends: [DE, GND]}\n"),
+        RC_DE + "    time_constant: 50 us\n",
+    )
+    assert _found(text, DE) == []
+    assert [r[2] for r in sheet_rows(check(text), DE)] == ["de-emphasis time constant", "de-emphasis corner"]
+
+
+def test_a_load_that_is_not_plain_is_named_with_every_reactive_part():
+    # a 10 nF coupling capacitor (under 100 x 4.7 nF) and a coil in the load: both named, the RC alone kept
+    extra = (
+        "  C3: {kind: capacitor, value: 10 nF, ends: [AF, X]}\n"
+        "  R3: {kind: resistor, value: 10 kohm, ends: [X, GND]}\n"
+        "  L3: {kind: inductor, value: 10 mH, ends: [AF, Y]}\n"
+        "  R4: {kind: resistor, value: 10 kohm, ends: [Y, GND]}\n"
+    )
+    text = plan(lp_parts("10 kohm", "4.7 nF", extra), RC_LP, signals=VOICE)
+    rows = {r[2]: r[3] for r in sheet_rows(check(text), AC)}
+    assert rows == {
+        "low-pass corner": pytest.approx(corner(10e3 * 4.7e-9)),
+        # the parts in the order the walk from AF finds them
+        "load on the low-pass output": "C3, L3, R4, R3: not a plain resistance at the corner (C3, L3 too small "
+        "to count as a short), so the figures are the RC alone's (speccheck spice simulates it as wired)",
+    }

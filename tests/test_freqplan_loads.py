@@ -150,3 +150,15 @@ def test_members_of_a_listed_pair_of_capacitors():
     assert [p.name for p in loads.members(build, stand_in)] == ["C2", "C4"]
     assert loads.resistive_load(build, stage) == loads.Load(47e3, ("RL",), ())
     assert [p.name for p in loads.members(build, build.part("RL"))] == ["RL"]
+
+
+def test_a_resistor_without_a_value_gives_no_output():
+    text = plan(
+        "  R2: {kind: resistor, ends: [IN, AF]}\n  C2: {kind: capacitor, value: 1 nF, ends: [AF, GND]}\n"
+        "  RL: {kind: resistor, value: 47 kohm, ends: [AF, GND]}\n",
+        RC_LP,
+        signals=VOICE,
+    )
+    build = loader.load_text(text, "plan.yaml").build
+    stage = build.stages("audio-filter")[0]
+    assert loads.rc_output(build, stage) is None and loads.resistive_load(build, stage) is None
