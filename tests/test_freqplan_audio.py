@@ -409,5 +409,6 @@ def test_a_load_that_is_not_plain_is_named_with_every_reactive_part():
         "low-pass corner": pytest.approx(corner(10e3 * 4.7e-9)),
         # the parts in the order the walk from AF finds them
         "load on the low-pass output": "C3, L3, R4, R3: not a plain resistance at the corner (C3, L3 too "
-        "small to count as a short), so the figures are the RC alone's (speccheck spice simulates it as wired)",
+        "small to count as a short), so the figures are the RC alone's (speccheck spice simulates it as "
+        "wired)",
     }
