@@ -87,8 +87,18 @@ def test_signal_sheet_rows_and_the_share_on_centre():
 def test_adjacent_channel_rejection_row():
     text = _plan(VOICE.replace("path: p", "path: p, channel_spacing: 25 kHz"), _path("p", "20 kHz"))
     acr = ceramic(20e3)(25e3)  # the response 25 kHz off its centre
-    rows = {r[2]: r[3] for r in sheet_rows(check(text), RULE)}
-    assert rows["adjacent-channel rejection for voice (±25 kHz)"] == pytest.approx(round(acr, 1))
+    rows = [r for r in sheet_rows(check(text), RULE) if r[2].startswith("adjacent")]
+    assert rows == [
+        (
+            "if-filter",
+            "p path",
+            "adjacent-channel rejection for voice (±25 kHz)",
+            pytest.approx(round(acr, 1)),
+            "dB",
+            "",
+            "",
+        )
+    ]
 
 
 @pytest.mark.parametrize(
@@ -287,9 +297,18 @@ def test_am_narrower_with_no_other_path_has_no_hint():
         == "talk needs 6 kHz (6K00A3E) but the p path passes only 5 kHz (no filter part, 455 kHz ± "
         "2.5 kHz)"
     )
-    assert (
-        f["fix"] == "Place the signal in a path that passes its spectrum, or fit a wider filter." or f["fix"]
+    # no fix of its own: the rule's
+    assert f["fix"] == (
+        "Route the signal through a path that passes its spectrum (name it in the signal's path), "
+        "or fit a filter of at least the width shown."
     )
+
+
+def test_am_other_path_exactly_as_wide_as_needed_is_offered():
+    text = _plan(AM, _path("p", "5 kHz") + _path("exact", "6 kHz"))
+    f = _found(text)[0]
+    assert f["message"].endswith("; the exact path (6 kHz) would pass it")
+    assert f["fix"] == "Set the signal's path to exact."
 
 
 @pytest.mark.parametrize(
