@@ -296,8 +296,9 @@ def test_a_pot_between_two_outputs_names_the_higher(ends):
     assert found == [track(text, "RV1", HALF - 2.0, "U2.out", HALF_WHY, "volume")]
 
 
-def test_a_pot_with_an_end_of_unknown_dc_is_passed_over():
-    # RV8 and RV7 (listed before RV1) each have an end on a net of no known DC; RV1 after them is still judged
+def test_pots_with_no_dc_across_them_are_passed_over():
+    # RV8 and RV7 (listed before RV1) hang from ground by one end: the track carries ground's 0 V to the
+    # other end, so 0 V across them; RV1 after them is still judged
     text = edited(volume_fed(), "  RV1: {kind",
                   "  RV8: {kind: potentiometer, value: 10 kohm, ends: [NOWHERE, GND], wiper: NOWHERE2}\n"
                   "  RV7: {kind: potentiometer, value: 10 kohm, ends: [GND, NOWHERE3], wiper: NOWHERE4}\n"
