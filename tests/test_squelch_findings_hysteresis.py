@@ -47,11 +47,13 @@ def base(
     return plan(parts, [stage], nodes)
 
 
-def thresholds(x: float, v_a: float, v_b: float, r_f: float, out_lo: float, out_hi: float) -> tuple:
-    """The pin with the output low and high, the wiper at x: its Thevenin source through R1, then R_f
-    to the output by superposition (no shunt)."""
+def thresholds(
+    x: float, v_a: float, v_b: float, r_f: float, out_lo: float, out_hi: float, r_sh: float | None = None
+) -> tuple:
+    """The pin with the output low and high, the wiper at x: its Thevenin source through R1 (and the
+    shunt to ground, if any), then R_f to the output by superposition."""
     v_w, r_w = wiper(v_a, v_b, TRACK, x)
-    v_th, r_th = divider(v_w, r_w + R_SE, None)
+    v_th, r_th = divider(v_w, r_w + R_SE, r_sh)
     return with_feedback(v_th, r_th, r_f, out_lo), with_feedback(v_th, r_th, r_f, out_hi)
 
 
@@ -347,3 +349,37 @@ def test_a_pot_of_no_stated_value_gives_the_width_at_the_ends_only():
             ("hysteresis width, knob at an end", pytest.approx(at_end, rel=1e-9)),
             ("hysteresis width, knob mid-track", pytest.approx(at_end, rel=1e-9)),
         ]
+
+
+def test_a_shunt_narrows_the_hysteresis_at_every_setting():
+    # R2 47 kohm from the pin to ground: the node's Thevenin resistance is (R1 + wiper) || R2
+    parts = (
+        pot("RV1", "V6, GND", "W1")
+        + res("R1", "100 kohm", "W1", "U1.sq")
+        + res("R2", "47 kohm", "U1.sq", "GND")
+        + res("R3", "1 Mohm", "U1.out", "U1.sq")
+    )
+    stage = {
+        "device": "U1",
+        "control": "RV1",
+        "pin": "U1.sq",
+        "series": "R1",
+        "shunt": "R2",
+        "hysteresis": "R3",
+    }
+    found, sheet = rows(plan(parts, [stage]))
+    # at a track end: 100k || 47k = 31.97 kohm, 4 V x 31.97k / 1031.97k = 123.9 mV
+    at_end = width(divider(0.0, R_SE, 47e3)[1], 1e6, 4.0)
+    assert at_end == pytest.approx(4 * 31972.789 / 1031972.789, rel=1e-6)
+    # mid-track: (100k + 2.5k) || 47k = 32.22 kohm
+    mid = width(divider(0.0, R_SE + 2.5e3, 47e3)[1], 1e6, 4.0)
+    x = brentq(lambda x: thresholds(x, 0.0, 6.0, 1e6, 0.5, 4.5, 47e3)[0] - MIDDLE, 0.0, 1.0, xtol=1e-15)
+    low, high = thresholds(x, 0.0, 6.0, 1e6, 0.5, 4.5, 47e3)
+    assert found == []
+    assert [r[2:4] for r in sheet[1:]] == [
+        ("hysteresis width, knob at an end", pytest.approx(at_end, rel=1e-9)),
+        ("hysteresis width, knob mid-track", pytest.approx(mid, rel=1e-9)),
+        ("threshold with the output low, knob set mid-range", pytest.approx(MIDDLE, rel=1e-9)),
+        ("threshold with the output high, knob set mid-range", pytest.approx(high, rel=1e-9)),
+    ]
+    assert low == pytest.approx(MIDDLE)
