@@ -29,6 +29,15 @@ def _value(part):
     return part.value.si if part is not None and part.value is not None else None
 
 
+def _device_pin(build, net: str) -> tuple:
+    """(device, pin) a net names as DEVICE.PIN; (None, None) for a plain net."""
+    pin_of = split_pin(net)
+    if pin_of is None:
+        return None, None
+    dev = build.device(pin_of[0])
+    return dev, (dev.pin(pin_of[1]) if dev is not None else None)
+
+
 @dataclass
 class Feedback:
     """The hysteresis resistor of a squelch stage and the levels of the net it returns to."""
@@ -36,7 +45,7 @@ class Feedback:
     part: Any
     net: str | None  # the end away from the pin; None when the resistor does not touch the pin
     levels: tuple | None  # (low, high) V of that net; equal when it does not switch; None: not known
-    why: str  # how the levels were found
+    why: str = ""  # how the levels were found
 
     @property
     def usable(self) -> bool:
@@ -50,10 +59,8 @@ def feedback(build, stage) -> Feedback | None:
         return None
     net = part.other_end(stage.pin)
     if net is None:
-        return Feedback(part, None, None, "")
-    pin_of = split_pin(net)
-    dev = build.device(pin_of[0]) if pin_of else None
-    pin = dev.pin(pin_of[1]) if dev is not None and pin_of else None
+        return Feedback(part, None, None)
+    dev, pin = _device_pin(build, net)
     stated_levels = pin is not None and (pin.output_low is not None or pin.output_high is not None)
     if dev is not None and pin is not None and stated_levels:
         supply = build.nets.rail_voltage(dev.rail)
@@ -85,7 +92,7 @@ def network(build, stage):
     pot = build.part(stage.control)
     if pot is None or not stage.pin:
         return None
-    span = build.nets.span(pot.wiper) if pot.wiper else None
+    span = build.nets.span(pot.wiper)
     if span is None:
         return None
     lo, hi = span
@@ -106,9 +113,7 @@ def network(build, stage):
         k = r_sh / (r_se + r_sh)
         lo, hi = lo * k, hi * k
         how += f", divided by {series.name if series else 'the wiper'} and {shunt.name} to {k:.3g}"
-    pin_of = split_pin(stage.pin)
-    dev = build.device(pin_of[0]) if pin_of else None
-    pin = dev.pin(pin_of[1]) if dev is not None and pin_of else None
+    dev, pin = _device_pin(build, stage.pin)
     return pin, dev, (lo, hi), how
 
 
@@ -202,7 +207,7 @@ def pin_voltage(build, ctx):
         if not stage.control:
             continue
         found = network(build, stage)
-        if found is None or found[1] is None:
+        if found is None:  # the loader has made sure the pin's device exists
             continue
         pin, dev, (lo, hi), how = found
         supply = build.nets.rail_voltage(dev.rail)
@@ -291,12 +296,6 @@ def hysteresis(build, ctx):
         _judge_hysteresis(build, ctx, stage, fb)
 
 
-def _pin_of(build, stage):
-    pin_of = split_pin(stage.pin) if stage.pin else None
-    dev = build.device(pin_of[0]) if pin_of else None
-    return dev.pin(pin_of[1]) if dev is not None and pin_of else None
-
-
 def _set_point(pin, span, track, r_se, r_sh, r_f, out_lo):
     """(knob fraction, where it is) for the thresholds on the sheet: the setting that puts the
     threshold (output low) at the middle of the pin's threshold range, else mid-track."""
@@ -310,7 +309,7 @@ def _set_point(pin, span, track, r_se, r_sh, r_f, out_lo):
 
 def _judge_hysteresis(build, ctx, stage, fb: Feedback) -> None:
     pot = build.part(stage.control)
-    span = build.nets.span(pot.wiper) if pot is not None and pot.wiper else None
+    span = build.nets.span(pot.wiper) if pot is not None else None
     r_se, r_sh, r_f = (
         _value(build.part(stage.series)) or 0.0,
         _value(build.part(stage.shunt)),
@@ -321,7 +320,7 @@ def _judge_hysteresis(build, ctx, stage, fb: Feedback) -> None:
     out_lo, out_hi = fb.levels
     swing = out_hi - out_lo
     track = _value(pot)
-    pin = _pin_of(build, stage)
+    pin = _device_pin(build, stage.pin)[1]
     at_ends = feedback_width(r_se, r_sh, r_f, swing)
     widest = feedback_width(r_se + track / 4, r_sh, r_f, swing) if track is not None else at_ends
     owner = stage.pin

@@ -321,6 +321,7 @@ def test_thresholds_at_mid_track_when_the_range_middle_cannot_be_reached_or_is_n
         (base(ends="A, GND", nodes={"A": 0.9}), 0.9),
         (base(pin="U1.sq_bare"), 6.0),
         (base(pin="U1.sq_half"), 6.0),
+        (base(pin="U1.sq_top"), 6.0),
     ]
     for text, top in cases:
         found, sheet = rows(text)
@@ -383,3 +384,59 @@ def test_a_shunt_narrows_the_hysteresis_at_every_setting():
         ("threshold with the output high, knob set mid-range", pytest.approx(high, rel=1e-9)),
     ]
     assert low == pytest.approx(MIDDLE)
+
+
+def test_a_wiper_straight_on_the_pin_gives_hysteresis_only_through_its_track():
+    # no series resistor: at a track end the wiper pins the node (R_th = 0, width 0); mid-track the
+    # track's 2.5 kohm alone: 4 V x 2.5k / (2.5k + 1M) = 9.975 mV, 1.0 % of the range: a note
+    parts = pot("RV1", "V6, GND", "U1.sq") + res("R3", "1 Mohm", "U1.out", "U1.sq")
+    text = plan(parts, [{"device": "U1", "control": "RV1", "pin": "U1.sq", "hysteresis": "R3"}])
+    found, _ = rows(text)
+    at_end, mid = width(0.0, 1e6, 4.0), width(wiper(0.0, 6.0, TRACK, 0.5)[1], 1e6, 4.0)
+    assert at_end == 0.0 and mid == pytest.approx(4 * 2.5e3 / 1002.5e3)
+    message = (
+        f"squelch: R3 moves the threshold of U1.sq by at most {shown(mid)} when U1.out switches (U1.out "
+        f"switches between 500 mV and 4.5 V), {mid:.1%} of the 1 V threshold range: the noise of a weak "
+        "carrier near the threshold swings by more than that, so the squelch will still chatter"
+    )
+    values = {
+        "width, knob at an end": (at_end, "V"),
+        "width, knob mid-track": (mid, "V"),
+        "output swing": (4.0, "V"),
+        "threshold range": (1.0, "V"),
+    }
+    same(found, [finding("squelch.hysteresis", "note", at(text, "hysteresis", "R3"), message, values)])
+
+
+def test_a_small_swing_still_switches():
+    # an output swinging 1 V to 1.5 V (a swing under 1 V is still a swing): 0.5 V x 102.5k / 1102.5k =
+    # 46.49 mV mid-track, under 5 % of the 1 V range (50 mV): a note, not "does not switch"
+    found, _ = rows(base(to="U1.out_small"))
+    mid = width(R_SE + 2.5e3, 1e6, 0.5)
+    assert [f["level"] for f in found] == ["note"] and f"at most {shown(mid)}" in found[0]["message"]
+    assert found[0]["values"]["output swing"] == (pytest.approx(1.5 - 1.0), "V")
+
+
+@pytest.mark.parametrize(("r3", "level"), [("6.8 Mohm", "note"), ("3.9 Mohm", None)])
+def test_the_least_share_is_of_the_pin_s_own_range(r3, level):
+    # threshold range 1 V to 3 V: 5 % of 2 V = 100 mV. Mid-track 4 V x 102.5k / (102.5k + R3):
+    # 6.8 Mohm: 59.40 mV, 3.0 % of the range: a note; 3.9 Mohm: 102.4 mV: none
+    text = base(r3, pin="U1.sq_wide")
+    found, _ = rows(text)
+    r_f = {"6.8 Mohm": 6.8e6, "3.9 Mohm": 3.9e6}[r3]
+    at_end, mid = width(R_SE, r_f, 4.0), width(R_SE + 2.5e3, r_f, 4.0)
+    if level is None:
+        assert mid > 0.05 * 2.0 and found == []
+        return
+    message = (
+        f"squelch: R3 moves the threshold of U1.sq_wide by at most {shown(mid)} when U1.out switches (U1.out "
+        f"switches between 500 mV and 4.5 V), {mid / 2.0:.1%} of the 2 V threshold range: the noise of a "
+        "weak carrier near the threshold swings by more than that, so the squelch will still chatter"
+    )
+    values = {
+        "width, knob at an end": (at_end, "V"),
+        "width, knob mid-track": (mid, "V"),
+        "output swing": (4.0, "V"),
+        "threshold range": (2.0, "V"),
+    }
+    same(found, [finding("squelch.hysteresis", "note", at(text, "hysteresis", "R3"), message, values)])
