@@ -62,7 +62,7 @@ def feedback(build, stage) -> Feedback | None:
         return Feedback(part, None, None)
     dev, pin = _device_pin(build, net)
     stated_levels = pin is not None and (pin.output_low is not None or pin.output_high is not None)
-    if dev is not None and pin is not None and stated_levels:
+    if stated_levels:
         supply = build.nets.rail_voltage(dev.rail)
         low = pin.output_low.si if pin.output_low is not None else 0.0
         high = pin.output_high.si if pin.output_high is not None else supply
@@ -74,7 +74,7 @@ def feedback(build, stage) -> Feedback | None:
     stated = build.nets.stated(net)
     if stated is not None:
         return Feedback(part, net, (stated.volts, stated.volts), stated.why)
-    if dev is not None and pin is not None:
+    if pin is not None:  # a pin of a device (the loader has made sure both exist)
         supply = build.nets.rail_voltage(dev.rail)
         if supply is not None:  # common practice: a switching output swings from ground to its supply
             return Feedback(

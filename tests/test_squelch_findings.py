@@ -1,5 +1,8 @@
 """squelch: every finding of the three squelch rules, whole, at the point where it trips.
 
+This file: squelch.threshold-range and the shared plans and arithmetic; squelch.pin-voltage in
+test_squelch_findings_pins.py, squelch.hysteresis in test_squelch_findings_hysteresis.py.
+
 Each plan is written here: one chip profile whose pins give a threshold range of 1 V to 2 V, a pot
 whose track ends sit on rails or declared nodes, and the stage's series, shunt and hysteresis
 resistors. The expected voltages are derived in this file by superposition over the divider, with
