@@ -92,7 +92,9 @@ def output_network(build, ctx):
                     stage=stage.label,
                 )
         load = build.part(stage.load)
-        hot = [e for e in (load.ends if load else []) if not build.nets.is_ground(e)]
+        # the speaker's ends count as outputs (a network behind the coupling capacitor); its ground end
+        # changes nothing, since a network's far end may be ground anyway
+        hot = load.ends if load else []
         if dev is not None and not _network_ok(build, dev, res, cap, hot):
             ctx.report(
                 f"{res.name} and {cap.name} do not form a series R–C from {dev.name}'s output to "
