@@ -137,7 +137,7 @@ def input_match(build, ctx):
                 fix=f"Give {from_where}.",
             )
             continue
-        f, _ = plan.at.get(id(stage), (None, 0.0))
+        f, _ = plan.at[id(stage)]  # the walk records every chain stage
         if f is None:  # the schema requires source.frequency: a conversion ahead left the IF unknown
             ctx.report(
                 f"{stage.label}: the IF of a conversion ahead of it is not known, so the match cannot be "
@@ -222,7 +222,7 @@ def input_match(build, ctx):
                 continue
             zin = complex(resonators.parallel(res.value.si, rl))
             share = (zin.real / rl) * (1 - abs(matching.reflection(zin, rs)) ** 2)
-            lost = -10 * math.log10(share) if share > 0 else math.inf
+            lost = -10 * math.log10(share)  # share > 0: two positive resistances in parallel
             ctx.publish("input-match", who, "signal lost in the termination", round(lost, 2), "dB")
             if rl > rs and ideal is not None:
                 ctx.report(
