@@ -53,9 +53,10 @@ def limits(ctx) -> tuple[float, float]:
     return ctx.setting("limit_ac_rms", of=HAZARD_RULE), ctx.setting("limit_dc", of=HAZARD_RULE)
 
 
-def transformer(build):
-    m = build.supply.mains if build.supply else None
-    if m and m.transformer:
+def transformer(build, m):
+    """The mains transformer: the part supply.mains (`m`) names, when it is one; else the build's only
+    transformer."""
+    if m.transformer:
         part = build.part(m.transformer)
         return part if part and part.kind == "transformer" else None
     found = [p for p in build.parts.values() if p.kind == "transformer"]
@@ -177,7 +178,7 @@ def primary_fuse(build, ctx):
     if not is_mains(build) or build.supply.mains is None:
         return
     m = build.supply.mains
-    xf = transformer(build)
+    xf = transformer(build, m)
     choice = _primary_choice(build, ctx, m, xf)
     if not m.primary_fuse:
         need = (
@@ -186,7 +187,7 @@ def primary_fuse(build, ctx):
         ctx.report(
             f"the mains primary has no fuse (supply.mains.primary_fuse){need}: a fault in the "
             "transformer or its wiring is then limited only by the building's circuit breaker",
-            m.at("transformer") if m.given("transformer") else m.loc,
+            m.at("transformer"),  # the mains block itself when no transformer is named
             [Value("preferred rating", choice["preferred"], "A")] if choice else [],
             stage="mains",
         )
@@ -299,7 +300,7 @@ def _primary_choice(build, ctx, m, xf):
         ctx.setting("rerate_per_degc", of="power.fuse-size"),
         ctx.setting("rerate_above", of="power.fuse-size"),
     )
-    allowance = ctx.setting("inrush_allowance", of="mains.primary-fuse")
+    allowance = ctx.setting("inrush_allowance")
     least = max(primary / (share * factor), primary * allowance / factor)
     choice = {"primary": primary, "least": least, "preferred": r10_up(least), "rerate": factor}
     ctx.publish("mains", xf.name, "primary current at full load (VA / V mains)", primary, "A")
@@ -467,7 +468,7 @@ def transformer_primary(build, ctx):
     if not is_mains(build) or build.supply.mains is None:
         return
     m = build.supply.mains
-    xf = transformer(build)
+    xf = transformer(build, m)
     named = build.part(m.transformer)
     if xf is None and named is not None:
         ctx.report(
