@@ -378,3 +378,15 @@ def test_mains_voltage_that_is_no_mains_voltage(volts):
         "the mains primary has no fuse (supply.mains.primary_fuse): a fault in the transformer or its wiring "
         "is then limited only by the building's circuit breaker"]
     assert sheet_of(check(text), "mains.primary-fuse") == {}
+
+
+def test_parts_without_a_value_are_passed_over(clean_text):
+    # a capacitor of no stated value is not judged, and a resistor of no stated value is no bleeder; the
+    # capacitor after them still is: ½ x 10 µF x 150² = 112.5 mJ
+    no_value = "  C49: {kind: capacitor, dielectric: electrolytic, ends: [HV, GND], positive: HV}\n"
+    text = hv_plan(clean_text, no_value + cap("C50", "10 uF") + "  R50: {kind: resistor, ends: [HV, GND]}\n")
+    assert found(text, "mains.bleeder") == [finding(
+        "mains.bleeder", "warning", text, "C50: |{kind", "parts.C50",
+        f"C50 (10 uF) holds 150 V ({energy(10e-6) * 1e3:.4g} mJ) with no bleeder resistor across it: it "
+        "stays charged after switch-off",
+        {"voltage": (HV, "V"), "stored energy": (pytest.approx(energy(10e-6)), "J")})]
