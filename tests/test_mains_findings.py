@@ -495,3 +495,26 @@ def test_primary_fuse_sized_from_any_positive_mains_voltage():
     assert preferred == pytest.approx(31.5)
     assert [f["values"] for f in found(text, "mains.primary-fuse")] == [
         {"preferred rating": (pytest.approx(preferred), "A")}]
+
+
+@pytest.mark.parametrize(("milliamps", "level"),
+                         [(100, "warning"), (200, None), (400, None), (500, "warning")])
+def test_fuse_exactly_at_each_threshold(milliamps, level):
+    # no ambient stated: no rerating. 23 VA / 230 V = 100 mA exactly (I_p = VA / V_mains, common practice);
+    # the least rating is max(100 / 0.75, 2 x 100) = 200 mA, itself an R10 value (IEC 60127-1 Annex A);
+    # a fuse at exactly I_p is short of the inrush room but not below I_p, one at exactly 200 mA or
+    # exactly twice it (the oversize factor) is fine
+    text = edited(with_fuse(f"current_rating: {milliamps} mA, speed: time-lag, voltage_rating: 250 V"),
+                  "  ambient_max: 40 degC\n", "")
+    text = edited(text, "rating: 12 VA", "rating: 23 VA")
+    primary, least = 23 / 230, max(23 / 230 / 0.75, 2 * 23 / 230)
+    preferred = r10_up(least)
+    assert (primary, least, preferred) == pytest.approx((0.1, 0.2, 0.2))
+    messages = {
+        100: f"F2 (100 mA) leaves too little room for the continuous primary current ({milli(primary)}) and "
+             f"the switch-on inrush; fit {milli(preferred)}",
+        500: f"F2 (500 mA) is {0.5 / preferred:.3g} times the {milli(preferred)} that T1 (23 VA) needs: an "
+             "overloaded or shorted secondary leaves it intact",
+    }
+    assert [(f["level"], f["message"]) for f in found(text, "mains.primary-fuse")] == (
+        [(level, messages[milliamps])] if level else [])
