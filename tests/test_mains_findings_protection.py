@@ -235,10 +235,12 @@ def energy(farads: float, volts: float = HV) -> float:
 
 
 def test_capacitors_without_a_bleeder_each_reported(clean_text):
-    # a capacitor between two nets of no known DC is passed over; the next ones are each reported, the
-    # second wired the other way round (the voltage across is what counts)
-    floating = "  C49: {kind: capacitor, value: 10 uF, dielectric: film, ends: [FLOAT_A, FLOAT_B]}\n"
-    text = hv_plan(clean_text, floating + cap("C50") + cap("C51", "47 uF", "[GND, HV]"))
+    # a capacitor with an end of no known DC is passed over (C48, C49); the next ones are each reported,
+    # the second from V12 up to HV: what counts is the voltage across it, 150 V - 12 V = 138 V
+    floating = ("  C48: {kind: capacitor, value: 10 uF, dielectric: film, ends: [HV, FLOAT_C]}\n"
+                "  C49: {kind: capacitor, value: 10 uF, dielectric: film, ends: [FLOAT_A, FLOAT_B]}\n")
+    text = hv_plan(clean_text, floating + cap("C50") + cap("C51", "47 uF", "[V12, HV]"))
+    across = HV - 12.0
     result = check(text)
     assert [facts(f) for f in of(result, "mains.bleeder")] == [
         finding("mains.bleeder", "warning", text, "C50: |{kind", "parts.C50",
@@ -246,13 +248,13 @@ def test_capacitors_without_a_bleeder_each_reported(clean_text):
                 "stays charged after switch-off",
                 {"voltage": (HV, "V"), "stored energy": (pytest.approx(energy(100e-6)), "J")}),
         finding("mains.bleeder", "warning", text, "C51: |{kind", "parts.C51",
-                f"C51 (47 uF) holds 150 V ({energy(47e-6) * 1e3:.4g} mJ) with no bleeder resistor across it: "
-                "it stays charged after switch-off",
-                {"voltage": (HV, "V"), "stored energy": (pytest.approx(energy(47e-6)), "J")}),
+                f"C51 (47 uF) holds {across:.4g} V ({energy(47e-6, across) * 1e3:.4g} mJ) with no bleeder resistor "
+                "across it: it stays charged after switch-off",
+                {"voltage": (across, "V"), "stored energy": (pytest.approx(energy(47e-6, across)), "J")}),
     ]
     assert sheet_rows(result, "mains.bleeder") == [
         ("mains", "C50", "stored energy", pytest.approx(energy(100e-6)), "J", "", ""),
-        ("mains", "C51", "stored energy", pytest.approx(energy(47e-6)), "J", "", ""),
+        ("mains", "C51", "stored energy", pytest.approx(energy(47e-6, across)), "J", "", ""),
     ]
 
 
