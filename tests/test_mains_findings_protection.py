@@ -248,8 +248,8 @@ def test_capacitors_without_a_bleeder_each_reported(clean_text):
                 "stays charged after switch-off",
                 {"voltage": (HV, "V"), "stored energy": (pytest.approx(energy(100e-6)), "J")}),
         finding("mains.bleeder", "warning", text, "C51: |{kind", "parts.C51",
-                f"C51 (47 uF) holds {across:.4g} V ({energy(47e-6, across) * 1e3:.4g} mJ) with no bleeder resistor "
-                "across it: it stays charged after switch-off",
+                f"C51 (47 uF) holds {across:.4g} V ({energy(47e-6, across) * 1e3:.4g} mJ) with no bleeder "
+                "resistor across it: it stays charged after switch-off",
                 {"voltage": (across, "V"), "stored energy": (pytest.approx(energy(47e-6, across)), "J")}),
     ]
     assert sheet_rows(result, "mains.bleeder") == [
