@@ -70,8 +70,10 @@ def scoped(area: str) -> tuple[list[str], list[str]]:
     (same tests): one module at a time, for a short run."""
     base, _, module = area.partition(":")
     mutate, tests = AREAS[base]
-    if module:
-        mutate = [m.replace("*", f"{module}.py") for m in mutate if m.endswith("/*")]
+    if module:  # a folder's module, or a listed file of that name (mains:mains, freqplan:loads)
+        mutate = [m.replace("*", f"{module}.py") if m.endswith("/*") else m for m in mutate
+                  if m.endswith("/*") or Path(m).stem == module]
+        mutate = [m for m in mutate if (ROOT / m).exists()]
     return mutate, tests
 
 
