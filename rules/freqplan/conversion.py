@@ -94,12 +94,11 @@ def conversion(build, ctx):
         if c.intended is not None:
             ctx.publish("conversion", c.owner, "IF offset from intended", round(c.f_if - c.intended, 3), "Hz")
             share = setting(ctx, "intended_share")
-            off = abs(c.f_if - c.intended) / c.intended
-            if off > share:
+            if abs(c.f_if - c.intended) > share * c.intended:
                 ctx.report(
                     f"{c.owner}: the plan states an IF of {hz(c.intended)}, but the LO ({hz(c.lo)}) and "
-                    f"the input ({hz(c.f_in)}) give {hz(c.f_if)}, {off:.1%} away: one of these numbers "
-                    "is wrong",
+                    f"the input ({hz(c.f_in)}) give {hz(c.f_if)}, {hz(abs(c.f_if - c.intended))} from it: "
+                    "one of these numbers is wrong",
                     c.stage.at("if_frequency"),
                     [Value("IF stated", c.intended, "Hz"), Value("IF computed", c.f_if, "Hz"),
                      Value("LO", c.lo, "Hz"), Value("input", c.f_in, "Hz")],
